@@ -1,0 +1,114 @@
+/**
+ * Plain-data types passed between the stages (import -> frame -> physics -> export).
+ * Inside `src/` every length is in SI metres, stored as Float64. Other units live only at the edges.
+ */
+
+/** Length units accepted at the edges. "A" is the angstrom (1e-10 m). */
+export type LengthUnit = "m" | "um" | "nm" | "A";
+/** Units a file may use: a length unit, or pixels (then a pixel size in metres is required). */
+export type InputUnit = LengthUnit | "px";
+
+/** Exact integers, so `value / PER_METRE[unit]` is correctly rounded (1e-9 is not exact). */
+export const PER_METRE: Readonly<Record<LengthUnit, number>> = { m: 1, um: 1e6, nm: 1e9, A: 1e10 };
+
+export const LENGTH_UNITS: readonly LengthUnit[] = ["m", "um", "nm", "A"];
+export const INPUT_UNITS: readonly InputUnit[] = ["m", "um", "nm", "A", "px"];
+
+/** Where a dataset came from, and the unit its file used. */
+export interface Source {
+  readonly file: string;
+  readonly unit: InputUnit;
+  /** Pixel size in metres when `unit` is "px". */
+  readonly pixelSize?: number;
+}
+
+/**
+ * An ordered trace of a wire: points along the centre line, in metres.
+ * `xyz` is interleaved [x0, y0, z0, x1, ...]; 2D inputs have z = 0 and `dims` 2.
+ */
+export interface Trace {
+  readonly xyz: Float64Array;
+  /** true/false when known (from the file or the user); undefined: detect from the data. */
+  readonly closed?: boolean;
+  readonly dims: 2 | 3;
+  readonly source: Source;
+  /** The trace is a planar projection of a 3D wire (a micrograph): torsion is not measurable. */
+  readonly planarProjection?: boolean;
+  /** Local tube radius per point (m), when the trace came from a mesh. */
+  readonly radius?: Float64Array;
+  /** Spread (standard deviation) of the tube radius per point (m). */
+  readonly radiusSpread?: Float64Array;
+  /** Everything repaired or dropped at import (one human-readable line each). */
+  readonly diagnostics: readonly string[];
+}
+
+/** Per-sample flag bits of a Profile (`flags[i] & FLAG_...`). */
+export const FLAG_TORSION_UNDEFINED = 1; // kappa cannot be told from 0: tau is NaN, Frenet N, B undefined
+export const FLAG_FRAME_TRANSPORTED = 2; // N, B come from the twist-free (parallel-transport) frame
+export const FLAG_END = 4; // within one resolution length of an open end: bias is larger there
+export const FLAG_TORSION_NOT_MEASURABLE = 8; // planar projection: torsion cannot be measured
+
+/**
+ * Curvature and torsion profile of a fitted wire. All arrays have one entry per sample.
+ * Torsion follows B' = -tau N, so a right-handed helix has tau > 0.
+ * Units: s, x, y, z, resolution, sigma in m; kappa, tau and their bands in 1/m.
+ */
+export interface Profile {
+  readonly n: number;
+  /** Arc length along the fitted curve from its start (m). */
+  readonly s: Float64Array;
+  readonly x: Float64Array;
+  readonly y: Float64Array;
+  readonly z: Float64Array;
+  /** Frames, interleaved 3 per sample. N, B are Frenet where kappa is resolved, transported elsewhere. */
+  readonly T: Float64Array;
+  readonly N: Float64Array;
+  readonly B: Float64Array;
+  readonly kappa: Float64Array;
+  readonly kappaLo: Float64Array;
+  readonly kappaHi: Float64Array;
+  /** NaN where undefined (see flags), never an invented number. */
+  readonly tau: Float64Array;
+  readonly tauLo: Float64Array;
+  readonly tauHi: Float64Array;
+  readonly flags: Uint8Array;
+  /** Total length of the fitted curve (m). */
+  readonly length: number;
+  readonly closed: boolean;
+  /** Shortest length scale the fit resolves (m). */
+  readonly resolution: number;
+  /** Estimated noise standard deviation per coordinate (m). */
+  readonly sigma: number;
+  /** Smoothing level used (penalty weight, dimensionless after scaling). */
+  readonly lambda: number;
+  /** Effective degrees of freedom of the fit, per coordinate. */
+  readonly edf: number;
+  /** Bootstrap replicates used for the bands (0 when none). */
+  readonly replicates: number;
+  /** Input points given weight below 0.5 by the robust fit (indices into the input trace). */
+  readonly outliers: readonly number[];
+  readonly source: Source;
+  readonly planarProjection: boolean;
+  readonly diagnostics: readonly string[];
+  /** Optional bootstrap samples, replicate-major: kappaSamples[r * n + i]. Kept when asked for. */
+  readonly kappaSamples?: Float64Array;
+  readonly tauSamples?: Float64Array;
+}
+
+export type SegmentKind = "straight" | "arc" | "helix" | "irregular";
+
+/** A stretch of near-constant geometry, s0..s1 in m, mean kappa and tau in 1/m with 95% bands. */
+export interface Segment {
+  readonly s0: number;
+  readonly s1: number;
+  /** Sample indices [i0, i1) covered by the stretch. */
+  readonly i0: number;
+  readonly i1: number;
+  readonly kind: SegmentKind;
+  readonly kappa: number;
+  readonly kappaLo: number;
+  readonly kappaHi: number;
+  readonly tau: number;
+  readonly tauLo: number;
+  readonly tauHi: number;
+}
