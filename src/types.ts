@@ -81,6 +81,8 @@ export interface Profile {
   readonly sigma: number;
   /** Smoothing level used (penalty weight, dimensionless after scaling). */
   readonly lambda: number;
+  /** Smoothing level of the torsion estimate (>= lambda: the third derivative wants more smoothing). */
+  readonly lambdaTorsion: number;
   /** Effective degrees of freedom of the fit, per coordinate. */
   readonly edf: number;
   /** Bootstrap replicates used for the bands (0 when none). */

@@ -1,0 +1,80 @@
+import { ORDER, basisAt, coefIndex, locate, type SplineBasis } from "./bspline.js";
+import { makeSkyline, skyAdd, type Skyline } from "./skyline.js";
+
+/** Lower-envelope first columns for a matrix coupling coefficients within `band` (wrapping when periodic). */
+export function envelope(K: number, band: number, periodic: boolean, block = 1): Int32Array {
+  const n = K * block;
+  const first = new Int32Array(n);
+  for (let r = 0; r < n; ++r) {
+    const m = Math.floor(r / block);
+    first[r] = periodic && m >= K - band ? 0 : Math.max(0, (m - band) * block);
+  }
+  return first;
+}
+
+/**
+ * Normal equations of a weighted least-squares spline fit to points p_i at parameters u_i:
+ * G = B^T W B (K x K skyline), rhs = B^T W y for x, y, z (3 blocks of K), yWy = sum_i w_i |p_i|^2.
+ * Cost O(n) with 21 + 18 multiply-adds per point; no allocation per point.
+ */
+export interface Normal {
+  readonly G: Skyline;
+  readonly rhs: Float64Array;
+  readonly yWy: number;
+  /** Sum of the weights. */
+  readonly wSum: number;
+}
+
+export function normalEquations(
+  basis: SplineBasis,
+  u: Float64Array,
+  xyz: Float64Array,
+  w: Float64Array,
+): Normal {
+  const K = basis.K;
+  const G = makeSkyline(envelope(K, ORDER - 1, basis.periodic));
+  const rhs = new Float64Array(3 * K);
+  const tOut = new Float64Array(1), b = new Float64Array(24), idx = new Int32Array(ORDER);
+  let yWy = 0, wSum = 0;
+  const n = u.length;
+  for (let p = 0; p < n; ++p) {
+    const wp = w[p];
+    if (wp === 0) continue;
+    const i = locate(basis, u[p], tOut);
+    basisAt(tOut[0], basis.h, 0, b);
+    const x = xyz[3 * p], y = xyz[3 * p + 1], z = xyz[3 * p + 2];
+    yWy += wp * (x * x + y * y + z * z);
+    wSum += wp;
+    for (let j = 0; j < ORDER; ++j) idx[j] = coefIndex(basis, i, j);
+    for (let j = 0; j < ORDER; ++j) {
+      const bj = wp * b[j], m = idx[j];
+      rhs[m] += bj * x;
+      rhs[K + m] += bj * y;
+      rhs[2 * K + m] += bj * z;
+      for (let k = 0; k <= j; ++k) skyAdd(G, m, idx[k], bj * b[k]);
+    }
+  }
+  return { G, rhs, yWy, wSum };
+}
+
+/**
+ * Difference penalty P = D^T D of order 4 on the coefficients (Eilers & Marx 1996, Stat. Sci. 11:89),
+ * cyclic when the basis is periodic, stored on the same envelope as G.
+ */
+export function differencePenalty(basis: SplineBasis): Skyline {
+  const K = basis.K;
+  const P = makeSkyline(envelope(K, ORDER - 1, basis.periodic));
+  const d = [1, -4, 6, -4, 1];
+  const rows = basis.periodic ? K : K - 4;
+  for (let r = 0; r < rows; ++r) {
+    for (let a = 0; a < 5; ++a) {
+      for (let c = 0; c <= a; ++c) {
+        const ia = (r + a) % K, ic = (r + c) % K;
+        // Diagonal pairs once; off-diagonal pairs (a != c) stand for both (a,c) and (c,a).
+        if (a === c) skyAdd(P, ia, ic, d[a] * d[c]);
+        else skyAdd(P, ia, ic, d[a] * d[c]);
+      }
+    }
+  }
+  return P;
+}

@@ -1,0 +1,32 @@
+/**
+ * Decides whether an ordered trace is a closed curve: the gap between its last and first points is
+ * within a few sample steps plus the noise (noise from the difference-based pseudo-residuals of
+ * Gasser, Sroka & Jennen-Steinmetz 1986, Biometrika 73:625), and small against the whole length.
+ * Adds one line to `diagnostics` when it calls the trace closed. Cost O(n).
+ * Units: any (the result depends only on ratios).
+ */
+export function detectClosed(xyz: Float64Array, diagnostics: string[]): boolean {
+  const n = xyz.length / 3;
+  if (n < 8) return false;
+  const steps = new Float64Array(n - 1);
+  let total = 0;
+  for (let i = 1; i < n; ++i) {
+    steps[i - 1] = Math.hypot(xyz[3 * i] - xyz[3 * i - 3], xyz[3 * i + 1] - xyz[3 * i - 2], xyz[3 * i + 2] - xyz[3 * i - 1]);
+    total += steps[i - 1];
+  }
+  const sorted = steps.slice().sort();
+  const medStep = sorted[(sorted.length - 1) >> 1];
+  let e2 = 0;
+  for (let i = 1; i < n - 1; ++i) {
+    for (let c = 0; c < 3; ++c) {
+      const e = 0.5 * (xyz[3 * i - 3 + c] + xyz[3 * i + 3 + c]) - xyz[3 * i + c];
+      e2 += e * e;
+    }
+  }
+  // Var of (p[i-1] + p[i+1]) / 2 - p[i] per coordinate is 1.5 sigma^2 for white noise.
+  const sigma = Math.sqrt(e2 / (3 * 1.5 * (n - 2)));
+  const gap = Math.hypot(xyz[3 * n - 3] - xyz[0], xyz[3 * n - 2] - xyz[1], xyz[3 * n - 1] - xyz[2]);
+  const closed = gap <= 3 * medStep + 4 * Math.SQRT2 * sigma && gap < 0.05 * total;
+  if (closed) diagnostics.push(`closed curve detected: the ends meet within ${(gap / medStep).toFixed(2)} sample steps (use --open to override)`);
+  return closed;
+}

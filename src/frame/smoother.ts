@@ -1,0 +1,186 @@
+import type { SplineBasis } from "./bspline.js";
+import { differencePenalty, normalEquations, type Normal } from "./design.js";
+import { factorLdl, makeSkyline, selectedInverse, solveLdl, type Skyline } from "./skyline.js";
+
+/**
+ * A penalised spline smoother for one parametrisation: the normal equations, the penalty, and
+ * solves at any smoothing level lambda of  sum_i w_i |p_i - r(u_i)|^2 + lambda sum |D^4 c|^2,
+ * one lambda shared by x, y and z (P-splines: Eilers & Marx 1996, Stat. Sci. 11:89).
+ */
+export interface Smoother {
+  readonly basis: SplineBasis;
+  readonly normal: Normal;
+  readonly P: Skyline;
+  /** log10 of the lambdas whose half-power wavelength is one knot interval and four curve lengths. */
+  readonly logLambdaRange: readonly [number, number];
+}
+
+/** The fit at one lambda: coefficients (x, y, z blocks of K), factor of G + lambda P, RSS. */
+export interface SmoothFit {
+  readonly lambda: number;
+  readonly coef: Float64Array;
+  readonly factor: Skyline;
+  /** Weighted residual sum of squares over all three coordinates. */
+  readonly rss: number;
+}
+
+export function makeSmoother(basis: SplineBasis, u: Float64Array, xyz: Float64Array, w: Float64Array): Smoother {
+  const normal = normalEquations(basis, u, xyz, w);
+  const P = differencePenalty(basis);
+  const span = basis.nseg * basis.h;
+  const rho = normal.wSum / span;
+  return { basis, normal, P, logLambdaRange: [Math.log10(lambdaForWavelength(basis.h, rho, basis.h)), Math.log10(lambdaForWavelength(4 * span, rho, basis.h))] };
+}
+
+/**
+ * The smoothing level whose transfer function 1 / (1 + (lambda h^7 / rho) omega^8) halves at
+ * wavelength `wavelength`: the 4th-difference penalty is a discretised integral of (r'''')^2,
+ * sum (D^4 c)^2 ~ h^7 int (c'''')^2, and the data term weighs rho (weight per unit length).
+ */
+export function lambdaForWavelength(wavelength: number, rho: number, h: number): number {
+  return (rho * Math.pow(wavelength / (2 * Math.PI), 8)) / Math.pow(h, 7);
+}
+
+/** Inverse of lambdaForWavelength: the half-power wavelength of a smoothing level. */
+export function wavelengthForLambda(lambda: number, rho: number, h: number): number {
+  return 2 * Math.PI * Math.pow((lambda * Math.pow(h, 7)) / rho, 1 / 8);
+}
+
+/** y = S x for a symmetric skyline S. */
+function symMul(S: Skyline, x: Float64Array, off: number, y: Float64Array): void {
+  const { n, first, offset, data } = S;
+  y.fill(0);
+  for (let i = 0; i < n; ++i) {
+    const fi = first[i], oi = offset[i];
+    let s = 0;
+    for (let j = fi; j < i; ++j) {
+      const a = data[oi + j - fi];
+      s += a * x[off + j];
+      y[j] += a * x[off + i];
+    }
+    y[i] += s + data[oi + i - fi] * x[off + i];
+  }
+}
+
+/** Solves at one lambda. Cost O(K b^2). */
+export function solveAt(sm: Smoother, lambda: number): SmoothFit {
+  const { G, rhs, yWy } = sm.normal;
+  const K = sm.basis.K;
+  const A = makeSkyline(G.first);
+  const P = sm.P;
+  for (let k = 0; k < A.data.length; ++k) A.data[k] = G.data[k] + lambda * P.data[k];
+  factorLdl(A, 0);
+  const coef = new Float64Array(3 * K);
+  const tmp = new Float64Array(K), Gc = new Float64Array(K);
+  let rss = yWy;
+  for (let c = 0; c < 3; ++c) {
+    const b = rhs.subarray(c * K, (c + 1) * K);
+    solveLdl(A, b, tmp);
+    coef.set(tmp, c * K);
+    symMul(G, coef, c * K, Gc);
+    for (let i = 0; i < K; ++i) rss += -2 * tmp[i] * b[i] + tmp[i] * Gc[i];
+  }
+  return { lambda, coef, factor: A, rss: Math.max(rss, 0) };
+}
+
+/** Effective degrees of freedom per coordinate, tr((G + lambda P)^-1 G), by the selected inverse. */
+export function edfOf(sm: Smoother, fit: SmoothFit): number {
+  const Z = selectedInverse(fit.factor);
+  const G = sm.normal.G;
+  let t = 0;
+  for (let i = 0; i < G.n; ++i) {
+    const fi = G.first[i], oi = G.offset[i];
+    for (let j = fi; j < i; ++j) t += 2 * Z.data[oi + j - fi] * G.data[oi + j - fi];
+    t += Z.data[oi + i - fi] * G.data[oi + i - fi];
+  }
+  return t;
+}
+
+/** Outcome of the automatic smoothing choice. */
+export interface Selection {
+  readonly fit: SmoothFit;
+  readonly edf: number;
+  /** Noise standard deviation per normal direction, from the GCV fit. */
+  readonly sigma: number;
+  readonly lambdaGcv: number;
+  readonly edfGcv: number;
+  readonly rule: "discrepancy" | "gcv-x3";
+}
+
+/**
+ * Automatic smoothing aimed at the derivatives (NUMERICS.md step 5):
+ * 1. lambda_GCV minimises GCV(lambda) = n RSS / (n - edf)^2 (Craven & Wahba 1979, Numer. Math. 31:377),
+ *    searched on a log grid and refined by golden section;
+ * 2. noise sigma^2 = RSS_GCV / (d (n - edf_GCV)), d = number of normal directions (2 in 3D, 1 in a plane),
+ *    since foot-point parameters leave no tangential residual;
+ * 3. the final lambda is the largest with RSS(lambda) <= d n sigma^2 (the discrepancy principle,
+ *    Reinsch 1967, Numer. Math. 10:177): it smooths more than GCV, which derivatives want.
+ * Falls back to 3 lambda_GCV when the discrepancy search fails to bracket.
+ */
+export function selectSmoothing(sm: Smoother, normalDims: number, fixedLambda?: number): Selection {
+  const n = sm.normal.wSum;
+  const cache = new Map<number, { fit: SmoothFit; edf: number }>();
+  const evalGcv = (logL: number) => {
+    const hit = cache.get(logL);
+    if (hit) return hit;
+    const fit = solveAt(sm, Math.pow(10, logL));
+    const edf = edfOf(sm, fit);
+    const v = { fit, edf };
+    cache.set(logL, v);
+    return v;
+  };
+  const gcv = (logL: number) => {
+    const { fit, edf } = evalGcv(logL);
+    const dof = Math.max(n - edf, 1e-9);
+    return (n * fit.rss) / (dof * dof);
+  };
+  if (fixedLambda !== undefined) {
+    const fit = solveAt(sm, fixedLambda);
+    const edf = edfOf(sm, fit);
+    const sigma = Math.sqrt(fit.rss / (normalDims * Math.max(n - edf, 1)));
+    return { fit, edf, sigma, lambdaGcv: fixedLambda, edfGcv: edf, rule: "discrepancy" };
+  }
+  // Coarse grid over 20 decades relative to the balance point, then golden section.
+  const [lo, hi] = sm.logLambdaRange;
+  const steps = Math.max(9, Math.ceil((hi - lo) * 2) + 1);
+  let best = lo, bestV = Infinity;
+  for (let k = 0; k < steps; ++k) {
+    const x = lo + ((hi - lo) * k) / (steps - 1);
+    const v = gcv(x);
+    if (v < bestV) { bestV = v; best = x; }
+  }
+  const dx = (hi - lo) / (steps - 1);
+  let a = Math.max(lo, best - dx), b = Math.min(hi, best + dx);
+  const g = (Math.sqrt(5) - 1) / 2;
+  let c = b - g * (b - a), d = a + g * (b - a);
+  let fc = gcv(c), fd = gcv(d);
+  for (let it = 0; it < 30 && b - a > 1e-3; ++it) {
+    if (fc < fd) { b = d; d = c; fd = fc; c = b - g * (b - a); fc = gcv(c); }
+    else { a = c; c = d; fc = fd; d = a + g * (b - a); fd = gcv(d); }
+  }
+  const xg = fc < fd ? c : d;
+  const gFit = evalGcv(xg);
+  const sigma2 = gFit.fit.rss / (normalDims * Math.max(n - gFit.edf, 1));
+  const target = normalDims * n * sigma2;
+  // RSS grows with lambda: bisect log lambda on [xg, hi] for RSS = target.
+  let left = xg, right = xg;
+  let rssRight = gFit.fit.rss;
+  while (rssRight < target && right < hi) {
+    right = Math.min(hi, right + 1);
+    rssRight = solveAt(sm, Math.pow(10, right)).rss;
+  }
+  let fit: SmoothFit;
+  let rule: Selection["rule"] = "discrepancy";
+  if (rssRight < target || !(sigma2 > 0)) {
+    rule = "gcv-x3";
+    fit = solveAt(sm, 3 * Math.pow(10, xg));
+  } else {
+    for (let it = 0; it < 40 && right - left > 1e-3; ++it) {
+      const mid = 0.5 * (left + right);
+      if (solveAt(sm, Math.pow(10, mid)).rss <= target) left = mid;
+      else right = mid;
+    }
+    fit = solveAt(sm, Math.pow(10, left));
+  }
+  return { fit, edf: edfOf(sm, fit), sigma: Math.sqrt(sigma2), lambdaGcv: Math.pow(10, xg), edfGcv: gFit.edf, rule };
+}
