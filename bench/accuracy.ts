@@ -21,7 +21,7 @@ const curves: TestCurve[] = [
   bumpCurve(10, 0.6, 1), bendCurve(4, 0.5), circleCurve(1),
 ].filter((c) => !pick || pick.includes(c.name));
 
-interface Score { k: number; t: number; covK: number; covT: number; lambda: number }
+interface Score { k: number; t: number; covK: number; covT: number; lambda: number; segments: number }
 
 function score(curve: TestCurve, xyz: Float64Array, truth: ReturnType<typeof denseTruth>, opts: ProfileOptions): Score {
   const p = fitProfile({ xyz, dims: 3, closed: curve.closed, source: { file: curve.name, unit: "m" }, diagnostics: [] }, opts);
@@ -38,7 +38,7 @@ function score(curve: TestCurve, xyz: Float64Array, truth: ReturnType<typeof den
   }
   // Planar curves have tau = 0: report the error relative to the RMS curvature instead.
   const tScale = rt > 1e-12 * rk ? rt : rk;
-  return { k: Math.sqrt(ek / rk), t: Math.sqrt(et / tScale), covK: ck / nk, covT: ct / nt, lambda: p.lambda };
+  return { k: Math.sqrt(ek / rk), t: Math.sqrt(et / tScale), covK: ck / nk, covT: ct / nt, lambda: p.lambda, segments: p.segments };
 }
 
 const rows: string[] = [];
@@ -47,11 +47,11 @@ for (const curve of curves) {
   const truth = denseTruth(curve, 20 * N);
   for (const noise of noises) {
     const { xyz } = sampleCurve(curve, N, noise * curve.radius, 11);
-    const auto = score(curve, xyz, truth, { bootstrap: 200 });
+    const auto = score(curve, xyz, truth, { bootstrap: 200, ...(process.env.KAPPA_LEVEL === "risk" ? { kappaLevel: "risk" as const } : {}) });
     let bestK = Infinity, bestT = Infinity, eK = 0, eT = 0;
     for (let e = -12; e <= 12; ++e) {
       const lam = auto.lambda * Math.pow(10, e / 4);
-      const s = score(curve, xyz, truth, { bootstrap: 0, lambda: lam });
+      const s = score(curve, xyz, truth, { bootstrap: 0, lambda: lam, segments: auto.segments });
       if (s.k < bestK) { bestK = s.k; eK = e / 4; }
       if (s.t < bestT) { bestT = s.t; eT = e / 4; }
     }

@@ -83,6 +83,8 @@ export interface Profile {
   readonly lambda: number;
   /** Smoothing level of the torsion estimate (>= lambda: the third derivative wants more smoothing). */
   readonly lambdaTorsion: number;
+  /** Number of knot intervals of the quintic spline. */
+  readonly segments: number;
   /** Effective degrees of freedom of the fit, per coordinate. */
   readonly edf: number;
   /** Bootstrap replicates used for the bands (0 when none). */

@@ -1,7 +1,11 @@
-import { ORDER, basisAt, coefIndex, locate, type SplineBasis } from "./bspline.js";
+import { basisAt, locate, type SplineBasis } from "./bspline.js";
+
+/** Quintic: six active basis functions per interval (local copy: imported bindings are slow in hot loops). */
+const ORDER = 6;
+const coefIndex = (basis: SplineBasis, i: number, j: number): number => (basis.periodic ? (i + j) % basis.K : i + j);
 import { kappaTau } from "./curve.js";
 import { envelope } from "./design.js";
-import { factorLdl, makeSkyline, mulLsqrtD, skyAdd, solveLdl, type Skyline } from "./skyline.js";
+import { factorLdl, makeSkyline, mulLsqrtD, skyAdd, solveLdl, sqrtDiagonal, type Skyline } from "./skyline.js";
 
 /** Replicates on the evaluation points, replicate-major: kappa[r * m + j]. */
 export interface BootstrapOutput {
@@ -94,10 +98,11 @@ export function rhsNoiseFactor(
 /** Draws dB (3K, coefficient-major) and returns the coefficient perturbation (x, y, z blocks of K)
  * dc = A^{-1} dB for a factorised A. Scratch arrays are allocated by the caller. */
 export function drawCoefPerturbation(
-  C: Skyline, factor: Skyline, xi: Float64Array, dcOut: Float64Array, scratch: { db: Float64Array; rhs: Float64Array; sol: Float64Array },
+  C: Skyline, factor: Skyline, xi: Float64Array, dcOut: Float64Array, scratch: { db: Float64Array; rhs: Float64Array; sol: Float64Array; sqrtD?: Float64Array },
 ): Float64Array {
   const K = factor.n;
-  mulLsqrtD(C, xi, scratch.db);
+  scratch.sqrtD ??= sqrtDiagonal(C);
+  mulLsqrtD(C, xi, scratch.db, scratch.sqrtD);
   for (let c = 0; c < 3; ++c) {
     for (let k = 0; k < K; ++k) scratch.rhs[k] = scratch.db[3 * k + c];
     solveLdl(factor, scratch.rhs, scratch.sol);
@@ -169,7 +174,7 @@ export function bootstrapBands(inp: {
   const kappa = new Float64Array(R * m), tau = new Float64Array(R * m), curvatureVar = new Float64Array(m);
   const rnd = normalGenerator(inp.seed);
   const xi = new Float64Array(3 * K), dc = new Float64Array(3 * K);
-  const scratch = { db: new Float64Array(3 * K), rhs: new Float64Array(K), sol: new Float64Array(K) };
+  const scratch: { db: Float64Array; rhs: Float64Array; sol: Float64Array; sqrtD?: Float64Array } = { db: new Float64Array(3 * K), rhs: new Float64Array(K), sol: new Float64Array(K) };
   const sameFactor = kappaFit.factor === tauFit.factor;
   for (let r = 0; r < R; ++r) {
     for (let k = 0; k < 3 * K; ++k) xi[k] = rnd();

@@ -95,7 +95,7 @@ export function coefIndex(basis: SplineBasis, i: number, j: number): number {
 export function basisAt(t: number, h: number, nd: number, out: Float64Array): void {
   const t2 = t * t, t3 = t2 * t, t4 = t3 * t, t5 = t4 * t;
   const ih = 1 / h;
-  for (let j = 0; j < ORDER; ++j) {
+  for (let j = 0; j < 6; ++j) {
     const a0 = PIECES[j * 6], a1 = PIECES[j * 6 + 1], a2 = PIECES[j * 6 + 2];
     const a3 = PIECES[j * 6 + 3], a4 = PIECES[j * 6 + 4], a5 = PIECES[j * 6 + 5];
     out[j] = a0 + a1 * t + a2 * t2 + a3 * t3 + a4 * t4 + a5 * t5;

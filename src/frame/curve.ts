@@ -1,4 +1,8 @@
-import { ORDER, basisAt, coefIndex, locate, type SplineBasis } from "./bspline.js";
+import { basisAt, locate, type SplineBasis } from "./bspline.js";
+
+/** Quintic: six active basis functions per interval (local copy: imported bindings are slow in hot loops). */
+const ORDER = 6;
+const coefIndex = (basis: SplineBasis, i: number, j: number): number => (basis.periodic ? (i + j) % basis.K : i + j);
 
 /**
  * Evaluates a spline space curve and its derivatives at u:

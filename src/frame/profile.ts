@@ -7,6 +7,7 @@ import { makeBasis, type SplineBasis } from "./bspline.js";
 import { bootstrapBands, gridBasis, kappaTauAt, rhsNoiseFactor } from "./bootstrap.js";
 import { torsionLevel } from "./torsionLevel.js";
 import { arcAt, arcTable, evalCurve, kappaTau, uAtArc } from "./curve.js";
+import { canonicalFrame } from "./canonicalFrame.js";
 import { detectClosed } from "./detectClosed.js";
 import { frames } from "./frames.js";
 import { makeSmoother, selectSmoothing, solveAt, wavelengthForLambda, type Selection, type Smoother } from "./smoother.js";
@@ -27,11 +28,14 @@ export interface ProfileOptions {
   readonly lambda?: number;
   /** Curvature smoothing level: the discrepancy rule (default) or the plug-in risk of kappa. */
   readonly kappaLevel?: "discrepancy" | "risk";
+  /** Number of knot intervals (default: from the point count, then matched to the smoothing scale). */
+  readonly segments?: number;
   /** Foot-point re-parametrisation passes (default 3). */
   readonly passes?: number;
 }
 
-const MAX_SEGMENTS = 10_000;
+const MAX_SEGMENTS = 5_000;
+const KNOTS_PER_WAVELENGTH = 12;
 
 /** Number of knot intervals: rich enough for sparse traces, capped for long ones. */
 export function segmentCount(n: number, closed: boolean): number {
@@ -79,6 +83,7 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
   if (!Number.isInteger(R) || R < 0 || R > 100_000) throw new ParameterError("profile", "bootstrap", `must be an integer from 0 to 100000 (got ${R})`);
   if (!Number.isInteger(seed)) throw new ParameterError("profile", "seed", `must be an integer (got ${seed})`);
   if (options.step !== undefined && !(options.step > 0 && Number.isFinite(options.step))) throw new ParameterError("profile", "step", `must be a positive length (got ${options.step})`);
+  if (options.segments !== undefined && !(Number.isInteger(options.segments) && options.segments >= 8 && options.segments <= 100_000)) throw new ParameterError("profile", "segments", `must be an integer from 8 to 100000 (got ${options.segments})`);
   if (options.lambda !== undefined && !(options.lambda > 0)) throw new ParameterError("profile", "lambda", `must be positive (got ${options.lambda})`);
   const n = trace.xyz.length / 3;
   if (!Number.isInteger(n) || n < 6) throw new InputError(file, null, "points", `need at least 6 points for a quintic fit, got ${Math.floor(n)}`);
@@ -104,6 +109,21 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
     y[3 * i + 2] = (trace.xyz[3 * i + 2] - cz) / L0;
   }
 
+  // Rotate into the canonical frame (3D only: planar traces stay in their xy plane).
+  const Q = planar ? Float64Array.of(1, 0, 0, 0, 1, 0, 0, 0, 1) : canonicalFrame(y);
+  for (let i = 0; i < n; ++i) {
+    const a = y[3 * i], b = y[3 * i + 1], c = y[3 * i + 2];
+    y[3 * i] = Q[0] * a + Q[1] * b + Q[2] * c;
+    y[3 * i + 1] = Q[3] * a + Q[4] * b + Q[5] * c;
+    y[3 * i + 2] = Q[6] * a + Q[7] * b + Q[8] * c;
+  }
+  /** Back to the lab frame: v_lab = Q^T v. */
+  const toLab = (v: Float64Array, j: number, out: Float64Array, o: number) => {
+    const a = v[j], b = v[j + 1], c = v[j + 2];
+    out[o] = Q[0] * a + Q[3] * b + Q[6] * c;
+    out[o + 1] = Q[1] * a + Q[4] * b + Q[7] * c;
+    out[o + 2] = Q[2] * a + Q[5] * b + Q[8] * c;
+  };
   const closed = options.closed ?? trace.closed ?? detectClosed(y, diagnostics);
 
   // Initial parameter: cumulative chord length of a lightly smoothed polyline (chord lengths of raw
@@ -131,7 +151,12 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
     ? u[n - 1] + Math.hypot(y[0] - y[3 * n - 3], y[1] - y[3 * n - 2], y[2] - y[3 * n - 1])
     : u[n - 1];
   const w = new Float64Array(n).fill(1);
-  const nseg = segmentCount(n, closed);
+  const medianStep = (() => {
+    const st = new Float64Array(n - 1);
+    for (let i = 1; i < n; ++i) st[i - 1] = Math.hypot(y[3 * i] - y[3 * i - 3], y[3 * i + 1] - y[3 * i - 2], y[3 * i + 2] - y[3 * i - 1]);
+    return median(st);
+  })();
+  let nseg = options.segments ?? segmentCount(n, closed);
 
   let basis: SplineBasis = makeBasis(0, span, nseg, closed);
   let sel: Selection | undefined;
@@ -165,13 +190,21 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
       resid[i] = Math.hypot(d12[0] - y[3 * i], d12[1] - y[3 * i + 1], d12[2] - y[3 * i + 2]);
     }
     // Robust weights from the residual norms (Rayleigh median in 3D: 1.1774 sigma; half-normal in 2D: 0.6745 sigma).
-    const sc = median(resid) / (normalDims === 2 ? 1.1774 : 0.6745);
+    // Floor the scale far below any real noise (1e-4 of the median input step) so that exact,
+    // noise-free traces keep unit weights (their residuals are rounding and end effects).
+    const sc = Math.max(median(resid) / (normalDims === 2 ? 1.1774 : 0.6745), 1e-4 * medianStep);
     if (sc > 0) for (let i = 0; i < n; ++i) w[i] = robustWeight(resid[i], sc);
     // Map parameters to the arc length of the current fit.
     const table = arcTable(basis, sel.fit.coef);
     for (let i = 0; i < n; ++i) u[i] = arcAt(table, u[i], closed);
     if (closed) for (let i = 0; i < n; ++i) u[i] -= Math.floor(u[i] / table.length) * table.length;
     span = table.length;
+    // Once the smoothing scale is known, a basis with ~KNOTS_PER_WAVELENGTH intervals per resolved
+    // wavelength represents the fit as well as a richer one; fewer coefficients make every later step cheaper.
+    const wl = wavelengthForLambda(sel.fit.lambda, sm.normal.wSum / (basis.nseg * basis.h), basis.h);
+    if (pass === 0 && options.lambda === undefined && options.segments === undefined && wl > 2 * KNOTS_PER_WAVELENGTH * basis.h) {
+      nseg = Math.max(closed ? 12 : 8, Math.ceil((KNOTS_PER_WAVELENGTH * span) / wl));
+    }
     basis = makeBasis(0, span, nseg, closed);
   }
   if (!sel || !smFinal) throw new Error("unreachable");
@@ -179,7 +212,7 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
   const coef = fit.coef;
   const table = arcTable(basis, coef);
   const length = table.length;
-  if (sel.rule !== "discrepancy") diagnostics.push("smoothing: the discrepancy level could not be bracketed; used 3x the GCV level");
+  if (sel.rule !== "discrepancy") diagnostics.push("smoothing: the discrepancy level could not be bracketed (noise-free data?); used 3x the GCV level");
 
   const outliers: number[] = [];
   for (let i = 0; i < n; ++i) if (w[i] < 0.5) outliers.push(i);
@@ -208,11 +241,12 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
   const s = new Float64Array(m), x = new Float64Array(m), yy = new Float64Array(m), z = new Float64Array(m);
   const kappa = new Float64Array(m), tau = new Float64Array(m);
   const r1 = new Float64Array(3 * m), kv = new Float64Array(3 * m);
-  const kt = new Float64Array(5);
+  const kt = new Float64Array(5), pos = new Float64Array(3);
   for (let j = 0; j < m; ++j) {
     evalCurve(basis, coef, sampleU[j], 3, d12, st, sb);
     s[j] = arcAt(table, sampleU[j], closed) * L0;
-    x[j] = d12[0] * L0 + cx; yy[j] = d12[1] * L0 + cy; z[j] = d12[2] * L0 + cz;
+    toLab(d12, 0, pos, 0);
+    x[j] = pos[0] * L0 + cx; yy[j] = pos[1] * L0 + cy; z[j] = pos[2] * L0 + cz;
     kappaTau(d12, kt);
     kappa[j] = kt[0] / L0;
     tau[j] = kt[1] / L0;
@@ -226,7 +260,9 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
   const tauLo = new Float64Array(m).fill(NaN), tauHi = new Float64Array(m).fill(NaN);
   const flags = new Uint8Array(m);
   const Rb = Math.max(R, 50);
-  const gridU = m <= 4 * basis.nseg ? sampleU : uniformGrid(basis, 4 * basis.nseg, closed);
+  // The bands vary on the resolution scale: 16 grid points per resolution length suffice.
+  const gridCount = Math.min(4 * basis.nseg, Math.max(256, Math.ceil((16 * length) / resolutionInternal)));
+  const gridU = m <= gridCount ? sampleU : uniformGrid(basis, gridCount, closed);
   const tangent = new Float64Array(3 * n);
   for (let i = 0; i < n; ++i) {
     evalCurve(basis, coef, u[i], 1, d12, st, sb);
@@ -240,18 +276,26 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
     const sj = arcAt(table, gridU[j], closed);
     interior[j] = closed || (sj > resolutionInternal && sj < length - resolutionInternal) ? 1 : 0;
   }
+  // The risk sums need no more than ~1000 points: take every k-th grid point.
+  const riskGrid = (() => {
+    const stride = Math.max(1, Math.ceil(grid.m / 1000));
+    const count = Math.ceil(grid.m / stride);
+    const at = new Float64Array(count), sArc = new Float64Array(count);
+    for (let k = 0; k < count; ++k) { at[k] = gridU[k * stride]; sArc[k] = arcAt(table, at[k], closed); }
+    return { grid: stride === 1 ? grid : gridBasis(basis, at), ends: { s: sArc, length, closed, rho, h: basis.h } };
+  })();
   // Curvature level: plug-in risk of kappa from the GCV pilot (GCV undersmooths for derivatives);
   // torsion level: plug-in risk of tau from the curvature fit (see torsionLevel).
   const auto = options.lambda === undefined;
   let kFit = fit;
   if (auto && options.kappaLevel === "risk") {
     const pilotK = solveAt(smFinal, sel.lambdaGcv);
-    kFit = torsionLevel(smFinal, pilotK, C, grid, interior, seed, 0, 24, 4).fit;
+    kFit = torsionLevel(smFinal, pilotK, C, riskGrid.grid, riskGrid.ends, seed, 0, 16, 4).fit;
   }
   const planarWithinNoise = !planar && !trace.planarProjection && outOfPlaneVariance(y, w) <= sel.sigma * sel.sigma * (1 + 4 * Math.sqrt(2 / n));
   const tauChoice = planar || trace.planarProjection || !auto || planarWithinNoise
     ? { fit: kFit, factorOfPilot: 1 }
-    : torsionLevel(smFinal, kFit, C, grid, interior, seed, 1, 24);
+    : torsionLevel(smFinal, kFit, C, riskGrid.grid, riskGrid.ends, seed, 1, 24);
   const tauFit = tauChoice.fit;
   if (tauChoice.factorOfPilot !== 1) diagnostics.push(`torsion: smoothing level ${tauChoice.factorOfPilot.toPrecision(3)}x the curvature level (plug-in risk of the third derivative)`);
   if (planarWithinNoise) diagnostics.push("planar within the noise (out-of-plane spread not above the noise): torsion reported as 0 with its noise band");
@@ -322,6 +366,7 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
   for (let j = 0; j < m; ++j) resolvedMask[j] = flags[j] & FLAG_TORSION_UNDEFINED ? 0 : 1;
   const fr = frames(r1, kv, resolvedMask, closed);
   for (let j = 0; j < m; ++j) if (fr.transported[j]) flags[j] |= FLAG_FRAME_TRANSPORTED;
+  for (const f of [fr.T, fr.N, fr.B]) for (let j = 0; j < m; ++j) toLab(f, 3 * j, f, 3 * j);
   const undefinedCount = resolvedMask.reduce((a, v) => a + (v ? 0 : 1), 0);
   if (undefinedCount > 0 && !trace.planarProjection) diagnostics.push(`torsion: undefined at ${undefinedCount} of ${m} samples where the curvature cannot be told from zero (a twist-free frame is carried there)`);
   if (trace.planarProjection) diagnostics.push("planar projection: curvature is the projected curvature; torsion is not measurable");
@@ -349,6 +394,7 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
     sigma: sel.sigma * L0,
     lambda: fit.lambda,
     lambdaTorsion: tauFit.lambda,
+    segments: basis.nseg,
     edf: sel.edf,
     replicates: R,
     outliers,

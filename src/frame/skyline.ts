@@ -98,15 +98,23 @@ export function solveLdl(f: Skyline, b: Float64Array, x: Float64Array): Float64A
 }
 
 /** y = L sqrt(D) z for a factorised skyline (draws N(0, A) when z ~ N(0, I)); y must not alias z. */
-export function mulLsqrtD(f: Skyline, z: Float64Array, y: Float64Array): Float64Array {
+export function mulLsqrtD(f: Skyline, z: Float64Array, y: Float64Array, sqrtD?: Float64Array): Float64Array {
   const { n, first, offset, data } = f;
+  const sd = sqrtD ?? sqrtDiagonal(f);
   for (let i = 0; i < n; ++i) {
     const fi = first[i], oi = offset[i];
-    let s = Math.sqrt(data[oi + i - fi]) * z[i];
-    for (let k = fi; k < i; ++k) s += data[oi + k - fi] * Math.sqrt(data[offset[k] + k - first[k]]) * z[k];
+    let s = sd[i] * z[i];
+    for (let k = fi; k < i; ++k) s += data[oi + k - fi] * sd[k] * z[k];
     y[i] = s;
   }
   return y;
+}
+
+/** sqrt(D) of a factorised skyline, for repeated `mulLsqrtD` calls. */
+export function sqrtDiagonal(f: Skyline): Float64Array {
+  const out = new Float64Array(f.n);
+  for (let i = 0; i < f.n; ++i) out[i] = Math.sqrt(f.data[f.offset[i] + i - f.first[i]]);
+  return out;
 }
 
 /**
@@ -120,26 +128,28 @@ export function selectedInverse(f: Skyline): Skyline {
   // For each column c, the rows k > c whose envelope reaches c (the column pattern of L).
   const colRows: number[][] = Array.from({ length: n }, () => []);
   for (let k = 0; k < n; ++k) for (let c = first[k]; c < k; ++c) colRows[c].push(k);
-  const L = (k: number, c: number) => data[offset[k] + c - first[k]];
+  const zd = z.data;
+  const lk = new Float64Array(n);
   for (let i = n - 1; i >= 0; --i) {
     const rows = colRows[i];
+    const nr = rows.length;
+    for (let b = 0; b < nr; ++b) lk[b] = data[offset[rows[b]] + i - first[rows[b]]];
     const d = data[offset[i] + i - first[i]];
     // Off-diagonal entries Z(j, i) for rows j > i in the pattern of column i, then the diagonal.
-    for (let a = rows.length - 1; a >= 0; --a) {
+    for (let a = nr - 1; a >= 0; --a) {
       const j = rows[a];
       let s = 0;
-      for (let b = 0; b < rows.length; ++b) {
+      for (let b = 0; b < nr; ++b) {
         const k = rows[b];
-        s -= L(k, i) * skyGet(z, k, j);
+        // Z(k, j) with the larger index as the row
+        const zkj = k >= j ? zd[offset[k] + j - first[k]] : zd[offset[j] + k - first[j]];
+        s -= lk[b] * zkj;
       }
-      z.data[offset[j] + i - first[j]] = s;
+      zd[offset[j] + i - first[j]] = s;
     }
     let s = d === 0 ? 0 : 1 / d;
-    for (let b = 0; b < rows.length; ++b) {
-      const k = rows[b];
-      s -= L(k, i) * z.data[offset[k] + i - first[k]];
-    }
-    z.data[offset[i] + i - first[i]] = s;
+    for (let b = 0; b < nr; ++b) s -= lk[b] * zd[offset[rows[b]] + i - first[rows[b]]];
+    zd[offset[i] + i - first[i]] = s;
   }
   return z;
 }

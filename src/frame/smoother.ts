@@ -142,7 +142,7 @@ export function selectSmoothing(sm: Smoother, normalDims: number, fixedLambda?: 
   }
   // Coarse grid over 20 decades relative to the balance point, then golden section.
   const [lo, hi] = sm.logLambdaRange;
-  const steps = Math.max(9, Math.ceil((hi - lo) * 2) + 1);
+  const steps = Math.max(9, Math.ceil(hi - lo) + 1);
   let best = lo, bestV = Infinity;
   for (let k = 0; k < steps; ++k) {
     const x = lo + ((hi - lo) * k) / (steps - 1);

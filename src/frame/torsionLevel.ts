@@ -1,6 +1,15 @@
 import type { Skyline } from "./skyline.js";
 import { drawCoefPerturbation, kappaTauAt, normalGenerator, type GridBasis } from "./bootstrap.js";
-import { solveAt, type SmoothFit, type Smoother } from "./smoother.js";
+import { solveAt, wavelengthForLambda, type SmoothFit, type Smoother } from "./smoother.js";
+
+/** Arc length of each grid point, the curve length, and what sets the resolution length. */
+export interface EndMargin {
+  readonly s: Float64Array;
+  readonly length: number;
+  readonly closed: boolean;
+  readonly rho: number;
+  readonly h: number;
+}
 import { solveLdl } from "./skyline.js";
 
 /**
@@ -17,9 +26,10 @@ import { solveLdl } from "./skyline.js";
  * Sheather & Wand 1995, JASA 90:1257 (from memory). Cost O(levels * (K b^2 + probes (K b + m))).
  */
 export function torsionLevel(
-  sm: Smoother, pilot: SmoothFit, C: Skyline, grid: GridBasis, interior: Uint8Array, seed: number,
+  sm: Smoother, pilot: SmoothFit, C: Skyline, grid: GridBasis, ends: EndMargin, seed: number,
   quantity: 0 | 1 = 1, probes = 12, maxDecades = 5,
 ): { fit: SmoothFit; factorOfPilot: number } {
+  const interior = new Uint8Array(grid.m).fill(1);
   const K = sm.basis.K, m = grid.m;
   const d12 = new Float64Array(12), kt = new Float64Array(5);
   const rnd = normalGenerator(seed ^ 0x5bd1e995);
@@ -29,7 +39,7 @@ export function torsionLevel(
     for (let k = 0; k < 3 * K; ++k) xi[k] = rnd();
     xis.push(xi);
   }
-  const scratch = { db: new Float64Array(3 * K), rhs: new Float64Array(K), sol: new Float64Array(K) };
+  const scratch: { db: Float64Array; rhs: Float64Array; sol: Float64Array; sqrtD?: Float64Array } = { db: new Float64Array(3 * K), rhs: new Float64Array(K), sol: new Float64Array(K) };
   const dc = new Float64Array(3 * K);
   // Pilot torsion, and which grid points carry a resolved curvature (gate from the pilot's noise).
   const tauPilot = new Float64Array(m), kvec = new Float64Array(3 * m), kvar = new Float64Array(m);
@@ -45,13 +55,13 @@ export function torsionLevel(
       kvar[j] += (kt[2] - kvec[3 * j]) ** 2 + (kt[3] - kvec[3 * j + 1]) ** 2 + (kt[4] - kvec[3 * j + 2]) ** 2;
     }
   }
-  const use = new Uint8Array(m);
+  const gate = new Uint8Array(m);
   let used = 0;
   for (let j = 0; j < m; ++j) {
     const sd = Math.sqrt(kvar[j] / (2 * probes));
     const k = Math.hypot(kvec[3 * j], kvec[3 * j + 1], kvec[3 * j + 2]);
-    use[j] = interior[j] && (quantity === 0 || k > 3 * sd) && Number.isFinite(tauPilot[j]) ? 1 : 0;
-    used += use[j];
+    gate[j] = interior[j] && (quantity === 0 || k > 3 * sd) && Number.isFinite(tauPilot[j]) ? 1 : 0;
+    used += gate[j];
   }
   if (used === 0) return { fit: pilot, factorOfPilot: 1 };
   // G c_pilot, the right-hand side that reproduces the pilot curve as data.
@@ -99,6 +109,16 @@ export function torsionLevel(
   const q = (cf: Float64Array, d: Float64Array | null, j: number) => kappaTauAt(grid, cf, d, j, d12, kt)[quantity];
   const risk = (logF: number): { r: number; fit: SmoothFit } => {
     const fit = solveAt(sm, pilot.lambda * Math.pow(10, logF));
+    // Score only points farther than one resolution length of this level from an open end, as the
+    // profile flags the rest: end bias would otherwise cap the level for the interior.
+    const margin = ends.closed ? 0 : wavelengthForLambda(fit.lambda, ends.rho, ends.h);
+    const use = new Uint8Array(m);
+    let count = 0;
+    for (let j = 0; j < m; ++j) {
+      use[j] = gate[j] && ends.s[j] > margin && ends.s[j] < ends.length - margin ? 1 : 0;
+      count += use[j];
+    }
+    if (count === 0) return { r: Infinity, fit };
     const cl = smoothBy(fit.factor, Gc);
     const tl = new Float64Array(m);
     const diff = new Float64Array(m);
@@ -129,7 +149,7 @@ export function torsionLevel(
         vr += (t - tl[j]) ** 2;
       }
     }
-    return { r: bias + vr / probes, fit };
+    return { r: (bias + vr / probes) / count, fit };
   };
   let best = risk(0), bestF = 0;
   for (let e = 1; e <= 4 * maxDecades; ++e) {

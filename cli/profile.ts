@@ -1,0 +1,200 @@
+/** `twistline profile <input> --out <file>`: the geometry stage alone (trace -> kappa, tau with bands). */
+import { stat } from "node:fs/promises";
+import { dirname, extname } from "node:path";
+import type { Command } from "@commander-js/extra-typings";
+import { ParameterError } from "../src/errors.js";
+import { defaultOutputUnit } from "../src/export/outputUnit.js";
+import { profileToCsv } from "../src/export/profileToCsv.js";
+import { profileToJson } from "../src/export/profileToJson.js";
+import { sameFile } from "../src/export/sameFile.js";
+import { writeFileAtomic } from "../src/export/writeFileAtomic.js";
+import { fitProfile, type ProfileOptions } from "../src/frame/profile.js";
+import { readTraceFile, type ReadTraceOptions } from "../src/import/readTrace.js";
+import { TRACE_READERS } from "../src/import/traceReaders.js";
+import { DEFAULT_INPUT_UNIT } from "../src/import/types.js";
+import { PER_METRE, type InputUnit, type LengthUnit, type Profile, type Trace } from "../src/types.js";
+import type { Io } from "./io.js";
+import {
+  brief, parseChoiceOption, parseCountOption, parseInputUnitOption, parseLengthOption, parseLengthUnitOption, parseSeedOption,
+} from "./options.js";
+
+/** Bootstrap replicates when --bootstrap is not given. */
+export const DEFAULT_BOOTSTRAP = 200;
+/** Bootstrap seed when --seed is not given. */
+export const DEFAULT_SEED = 1;
+
+/** A checked `profile` request; lengths in metres. */
+export interface ProfileRequest {
+  readonly input: string;
+  /** A .csv or .json path, or "-" for CSV on stdout. */
+  readonly out: string;
+  readonly unit?: InputUnit;
+  readonly pixelSize?: number;
+  readonly closed?: boolean;
+  readonly bootstrap: number;
+  readonly seed: number;
+  readonly step?: number;
+  readonly outUnit?: LengthUnit;
+  readonly format?: string;
+  readonly quiet: boolean;
+}
+
+/** What a profile run produced (for the summary table of `demo`). */
+export interface ProfileOutcome {
+  readonly trace: Trace;
+  /** The fitted profile, with the import diagnostics merged into `diagnostics`. */
+  readonly profile: Profile;
+  readonly outUnit: LengthUnit;
+}
+
+/** Raw option values as commander hands them over (all text). */
+export interface ProfileFlags {
+  out: string;
+  unit?: string;
+  pixelSize?: string;
+  closed?: true;
+  open?: true;
+  bootstrap?: string;
+  seed?: string;
+  step?: string;
+  outUnit?: string;
+  format?: string;
+  quiet?: true;
+}
+
+const WHERE = "profile";
+
+/** Checks every option; throws ParameterError("profile: --option: ...") on the first bad one. */
+export function checkProfileFlags(input: string, flags: ProfileFlags): ProfileRequest {
+  const req: { -readonly [K in keyof ProfileRequest]: ProfileRequest[K] } = {
+    input,
+    out: flags.out,
+    bootstrap: flags.bootstrap === undefined ? DEFAULT_BOOTSTRAP : parseCountOption(WHERE, "--bootstrap", flags.bootstrap),
+    seed: flags.seed === undefined ? DEFAULT_SEED : parseSeedOption(WHERE, "--seed", flags.seed),
+    quiet: flags.quiet === true,
+  };
+  if (flags.unit !== undefined) req.unit = parseInputUnitOption(WHERE, "--unit", flags.unit);
+  if (flags.pixelSize !== undefined) req.pixelSize = parseLengthOption(WHERE, "--pixel-size", flags.pixelSize);
+  if (flags.closed && flags.open) throw new ParameterError(WHERE, "--closed/--open", "give one of them, not both");
+  if (flags.closed) req.closed = true;
+  if (flags.open) req.closed = false;
+  if (flags.step !== undefined) req.step = parseLengthOption(WHERE, "--step", flags.step);
+  if (flags.outUnit !== undefined) req.outUnit = parseLengthUnitOption(WHERE, "--out-unit", flags.outUnit);
+  if (flags.format !== undefined) req.format = parseChoiceOption(WHERE, "--format", flags.format, [...TRACE_READERS.keys()]);
+  if (req.unit === "px" && req.pixelSize === undefined && req.format !== "json" && extname(input).toLowerCase() !== ".json") {
+    throw new ParameterError(WHERE, "--pixel-size", "is required with --unit px (e.g. --pixel-size 2.5nm)");
+  }
+  if (req.pixelSize !== undefined && req.unit !== undefined && req.unit !== "px") {
+    throw new ParameterError(WHERE, "--pixel-size", `only applies to --unit px (got --unit ${req.unit})`);
+  }
+  const ext = extname(req.out).toLowerCase();
+  if (req.out === "") throw new ParameterError(WHERE, "--out", "must not be empty");
+  if (req.out !== "-" && ext !== ".csv" && ext !== ".json") {
+    throw new ParameterError(WHERE, "--out", `must end in .csv or .json, or be - for CSV on standard output (got ${JSON.stringify(req.out)})`);
+  }
+  return req;
+}
+
+const WRITE_PROBLEMS: Readonly<Record<string, string>> = {
+  ENOENT: "its folder does not exist",
+  ENOTDIR: "a folder on the path is not a directory",
+  EISDIR: "is a directory",
+  EACCES: "permission denied",
+  EPERM: "permission denied",
+  EROFS: "read-only file system",
+  ENOSPC: "no space left on the device",
+};
+
+/** Refuses an output that is the input, or whose folder is missing, before any work is done. */
+async function checkOutputPath(req: ProfileRequest, where: string): Promise<void> {
+  if (req.out === "-") return;
+  if (req.input !== "-" && (await sameFile(req.out, req.input))) {
+    throw new ParameterError(where, "--out", `${JSON.stringify(req.out)} is the input file; refusing to overwrite it`);
+  }
+  const folder = dirname(req.out);
+  const info = await stat(folder).catch(() => null);
+  if (info === null || !info.isDirectory()) throw new ParameterError(where, "--out", `folder ${JSON.stringify(folder)} does not exist`);
+  const existing = await stat(req.out).catch(() => null);
+  if (existing?.isDirectory()) throw new ParameterError(where, "--out", `${JSON.stringify(req.out)} is a directory`);
+}
+
+/**
+ * Runs the profile stage: read the trace, fit, write CSV or JSON (by the `--out` extension)
+ * atomically, and print a one-line summary on stderr unless quiet.
+ * @throws InputError (bad data), ParameterError (bad option or output path); anything else is a bug.
+ */
+export async function runProfile(req: ProfileRequest, io: Io, where = WHERE): Promise<ProfileOutcome> {
+  await checkOutputPath(req, where);
+
+  const readOptions: { -readonly [K in keyof ReadTraceOptions]: ReadTraceOptions[K] } = {};
+  if (req.unit !== undefined) readOptions.unit = req.unit;
+  if (req.pixelSize !== undefined) readOptions.pixelSize = req.pixelSize;
+  if (req.closed !== undefined) readOptions.closed = req.closed;
+  if (req.format !== undefined) readOptions.format = req.format;
+  if (io.readStdin !== undefined) readOptions.io = { readStdin: io.readStdin };
+  const trace = await readTraceFile(req.input, readOptions);
+
+  const fitOptions: { -readonly [K in keyof ProfileOptions]: ProfileOptions[K] } = { bootstrap: req.bootstrap, seed: req.seed };
+  if (req.closed !== undefined) fitOptions.closed = req.closed;
+  if (req.step !== undefined) fitOptions.step = req.step;
+  const fitted = fitProfile(trace, fitOptions);
+  const diagnostics = [...trace.diagnostics, ...fitted.diagnostics.filter((d) => !trace.diagnostics.includes(d))];
+  const profile: Profile = { ...fitted, diagnostics };
+
+  const outUnit = req.outUnit ?? defaultOutputUnit(trace.source);
+  const json = req.out !== "-" && extname(req.out).toLowerCase() === ".json";
+  const text = json ? profileToJson(profile, { unit: outUnit, seed: req.seed }) : profileToCsv(profile, { unit: outUnit, seed: req.seed });
+  if (req.out === "-") {
+    io.stdout(text);
+  } else {
+    try {
+      await writeFileAtomic(req.out, text, { protect: req.input === "-" ? [] : [req.input] });
+    } catch (e) {
+      const code = (e as { code?: unknown }).code;
+      if (typeof code === "string" && Object.hasOwn(WRITE_PROBLEMS, code)) {
+        throw new ParameterError(where, "--out", `cannot write ${JSON.stringify(req.out)}: ${WRITE_PROBLEMS[code]}`);
+      }
+      throw e;
+    }
+  }
+
+  if (!req.quiet) {
+    const k = PER_METRE[outUnit];
+    const u = outUnit;
+    const points = trace.xyz.length / 3;
+    const d = profile.diagnostics.length;
+    io.stderr(
+      `twistline: ${trace.source.file}: ${points} points, length ${brief(profile.length * k)} ${u}, ` +
+        `noise ${brief(profile.sigma * k)} ${u}, resolution ${brief(profile.resolution * k)} ${u}, ` +
+        `${d} ${d === 1 ? "diagnostic" : "diagnostics"}${d > 0 ? " (in the output header)" : ""}` +
+        `${req.out === "-" ? "" : `; wrote ${req.out}`}\n`,
+    );
+  }
+  return { trace, profile, outUnit };
+}
+
+/** Adds `profile` to the program. */
+export function addProfileCommand(program: Command, io: Io): void {
+  const formats = [...TRACE_READERS.keys()].join(", ");
+  program
+    .command("profile")
+    .description(
+      "fit a centre line to an ordered trace and write curvature kappa(s) and torsion tau(s) with 95% bootstrap bands " +
+        "(model estimates, not measurements)",
+    )
+    .argument("<input>", `ordered trace: ${[...TRACE_READERS.values()].flatMap((r) => r.extensions).join(" ")} file, or - for standard input`)
+    .requiredOption("--out <file>", "output: a .csv or .json file, or - for CSV on standard output")
+    .option("--unit <unit>", `unit of the input numbers: nm, um, m, A (angstrom) or px (default: the unit the file declares, else ${DEFAULT_INPUT_UNIT})`)
+    .option("--pixel-size <length>", "size of one pixel, with its unit, e.g. 2.5nm (required with --unit px)")
+    .option("--closed", "fit a closed loop")
+    .option("--open", "fit an open wire (default: the file's declaration, else detected from the ends)")
+    .option("--bootstrap <n>", `bootstrap replicates for the 95% bands, 0 for none (default: ${DEFAULT_BOOTSTRAP})`)
+    .option("--seed <n>", `seed of the bootstrap random stream, 0 to 4294967295 (default: ${DEFAULT_SEED})`)
+    .option("--step <length>", "resample at this arc-length step, with its unit, e.g. 5nm (default: one sample per input point)")
+    .option("--out-unit <unit>", "length unit of the output, nm, um, m or A; kappa and tau in 1/unit (default: the input unit; um for px)")
+    .option("--format <format>", `input format: ${formats} (default: from the file extension)`)
+    .option("--quiet", "print no summary line")
+    .action(async (input, flags) => {
+      await runProfile(checkProfileFlags(input, flags), io);
+    });
+}

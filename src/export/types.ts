@@ -1,0 +1,9 @@
+import type { LengthUnit } from "../types.js";
+
+/** Options of the profile writers. */
+export interface ProfileWriteOptions {
+  /** Length unit of the output (curvature and torsion then in 1/unit). Default: the input's unit, "um" for pixels. */
+  readonly unit?: LengthUnit;
+  /** Seed of the bootstrap stream, recorded in the output (the Profile does not carry it). */
+  readonly seed?: number;
+}

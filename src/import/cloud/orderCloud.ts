@@ -1,0 +1,358 @@
+import { InputError, ParameterError } from "../../errors.js";
+import { makeSource, formatLength, formatPoint } from "../mesh/units.js";
+import { UnionFind } from "../mesh/topology.js";
+import { KdTree } from "./kdTree.js";
+import type { CloudOptions, OrderedCloud, SideBranch } from "./types.js";
+
+function median(values: ArrayLike<number>): number {
+  const s = Float64Array.from(values).sort();
+  const n = s.length;
+  return n === 0 ? NaN : n % 2 ? s[(n - 1) / 2] : (s[n / 2 - 1] + s[n / 2]) / 2;
+}
+
+/**
+ * Orders an unordered point cloud sampled along one wire into a curve, leaving out gross outliers.
+ *
+ * Method (Lee 2000, "Curve reconstruction from unorganized points", Computer Aided Geometric Design
+ * 17:161, with the recipe of NUMERICS.md section 5 step 1):
+ * 1. k nearest neighbours (k-d tree); points whose 5th-neighbour distance is over `outlierFactor`
+ *    times the median are isolated gross outliers.
+ * 2. Euclidean minimum spanning tree of the kNN graph (Kruskal). Pieces with under 5% of the points
+ *    are outliers; if a larger second piece remains after doubling k up to 40, the cloud is not one
+ *    wire (an error).
+ * 3. The tree's diameter path (two sweeps of tree distance) is the curve's skeleton; a running mean
+ *    over `smoothFraction` of its vertices smooths it. The curve is closed when the gap between its
+ *    ends is under `closeGap` of its length (then the mean wraps around).
+ * 4. Each point's parameter is the arc length of its foot point on the smoothed path; the points
+ *    are sorted by it. Side branches of the tree that reach far from the path are either a few
+ *    stray points (outliers, left out, and the steps repeat once without them) or real structure
+ *    (a self-crossing or a branch): those are kept and reported in `sideBranches` and the
+ *    diagnostics, since the ordering is not to be trusted there.
+ *
+ * Units: metres in and out. Cost O(n log n) plus sorting the kNN edges (about k n log n).
+ * Degenerate input: fewer than 4 points, or non-finite coordinates, raise InputError.
+ * @throws {InputError} "file: points: need at least 4, got 2", "file: point 7: y: not a finite number",
+ *   "file: points: the cloud falls into 2 separate pieces of 400 and 380 points ...".
+ * @example orderCloud(shuffledHelix, "wire.xyz", { unit: "nm" }).trace // the helix points, in order
+ */
+export function orderCloud(xyz: Readonly<Float64Array>, file: string, options: CloudOptions): OrderedCloud {
+  const n = xyz.length / 3;
+  if (!Number.isInteger(n)) throw new ParameterError("orderCloud", "xyz", `length must be a multiple of 3 (got ${xyz.length})`);
+  for (let i = 0; i < xyz.length; i++) {
+    if (!Number.isFinite(xyz[i])) throw new InputError(file, null, `point ${Math.floor(i / 3) + 1}`, `${"xyz"[i % 3]}: not a finite number (${xyz[i]})`);
+  }
+  if (n < 4) throw new InputError(file, null, "points", `need at least 4, got ${n}`);
+  const factor = options.outlierFactor ?? 6;
+  const closeGap = options.closeGap ?? 0.05;
+  const smoothFraction = options.smoothFraction ?? 0.02;
+  const fmtP = (x: number, y: number, z: number) => formatPoint(x, y, z, options.unit, options.pixelSize);
+  const fmtL = (v: number) => formatLength(v, options.unit, options.pixelSize);
+  const diagnostics: string[] = [];
+  const outlier = new Uint8Array(n);
+  const tree = new KdTree(xyz);
+  let k = Math.min(options.k ?? 10, n - 1);
+  let knnIds = new Uint32Array(0), knnD2 = new Float64Array(0);
+  const findNeighbours = () => {
+    knnIds = new Uint32Array(n * k);
+    knnD2 = new Float64Array(n * k).fill(Infinity);
+    const ids = new Uint32Array(k), d2 = new Float64Array(k);
+    for (let i = 0; i < n; i++) {
+      const c = tree.knn(xyz[3 * i], xyz[3 * i + 1], xyz[3 * i + 2], k, ids, d2, i);
+      knnIds.set(ids.subarray(0, c), i * k);
+      knnD2.set(d2.subarray(0, c), i * k);
+    }
+  };
+  findNeighbours();
+  // 1. isolated points
+  const q = Math.min(5, k) - 1;
+  const dq = new Float64Array(n), d1 = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    dq[i] = Math.sqrt(knnD2[i * k + q]);
+    d1[i] = Math.sqrt(knnD2[i * k]);
+  }
+  const medDq = median(dq), medD1 = median(d1);
+  let isolated = 0;
+  for (let i = 0; i < n; i++) {
+    if (dq[i] > factor * medDq && medDq > 0) {
+      outlier[i] = 1;
+      isolated++;
+    }
+  }
+  let smallPieces = 0, strays = 0;
+  let result: ReturnType<typeof orderOnce> | undefined;
+  for (let iteration = 0; iteration < 2; iteration++) {
+    // 2. spanning tree, growing k if the graph falls apart into big pieces
+    let mst = spanningForest(n, k, knnIds, knnD2, outlier);
+    while (mst.pieces.length > 1 && mst.pieces[1].length >= 0.05 * mst.kept && k < Math.min(40, n - 1)) {
+      k = Math.min(2 * k, 40, n - 1);
+      findNeighbours();
+      mst = spanningForest(n, k, knnIds, knnD2, outlier);
+    }
+    if (mst.pieces.length > 1 && mst.pieces[1].length >= 0.05 * mst.kept) {
+      throw new InputError(
+        file, null, "points",
+        `the cloud falls into ${mst.pieces.length} separate pieces of ${mst.pieces.slice(0, 4).map((p) => p.length).join(", ")} points (even with ${k} neighbours per point): give one wire per file`,
+      );
+    }
+    for (const piece of mst.pieces.slice(1)) {
+      for (const i of piece) outlier[i] = 1;
+      smallPieces += piece.length;
+    }
+    result = orderOnce(xyz, mst, outlier, smoothFraction, closeGap, options.closed);
+    // 4. stray points in small side branches far from the curve
+    const medRho = median(result.rho);
+    const thr = Math.max(factor * medRho, 3 * medD1);
+    let found = 0;
+    for (const b of result.branches) {
+      if (b.maxRho > thr && b.members.length <= Math.max(3, 0.005 * n)) {
+        for (const i of b.members) {
+          if (result.rhoOf(i) > thr) {
+            outlier[i] = 1;
+            found++;
+          }
+        }
+      }
+    }
+    strays += found;
+    if (found === 0) break;
+  }
+  const r = result as NonNullable<typeof result>;
+  const medRho = median(r.rho);
+  const thr = Math.max(factor * medRho, 3 * medD1);
+  const sideBranches: SideBranch[] = r.branches
+    .filter((b) => b.maxRho > thr && b.members.length > Math.max(3, 0.005 * n))
+    .map((b) => ({ x: r.pathXyz[3 * b.attach], y: r.pathXyz[3 * b.attach + 1], z: r.pathXyz[3 * b.attach + 2], extent: b.maxRho, points: b.members.length }));
+  const outlierIndices: number[] = [];
+  for (let i = 0; i < n; i++) if (outlier[i]) outlierIndices.push(i);
+  if (outlierIndices.length > 0) {
+    diagnostics.push(`left out ${outlierIndices.length} gross outliers (${isolated} isolated, ${smallPieces} in small separate pieces, ${strays} stray points off the curve)`);
+  }
+  diagnostics.push(
+    `ordered ${r.order.length} points along ${r.closed ? "a closed" : "an open"} curve of length ${fmtL(r.length)} (end gap ${fmtL(r.gap)}; ${k} neighbours, running mean over ${2 * r.half + 1} path points)`,
+  );
+  for (const b of sideBranches.slice(0, 5)) {
+    diagnostics.push(`long side branch of ${b.points} points reaching ${fmtL(b.extent)} from the curve near ${fmtP(b.x, b.y, b.z)}: a self-crossing or a branch; the ordering may be wrong there`);
+  }
+  if (sideBranches.length > 5) diagnostics.push(`${sideBranches.length - 5} more long side branches`);
+  let allZero = true;
+  for (let i = 2; i < xyz.length; i += 3) if (xyz[i] !== 0) allZero = false;
+  const out = new Float64Array(3 * r.order.length);
+  r.order.forEach((i, j) => out.set(xyz.subarray(3 * i, 3 * i + 3), 3 * j));
+  return {
+    trace: {
+      xyz: out,
+      closed: r.closed,
+      dims: options.dims ?? (allZero ? 2 : 3),
+      source: makeSource(file, options.unit, options.pixelSize),
+      diagnostics,
+    },
+    outliers: outlierIndices.length,
+    outlierIndices: Uint32Array.from(outlierIndices),
+    order: r.order,
+    s: r.s,
+    path: r.pathXyz,
+    closed: r.closed,
+    sideBranches,
+  };
+}
+
+interface Forest {
+  /** Points of each piece, largest first. */
+  readonly pieces: number[][];
+  readonly kept: number;
+  /** Tree adjacency (CSR over all n points). */
+  readonly start: Uint32Array;
+  readonly to: Uint32Array;
+  readonly len: Float64Array;
+}
+
+/** Kruskal's minimum spanning forest of the kNN graph over the points not marked as outliers. */
+function spanningForest(n: number, k: number, ids: Uint32Array, d2: Float64Array, outlier: Uint8Array): Forest {
+  const cand: number[] = [];
+  for (let i = 0; i < n; i++) {
+    if (outlier[i]) continue;
+    for (let j = 0; j < k; j++) {
+      const e = i * k + j;
+      if (Number.isFinite(d2[e]) && !outlier[ids[e]]) cand.push(e);
+    }
+  }
+  const order = Uint32Array.from(cand).sort((a, b) => d2[a] - d2[b]);
+  const uf = new UnionFind(n);
+  const ea: number[] = [], eb: number[] = [], el: number[] = [];
+  for (const e of order) {
+    const a = Math.floor(e / k), b = ids[e];
+    if (uf.find(a) === uf.find(b)) continue;
+    uf.union(a, b);
+    ea.push(a);
+    eb.push(b);
+    el.push(Math.sqrt(d2[e]));
+  }
+  const start = new Uint32Array(n + 1);
+  for (let e = 0; e < ea.length; e++) {
+    start[ea[e] + 1]++;
+    start[eb[e] + 1]++;
+  }
+  for (let i = 0; i < n; i++) start[i + 1] += start[i];
+  const fill = start.slice(0, n);
+  const to = new Uint32Array(2 * ea.length), len = new Float64Array(2 * ea.length);
+  for (let e = 0; e < ea.length; e++) {
+    to[fill[ea[e]]] = eb[e];
+    len[fill[ea[e]]++] = el[e];
+    to[fill[eb[e]]] = ea[e];
+    len[fill[eb[e]]++] = el[e];
+  }
+  const groups = new Map<number, number[]>();
+  let kept = 0;
+  for (let i = 0; i < n; i++) {
+    if (outlier[i]) continue;
+    kept++;
+    const r = uf.find(i);
+    const g = groups.get(r);
+    if (g) g.push(i);
+    else groups.set(r, [i]);
+  }
+  return { pieces: [...groups.values()].sort((a, b) => b.length - a.length), kept, start, to, len };
+}
+
+/** Tree distances from `src` over the piece; returns distances (NaN off the piece) and parents. */
+function treeSweep(f: Forest, n: number, src: number): { dist: Float64Array; parent: Int32Array; far: number } {
+  const dist = new Float64Array(n).fill(NaN), parent = new Int32Array(n).fill(-1);
+  dist[src] = 0;
+  const stack = [src];
+  let far = src;
+  while (stack.length > 0) {
+    const u = stack.pop() as number;
+    if (dist[u] > dist[far]) far = u;
+    for (let s = f.start[u]; s < f.start[u + 1]; s++) {
+      const v = f.to[s];
+      if (!Number.isNaN(dist[v])) continue;
+      dist[v] = dist[u] + f.len[s];
+      parent[v] = u;
+      stack.push(v);
+    }
+  }
+  return { dist, parent, far };
+}
+
+function orderOnce(xyz: Readonly<Float64Array>, f: Forest, outlier: Uint8Array, smoothFraction: number, closeGap: number, forceClosed: boolean | undefined) {
+  const n = xyz.length / 3;
+  const piece = f.pieces[0];
+  // 3. diameter path
+  const a = treeSweep(f, n, piece[0]).far;
+  const sweep = treeSweep(f, n, a);
+  const pathIds: number[] = [];
+  for (let v = sweep.far; v !== -1; v = sweep.parent[v]) pathIds.push(v);
+  const m = pathIds.length;
+  const raw = new Float64Array(3 * m);
+  pathIds.forEach((v, i) => raw.set(xyz.subarray(3 * v, 3 * v + 3), 3 * i));
+  const half = Math.max(1, Math.round((smoothFraction * m) / 2));
+  let pathXyz = runningMean(raw, false, half);
+  let length = polyLength(pathXyz, false);
+  let gap = Math.hypot(pathXyz[0] - pathXyz[3 * m - 3], pathXyz[1] - pathXyz[3 * m - 2], pathXyz[2] - pathXyz[3 * m - 1]);
+  const closed = forceClosed ?? (m >= 8 && gap < closeGap * length);
+  if (closed) {
+    pathXyz = runningMean(raw, true, half);
+    length = polyLength(pathXyz, true);
+    gap = Math.hypot(pathXyz[0] - pathXyz[3 * m - 3], pathXyz[1] - pathXyz[3 * m - 2], pathXyz[2] - pathXyz[3 * m - 1]);
+  }
+  // cumulative arc length of the smoothed path
+  const cum = new Float64Array(m + 1);
+  for (let i = 1; i <= m; i++) {
+    const p = 3 * (i - 1), q = 3 * (i % m);
+    cum[i] = cum[i - 1] + (i < m || closed ? Math.hypot(pathXyz[q] - pathXyz[p], pathXyz[q + 1] - pathXyz[p + 1], pathXyz[q + 2] - pathXyz[p + 2]) : 0);
+  }
+  // 4. foot points
+  const pathTree = new KdTree(pathXyz);
+  const one = new Uint32Array(1), oneD = new Float64Array(1);
+  const sOf = new Float64Array(n).fill(NaN), rhoAll = new Float64Array(n).fill(NaN);
+  const segs = closed ? m : m - 1;
+  for (const i of piece) {
+    const x = xyz[3 * i], y = xyz[3 * i + 1], z = xyz[3 * i + 2];
+    pathTree.knn(x, y, z, 1, one, oneD);
+    const v = one[0];
+    let best = Math.sqrt(oneD[0]), bs = cum[v];
+    for (const sg of [v - 1, v]) {
+      const s0 = closed ? ((sg % m) + m) % m : sg;
+      if (s0 < 0 || s0 >= segs) continue;
+      const p = 3 * s0, q = 3 * ((s0 + 1) % m);
+      const dx = pathXyz[q] - pathXyz[p], dy = pathXyz[q + 1] - pathXyz[p + 1], dz = pathXyz[q + 2] - pathXyz[p + 2];
+      const l2 = dx * dx + dy * dy + dz * dz;
+      if (!(l2 > 0)) continue;
+      const tRaw = ((x - pathXyz[p]) * dx + (y - pathXyz[p + 1]) * dy + (z - pathXyz[p + 2]) * dz) / l2;
+      // beyond an open end the parameter is extrapolated, so points past the last vertex stay ordered
+      const t = Math.max(!closed && s0 === 0 ? -Infinity : 0, Math.min(!closed && s0 === segs - 1 ? Infinity : 1, tRaw));
+      const tc = Math.max(0, Math.min(1, tRaw));
+      const d = Math.hypot(x - pathXyz[p] - tc * dx, y - pathXyz[p + 1] - tc * dy, z - pathXyz[p + 2] - tc * dz);
+      if (d < best) {
+        best = d;
+        bs = cum[s0] + t * (cum[s0 + 1] - cum[s0]);
+      }
+    }
+    sOf[i] = closed && bs >= cum[m] ? bs - cum[m] : bs;
+    rhoAll[i] = best;
+  }
+  // side branches: subtrees hanging off the diameter path
+  const onPath = new Int32Array(n).fill(-1);
+  pathIds.forEach((v, i) => (onPath[v] = i));
+  const branches: { attach: number; members: number[]; maxRho: number }[] = [];
+  for (const v of pathIds) {
+    for (let s = f.start[v]; s < f.start[v + 1]; s++) {
+      const root = f.to[s];
+      if (onPath[root] !== -1) continue;
+      const members: number[] = [];
+      const stack = [root];
+      const from = new Map<number, number>([[root, v]]);
+      let maxRho = 0;
+      while (stack.length > 0) {
+        const u = stack.pop() as number;
+        members.push(u);
+        maxRho = Math.max(maxRho, rhoAll[u]);
+        for (let t = f.start[u]; t < f.start[u + 1]; t++) {
+          const w = f.to[t];
+          if (w === from.get(u)) continue;
+          from.set(w, u);
+          stack.push(w);
+        }
+      }
+      branches.push({ attach: onPath[v], members, maxRho });
+    }
+  }
+  const order = Uint32Array.from(piece).sort((p, q) => sOf[p] - sOf[q] || p - q);
+  void outlier;
+  return {
+    order,
+    s: Float64Array.from(order, (i) => sOf[i]),
+    rho: Float64Array.from(piece, (i) => rhoAll[i]),
+    rhoOf: (i: number) => rhoAll[i],
+    branches,
+    pathXyz,
+    closed,
+    length,
+    gap,
+    half,
+  };
+}
+
+function runningMean(p: Float64Array, closed: boolean, half: number): Float64Array {
+  const n = p.length / 3;
+  const out = new Float64Array(p.length);
+  for (let i = 0; i < n; i++) {
+    const w = closed ? Math.min(half, Math.floor((n - 1) / 2)) : Math.min(half, i, n - 1 - i);
+    for (let c = 0; c < 3; c++) {
+      let s = 0;
+      for (let k = -w; k <= w; k++) s += p[3 * ((((i + k) % n) + n) % n) + c];
+      out[3 * i + c] = s / (2 * w + 1);
+    }
+  }
+  return out;
+}
+
+function polyLength(p: Float64Array, closed: boolean): number {
+  const n = p.length / 3;
+  let L = 0;
+  for (let i = 1; i < n + (closed ? 1 : 0); i++) {
+    const a = 3 * (i - 1), b = 3 * (i % n);
+    L += Math.hypot(p[b] - p[a], p[b + 1] - p[a + 1], p[b + 2] - p[a + 2]);
+  }
+  return L;
+}

@@ -1,0 +1,187 @@
+import { describe, expect, it } from "vitest";
+import { InputError } from "../../../src/errors.js";
+import { orderCloud } from "../../../src/import/cloud/orderCloud.js";
+import { parseCloudText } from "../../../src/import/cloud/parseCloudText.js";
+import { readCloudPly, readCloudText } from "../../../src/import/cloud/readCloud.js";
+import { mulberry32, normalStream } from "../../support/rng.js";
+import { distancesToTruth } from "../../support/tubes.js";
+
+// Invented test clouds, lengths in nm converted to m. Truth: the curve the points were drawn from.
+const NM = 1e-9;
+type Fn = (t: number) => [number, number, number];
+const helix: Fn = (t) => [60 * Math.cos(4 * Math.PI * t), 60 * Math.sin(4 * Math.PI * t), 80 * t]; // 2 turns, length 765 nm
+const ring: Fn = (t) => [100 * Math.cos(2 * Math.PI * t), 100 * Math.sin(2 * Math.PI * t), 20 * Math.sin(6 * Math.PI * t)];
+
+function sample(f: Fn, n: number, closed: boolean, noise: number, seed: number): Float64Array {
+  const g = normalStream(seed);
+  const out = new Float64Array(3 * n);
+  for (let i = 0; i < n; i++) {
+    const p = f(closed ? i / n : i / (n - 1));
+    for (let c = 0; c < 3; c++) out[3 * i + c] = (p[c] + noise * g()) * NM;
+  }
+  return out;
+}
+
+function shuffle(xyz: Float64Array, seed: number): { xyz: Float64Array; perm: number[] } {
+  const n = xyz.length / 3, rnd = mulberry32(seed);
+  const perm = Array.from({ length: n }, (_, i) => i);
+  for (let i = n - 1; i > 0; i--) {
+    const j = Math.floor(rnd() * (i + 1));
+    [perm[i], perm[j]] = [perm[j], perm[i]];
+  }
+  const out = new Float64Array(xyz.length);
+  perm.forEach((p, i) => out.set(xyz.subarray(3 * p, 3 * p + 3), 3 * i));
+  return { xyz: out, perm };
+}
+
+function truth(f: Fn, n: number): Float64Array {
+  const out = new Float64Array(3 * (n + 1));
+  for (let i = 0; i <= n; i++) out.set(f(i / n).map((v) => v * NM), 3 * i);
+  return out;
+}
+
+/** Symmetric Hausdorff distance between two polylines (vertex-to-polyline both ways). */
+function hausdorff(a: Float64Array, b: Float64Array): number {
+  return Math.max(Math.max(...distancesToTruth(a, b).dist), Math.max(...distancesToTruth(b, a).dist));
+}
+
+describe("orderCloud(xyz, file, options)", () => {
+  it("recovers the true order of a shuffled noise-free helix, up to reversal", () => {
+    const { xyz, perm } = shuffle(sample(helix, 800, false, 0, 1), 2);
+    const r = orderCloud(xyz, "h.xyz", { unit: "nm" });
+    const rank = Array.from(r.order, (o) => perm[o]);
+    const forward = rank[0] < rank[rank.length - 1];
+    expect(rank).toEqual(Array.from({ length: 800 }, (_, i) => (forward ? i : 799 - i)));
+    expect(r.closed).toBe(false);
+    expect(r.outliers).toBe(0);
+    expect(r.trace.dims).toBe(3);
+    expect(r.trace.source).toEqual({ file: "h.xyz", unit: "nm" });
+  });
+
+  it("recovers a closed ring as closed, in cyclic order up to rotation and reversal", () => {
+    const { xyz, perm } = shuffle(sample(ring, 600, true, 0, 1), 3);
+    const r = orderCloud(xyz, "r.xyz", { unit: "nm" });
+    expect(r.closed).toBe(true);
+    const rank = Array.from(r.order, (o) => perm[o]);
+    const step = (rank[1] - rank[0] + 600) % 600 === 1 ? 1 : -1;
+    for (let i = 1; i < 600; i++) expect((rank[i] - rank[i - 1] + 600 * 2) % 600).toBe(step === 1 ? 1 : 599);
+  });
+
+  it("rejects gross outliers, counts them, and orders a noisy cloud close to the truth", () => {
+    // noise sd 2 nm = 2.1 sample spacings; 10 gross outliers (1%) uniform in a 300 nm box
+    const clean = sample(helix, 1000, false, 2, 4);
+    const rnd = mulberry32(9);
+    const withOut = new Float64Array(clean.length + 30);
+    withOut.set(clean);
+    for (let i = 0; i < 30; i++) withOut[clean.length + i] = (rnd() - 0.5) * 300 * NM;
+    const { xyz, perm } = shuffle(withOut, 5);
+    const r = orderCloud(xyz, "n.xyz", { unit: "nm" });
+    expect(r.outliers).toBe(10);
+    expect([...r.outlierIndices].map((i) => perm[i]).every((p) => p >= 1000)).toBe(true);
+    expect(r.trace.diagnostics[0]).toMatch(/^left out 10 gross outliers \(\d+ isolated, 0 in small separate pieces, \d+ stray points off the curve\)$/);
+    // the smoothed ordering path is within about one noise sd of the true curve, and covers it
+    // (away from the ends, where the running-mean window shrinks to a single noisy point)
+    const inner = truth(helix, 4000).subarray(3 * 80, 3 * 3921);
+    const { dist, foot } = distancesToTruth(r.path, truth(helix, 4000));
+    const pathToTruth = Math.max(...dist.filter((_, i) => foot[i] > 0.02 && foot[i] < 0.98));
+    const truthToPath = Math.max(...distancesToTruth(inner, r.path).dist);
+    expect(Math.max(pathToTruth, truthToPath) / NM).toBeLessThan(4); // measured 2.8 nm (noise sd 2 nm)
+    // including the ends (one noisy point each): measured 7.3 nm, about 2 sd in 3D
+    expect(hausdorff(r.path, truth(helix, 4000)) / NM).toBeLessThan(12);
+    // the recovered order is the true order up to local swaps within the noise: rank jumps stay small
+    const rank = Array.from(r.order, (o) => perm[o]);
+    let maxJump = 0;
+    for (let i = 1; i < rank.length; i++) maxJump = Math.max(maxJump, Math.abs(rank[i] - rank[i - 1]));
+    expect(maxJump).toBeLessThan(25); // measured 12 (2 nm noise spans about 5 spacings either way)
+    // a running mean of the ordered points (window 9) lies close to the truth too
+    const n = r.trace.xyz.length / 3, sm = new Float64Array(3 * (n - 8));
+    for (let i = 4; i < n - 4; i++) for (let c = 0; c < 3; c++) {
+      let s = 0;
+      for (let k = -4; k <= 4; k++) s += r.trace.xyz[3 * (i + k) + c];
+      sm[3 * (i - 4) + c] = s / 9;
+    }
+    expect(Math.max(...distancesToTruth(sm, truth(helix, 4000)).dist) / NM).toBeLessThan(4); // measured 2.8 nm
+  });
+
+  it("gives the same order after a rotation and translation (rigid-motion invariance)", () => {
+    const { xyz } = shuffle(sample(helix, 500, false, 1, 6), 7);
+    const a = orderCloud(xyz, "a.xyz", { unit: "nm" });
+    const c = Math.cos(1.1), s = Math.sin(1.1);
+    const moved = new Float64Array(xyz.length);
+    for (let i = 0; i < xyz.length; i += 3) {
+      moved[i] = c * xyz[i] - s * xyz[i + 2] + 3e-6;
+      moved[i + 1] = xyz[i + 1] - 2e-6;
+      moved[i + 2] = s * xyz[i] + c * xyz[i + 2] + 1e-6;
+    }
+    const b = orderCloud(moved, "b.xyz", { unit: "nm" });
+    const same = [...b.order].every((v, i) => v === a.order[i]) || [...b.order].every((v, i) => v === a.order[a.order.length - 1 - i]);
+    expect(same).toBe(true);
+  });
+
+  it("warns about a long side branch (a branched or self-crossing cloud) and names where", () => {
+    const pts: number[] = [];
+    for (let i = 0; i <= 300; i++) pts.push((i - 150) * NM, 0, 0); // bar along x
+    for (let i = 1; i <= 80; i++) pts.push(0, i * NM, 0); // a branch along y from the middle
+    const r = orderCloud(Float64Array.from(pts), "t.xyz", { unit: "nm" });
+    expect(r.sideBranches).toHaveLength(1);
+    const d = r.trace.diagnostics.find((x) => x.startsWith("long side branch"));
+    expect(d).toMatch(/^long side branch of \d+ points reaching [\d.]+ nm from the curve near \(.*\) nm: a self-crossing or a branch; the ordering may be wrong there$/);
+    expect(Math.hypot(r.sideBranches[0].x, r.sideBranches[0].y) / NM).toBeLessThan(90); // attached near the junction
+  });
+
+  it("fails clearly on too few points, non-finite values and a cloud in two pieces", () => {
+    const err = (f: () => unknown) => {
+      try {
+        f();
+      } catch (e) {
+        expect(e).toBeInstanceOf(InputError);
+        return (e as Error).message;
+      }
+      return "no error";
+    };
+    expect(err(() => orderCloud(new Float64Array(6), "f.xyz", { unit: "nm" }))).toBe("f.xyz: points: need at least 4, got 2");
+    expect(err(() => orderCloud(Float64Array.from([0, 0, 0, 1, NaN, 0, 2, 0, 0, 3, 0, 0]), "f.xyz", { unit: "nm" }))).toBe("f.xyz: point 2: y: not a finite number (NaN)");
+    const two = new Float64Array(3 * 400);
+    for (let i = 0; i < 200; i++) {
+      two.set([i * NM, 0, 0], 3 * i);
+      two.set([i * NM, 5000 * NM, 0], 3 * (200 + i));
+    }
+    expect(err(() => orderCloud(two, "two.xyz", { unit: "nm" }))).toBe(
+      "two.xyz: points: the cloud falls into 2 separate pieces of 200, 200 points (even with 40 neighbours per point): give one wire per file",
+    );
+  });
+});
+
+describe("parseCloudText(text, file, options) and the cloud readers", () => {
+  it("reads xyz and csv text with a header, comments and units", () => {
+    const { xyz, dims } = parseCloudText("x,y,z\n# a comment\n1,2,3\n4;5;6\n7 8 9 # end\n", "c.csv", { unit: "um" });
+    expect([...xyz]).toEqual([1, 2, 3, 4, 5, 6, 7, 8, 9].map((v) => v / 1e6));
+    expect(dims).toBe(3);
+    expect(parseCloudText("1 2\n3 4\n", "c.xy", { unit: "nm" }).dims).toBe(2);
+  });
+
+  it("fails clearly on bad values, naming the line", () => {
+    const err = (text: string) => {
+      try {
+        parseCloudText(text, "c.xyz", { unit: "nm" });
+      } catch (e) {
+        expect(e).toBeInstanceOf(InputError);
+        return (e as Error).message;
+      }
+      return "no error";
+    };
+    expect(err("1 2 3\n4 5 1.2e\n")).toBe('c.xyz:2: z: not a finite number: "1.2e"');
+    expect(err("1 2 3\n4 5 6 7\n")).toBe("c.xyz:2: point: expected 3 values like the first point, got 4");
+    expect(err("# nothing\n")).toBe("c.xyz: points: none");
+  });
+
+  it("orders the points of an XYZ file and of a PLY vertex file into one trace", () => {
+    const { xyz } = shuffle(sample(helix, 300, false, 0, 1), 8);
+    const text = Array.from({ length: 300 }, (_, i) => `${xyz[3 * i] / NM} ${xyz[3 * i + 1] / NM} ${xyz[3 * i + 2] / NM}`).join("\n");
+    const [a] = readCloudText(text, "c.xyz", { unit: "nm" });
+    expect(a.xyz.length).toBe(900);
+    const ply = `ply\nformat ascii 1.0\nelement vertex 300\nproperty double x\nproperty double y\nproperty double z\nend_header\n${text}\n`;
+    const [b] = readCloudPly(ply, "c.ply", { unit: "nm" });
+    for (let i = 0; i < 900; i++) expect(Math.abs(b.xyz[i] - a.xyz[i])).toBeLessThan(1e-20);
+  });
+});
