@@ -5,7 +5,7 @@ const ORDER = 6;
 const coefIndex = (basis: SplineBasis, i: number, j: number): number => (basis.periodic ? (i + j) % basis.K : i + j);
 import { kappaTau } from "./curve.js";
 import { envelope } from "./design.js";
-import { factorLdl, makeSkyline, mulLsqrtD, skyAdd, solveLdl, sqrtDiagonal, type Skyline } from "./skyline.js";
+import { factorLdl, makeSkyline, mulLsqrtD, solveLdl, sqrtDiagonal, type Skyline } from "./skyline.js";
 
 /** Replicates on the evaluation points, replicate-major: kappa[r * m + j]. */
 export interface BootstrapOutput {
@@ -85,7 +85,9 @@ export function rhsNoiseFactor(
           for (let c = 0; c < 3; ++c) {
             const r = 3 * mj + a, q = 3 * mk + c;
             if (j === k && q > r) continue; // diagonal block: lower half only
-            skyAdd(C, r, q, v * Pm[3 * a + c]);
+            // Inlined skyAdd (hot loop).
+            if (q <= r) C.data[C.offset[r] + q - C.first[r]] += v * Pm[3 * a + c];
+            else C.data[C.offset[q] + r - C.first[q]] += v * Pm[3 * a + c];
           }
         }
       }

@@ -55,7 +55,12 @@ export function normalEquations(
       rhs[m] += bj * x;
       rhs[K + m] += bj * y;
       rhs[2 * K + m] += bj * z;
-      for (let k = 0; k <= j; ++k) skyAdd(G, m, idx[k], bj * b[k]);
+      for (let k = 0; k <= j; ++k) {
+        // Inlined skyAdd (hot loop): entry (max, min) of the lower envelope.
+        const q = idx[k];
+        if (q <= m) G.data[G.offset[m] + q - G.first[m]] += bj * b[k];
+        else G.data[G.offset[q] + m - G.first[q]] += bj * b[k];
+      }
     }
   }
   return { G, rhs, yWy, wSum };

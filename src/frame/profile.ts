@@ -36,6 +36,7 @@ export interface ProfileOptions {
 
 const MAX_SEGMENTS = 5_000;
 const KNOTS_PER_WAVELENGTH = 12;
+const INITIAL_SEGMENTS_CAP = 1500;
 
 /** Number of knot intervals: rich enough for sparse traces, capped for long ones. */
 export function segmentCount(n: number, closed: boolean): number {
@@ -156,7 +157,9 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
     for (let i = 1; i < n; ++i) st[i - 1] = Math.hypot(y[3 * i] - y[3 * i - 3], y[3 * i + 1] - y[3 * i - 2], y[3 * i + 2] - y[3 * i - 1]);
     return median(st);
   })();
-  let nseg = options.segments ?? segmentCount(n, closed);
+  // Large traces start on a coarser basis; the first pass's smoothing scale then sets the knots.
+  const fullSegments = segmentCount(n, closed);
+  let nseg = options.segments ?? Math.min(fullSegments, INITIAL_SEGMENTS_CAP);
 
   let basis: SplineBasis = makeBasis(0, span, nseg, closed);
   let sel: Selection | undefined;
@@ -165,7 +168,8 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
   const resid = new Float64Array(n);
   for (let pass = 0; pass <= passes; ++pass) {
     const sm = makeSmoother(basis, u, y, w);
-    sel = selectSmoothing(sm, normalDims, options.lambda);
+    // Each pass starts its GCV search near the previous level (same knots: the levels compare).
+    sel = selectSmoothing(sm, normalDims, options.lambda, sel && sel.basisSegments === nseg ? Math.log10(sel.lambdaGcv) : undefined);
     smFinal = sm;
     if (pass === passes) break;
     // Foot-point projection: Newton on |r(u) - p|^2, steps limited to one knot interval.
@@ -183,7 +187,7 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
         else if (du < -basis.h) du = -basis.h;
         ui += du;
         if (!closed) ui = Math.min(Math.max(ui, basis.u0), basis.u0 + basis.nseg * basis.h);
-        if (Math.abs(du) < 1e-10 * basis.h) break;
+        if (Math.abs(du) < 1e-7 * basis.h) break;
       }
       u[i] = ui;
       evalCurve(basis, coef, ui, 0, d12, st, sb);
@@ -202,8 +206,12 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
     // Once the smoothing scale is known, a basis with ~KNOTS_PER_WAVELENGTH intervals per resolved
     // wavelength represents the fit as well as a richer one; fewer coefficients make every later step cheaper.
     const wl = wavelengthForLambda(sel.fit.lambda, sm.normal.wSum / (basis.nseg * basis.h), basis.h);
-    if (pass === 0 && options.lambda === undefined && options.segments === undefined && wl > 2 * KNOTS_PER_WAVELENGTH * basis.h) {
-      nseg = Math.max(closed ? 12 : 8, Math.ceil((KNOTS_PER_WAVELENGTH * span) / wl));
+    if (options.lambda === undefined && options.segments === undefined) {
+      const want = Math.ceil((KNOTS_PER_WAVELENGTH * span) / wl);
+      // Shrink when the basis is much richer than the smoothing scale; grow back (up to the
+      // point-count rule) when a coarse first pass turns out too coarse.
+      if (wl > 2 * KNOTS_PER_WAVELENGTH * basis.h) nseg = Math.max(closed ? 12 : 8, want);
+      else if (wl < KNOTS_PER_WAVELENGTH * basis.h / 2) nseg = Math.min(fullSegments, Math.max(nseg, want));
     }
     basis = makeBasis(0, span, nseg, closed);
   }
@@ -278,7 +286,7 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
   }
   // The risk sums need no more than ~1000 points: take every k-th grid point.
   const riskGrid = (() => {
-    const stride = Math.max(1, Math.ceil(grid.m / 1000));
+    const stride = Math.max(1, Math.ceil(grid.m / 600));
     const count = Math.ceil(grid.m / stride);
     const at = new Float64Array(count), sArc = new Float64Array(count);
     for (let k = 0; k < count; ++k) { at[k] = gridU[k * stride]; sArc[k] = arcAt(table, at[k], closed); }
@@ -295,7 +303,7 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
   const planarWithinNoise = !planar && !trace.planarProjection && outOfPlaneVariance(y, w) <= sel.sigma * sel.sigma * (1 + 4 * Math.sqrt(2 / n));
   const tauChoice = planar || trace.planarProjection || !auto || planarWithinNoise
     ? { fit: kFit, factorOfPilot: 1 }
-    : torsionLevel(smFinal, kFit, C, riskGrid.grid, riskGrid.ends, seed, 1, 24);
+    : torsionLevel(smFinal, kFit, C, riskGrid.grid, riskGrid.ends, seed, 1, 16);
   const tauFit = tauChoice.fit;
   if (tauChoice.factorOfPilot !== 1) diagnostics.push(`torsion: smoothing level ${tauChoice.factorOfPilot.toPrecision(3)}x the curvature level (plug-in risk of the third derivative)`);
   if (planarWithinNoise) diagnostics.push("planar within the noise (out-of-plane spread not above the noise): torsion reported as 0 with its noise band");

@@ -125,9 +125,7 @@ export function sqrtDiagonal(f: Skyline): Float64Array {
 export function selectedInverse(f: Skyline): Skyline {
   const { n, first, offset, data } = f;
   const z = { n, first, offset, data: new Float64Array(data.length) };
-  // For each column c, the rows k > c whose envelope reaches c (the column pattern of L).
-  const colRows: number[][] = Array.from({ length: n }, () => []);
-  for (let k = 0; k < n; ++k) for (let c = first[k]; c < k; ++c) colRows[c].push(k);
+  const colRows = columnPattern(first);
   const zd = z.data;
   const lk = new Float64Array(n);
   for (let i = n - 1; i >= 0; --i) {
@@ -152,4 +150,20 @@ export function selectedInverse(f: Skyline): Skyline {
     zd[offset[i] + i - first[i]] = s;
   }
   return z;
+}
+
+const patternCache = new WeakMap<Int32Array, Int32Array[]>();
+
+/** For each column c, the rows k > c whose envelope reaches c (the column pattern of L); cached per envelope. */
+function columnPattern(first: Int32Array): Int32Array[] {
+  const hit = patternCache.get(first);
+  if (hit) return hit;
+  const n = first.length;
+  const counts = new Int32Array(n);
+  for (let k = 0; k < n; ++k) for (let c = first[k]; c < k; ++c) ++counts[c];
+  const rows = Array.from({ length: n }, (_, c) => new Int32Array(counts[c]));
+  counts.fill(0);
+  for (let k = 0; k < n; ++k) for (let c = first[k]; c < k; ++c) rows[c][counts[c]++] = k;
+  patternCache.set(first, rows);
+  return rows;
 }

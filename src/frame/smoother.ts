@@ -105,6 +105,8 @@ export interface Selection {
   readonly lambdaGcv: number;
   readonly edfGcv: number;
   readonly rule: "discrepancy" | "gcv-x3";
+  /** Knot intervals of the basis the levels refer to. */
+  readonly basisSegments: number;
 }
 
 /**
@@ -117,7 +119,7 @@ export interface Selection {
  *    Reinsch 1967, Numer. Math. 10:177): it smooths more than GCV, which derivatives want.
  * Falls back to 3 lambda_GCV when the discrepancy search fails to bracket.
  */
-export function selectSmoothing(sm: Smoother, normalDims: number, fixedLambda?: number): Selection {
+export function selectSmoothing(sm: Smoother, normalDims: number, fixedLambda?: number, hintLogGcv?: number): Selection {
   const n = sm.normal.wSum;
   const cache = new Map<number, { fit: SmoothFit; edf: number }>();
   const evalGcv = (logL: number) => {
@@ -138,16 +140,24 @@ export function selectSmoothing(sm: Smoother, normalDims: number, fixedLambda?: 
     const fit = solveAt(sm, fixedLambda);
     const edf = edfOf(sm, fit);
     const sigma = Math.sqrt(fit.rss / (normalDims * Math.max(n - edf, 1)));
-    return { fit, edf, sigma, lambdaGcv: fixedLambda, edfGcv: edf, rule: "discrepancy" };
+    return { fit, edf, sigma, lambdaGcv: fixedLambda, edfGcv: edf, rule: "discrepancy", basisSegments: sm.basis.nseg };
   }
   // Coarse grid over 20 decades relative to the balance point, then golden section.
-  const [lo, hi] = sm.logLambdaRange;
-  const steps = Math.max(9, Math.ceil(hi - lo) + 1);
+  // With a hint (the previous pass's GCV level), search four decades around it.
+  const [lo0, hi0] = sm.logLambdaRange;
+  const lo = hintLogGcv === undefined ? lo0 : Math.max(lo0, hintLogGcv - 3);
+  const hi = hintLogGcv === undefined ? hi0 : Math.min(hi0, hintLogGcv + 3);
+  // GCV is smooth in log lambda: a 1.5-decade grid, then golden section around the best point.
+  const steps = Math.max(7, Math.ceil((hi - lo) / 1.5) + 1);
   let best = lo, bestV = Infinity;
   for (let k = 0; k < steps; ++k) {
     const x = lo + ((hi - lo) * k) / (steps - 1);
     const v = gcv(x);
     if (v < bestV) { bestV = v; best = x; }
+  }
+  // A minimum on the edge of a hinted window means the hint was off: search the whole range.
+  if (hintLogGcv !== undefined && (best <= lo + 1e-9 || best >= hi - 1e-9) && (lo > lo0 || hi < hi0)) {
+    return selectSmoothing(sm, normalDims, undefined, undefined);
   }
   const dx = (hi - lo) / (steps - 1);
   let a = Math.max(lo, best - dx), b = Math.min(hi, best + dx);
@@ -182,5 +192,5 @@ export function selectSmoothing(sm: Smoother, normalDims: number, fixedLambda?: 
     }
     fit = solveAt(sm, Math.pow(10, left));
   }
-  return { fit, edf: edfOf(sm, fit), sigma: Math.sqrt(sigma2), lambdaGcv: Math.pow(10, xg), edfGcv: gFit.edf, rule };
+  return { fit, edf: edfOf(sm, fit), sigma: Math.sqrt(sigma2), lambdaGcv: Math.pow(10, xg), edfGcv: gFit.edf, rule, basisSegments: sm.basis.nseg };
 }

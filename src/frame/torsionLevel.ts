@@ -151,12 +151,18 @@ export function torsionLevel(
     }
     return { r: (bias + vr / probes) / count, fit };
   };
+  // Half-decade scan, then the quarter decades on either side of the best point.
   let best = risk(0), bestF = 0;
-  for (let e = 1; e <= 4 * maxDecades; ++e) {
-    const f = e / 4;
+  for (let e = 1; e <= 2 * maxDecades; ++e) {
+    const f = e / 2;
     const v = risk(f);
     if (v.r < best.r) { best = v; bestF = f; }
-    else if (e - 4 * bestF >= 8) break;
+    else if (f - bestF >= 2) break;
+  }
+  for (const f of [bestF - 0.25, bestF + 0.25]) {
+    if (f < 0) continue;
+    const v = risk(f);
+    if (v.r < best.r) { best = v; bestF = f; }
   }
   return { fit: best.fit, factorOfPilot: Math.pow(10, bestF) };
 }
