@@ -47,6 +47,7 @@ export const FLAG_TORSION_UNDEFINED = 1; // kappa cannot be told from 0: tau is 
 export const FLAG_FRAME_TRANSPORTED = 2; // N, B come from the twist-free (parallel-transport) frame
 export const FLAG_END = 4; // within one resolution length of an open end: bias is larger there
 export const FLAG_TORSION_NOT_MEASURABLE = 8; // planar projection: torsion cannot be measured
+export const FLAG_BIAS = 16; // smoothing bias comparable to the band: the band may under-cover (feature near the resolution)
 
 /**
  * Curvature and torsion profile of a fitted wire. All arrays have one entry per sample.

@@ -1,6 +1,6 @@
 import { ParameterError, InputError } from "../errors.js";
 import {
-  FLAG_END, FLAG_FRAME_TRANSPORTED, FLAG_TORSION_NOT_MEASURABLE, FLAG_TORSION_UNDEFINED,
+  FLAG_BIAS, FLAG_END, FLAG_FRAME_TRANSPORTED, FLAG_TORSION_NOT_MEASURABLE, FLAG_TORSION_UNDEFINED,
   type Profile, type Trace,
 } from "../types.js";
 import { makeBasis, type SplineBasis } from "./bspline.js";
@@ -331,6 +331,7 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
     gt[j] = kappaTauAt(grid, tauFit.coef, null, j, d12, kt)[1];
   }
   // Quantile offsets on the grid (R-7 quantiles, as numpy's default).
+  const kBias = new Float64Array(g);
   const kLoOff = new Float64Array(g), kHiOff = new Float64Array(g), tLoOff = new Float64Array(g), tHiOff = new Float64Array(g);
   const col = new Float64Array(Rb);
   const q = (sorted: Float64Array, p: number) => {
@@ -340,10 +341,15 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
   for (let j = 0; j < g; ++j) {
     for (let r = 0; r < Rb; ++r) col[r] = boot.kappa[r * g + j];
     col.sort();
-    kLoOff[j] = q(col, 0.025) - gk[j]; kHiOff[j] = q(col, 0.975) - gk[j];
+    // Bias-aware widening: if bias grows linearly with the level, the quarter-level fit keeps a
+    // third of the difference d between it and the full-level fit, on d's side (a Richardson step).
+    const dK = (kappaTauAt(grid, bandK.coef, null, j, d12, kt)[0] - gk[j]) / 3;
+    kBias[j] = Math.abs(3 * dK);
+    kLoOff[j] = q(col, 0.025) - gk[j] + Math.min(0, dK); kHiOff[j] = q(col, 0.975) - gk[j] + Math.max(0, dK);
     for (let r = 0; r < Rb; ++r) col[r] = boot.tau[r * g + j];
     col.sort();
-    tLoOff[j] = q(col, 0.025) - gt[j]; tHiOff[j] = q(col, 0.975) - gt[j];
+    const dT = (kappaTauAt(grid, bandT.coef, null, j, d12, kt)[1] - gt[j]) / 3;
+    tLoOff[j] = q(col, 0.025) - gt[j] + Math.min(0, dT || 0); tHiOff[j] = q(col, 0.975) - gt[j] + Math.max(0, dT || 0);
   }
   const interp = (arr: Float64Array, j: number, k: number, f: number) => arr[k] + f * (arr[Math.min(k + 1, g - 1)] - arr[k]);
   const gridPos = locateOnGrid(gridU, sampleU, closed, basis);
@@ -355,6 +361,8 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
     if (R > 0) {
       kappaLo[j] = Math.max(0, kappa[j] + interp(kLoOff, j, k, f) / L0);
       kappaHi[j] = kappa[j] + interp(kHiOff, j, k, f) / L0;
+      // Bias check: the quarter-level fit moved by more than the band's half-width.
+      if (interp(kBias, j, k, f) / L0 > 0.5 * (kappaHi[j] - kappaLo[j])) flags[j] |= FLAG_BIAS;
     }
     if (trace.planarProjection) {
       flags[j] |= FLAG_TORSION_NOT_MEASURABLE;
@@ -377,6 +385,9 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
   for (const f of [fr.T, fr.N, fr.B]) for (let j = 0; j < m; ++j) toLab(f, 3 * j, f, 3 * j);
   const undefinedCount = resolvedMask.reduce((a, v) => a + (v ? 0 : 1), 0);
   if (undefinedCount > 0 && !trace.planarProjection) diagnostics.push(`torsion: undefined at ${undefinedCount} of ${m} samples where the curvature cannot be told from zero (a twist-free frame is carried there)`);
+  let biased = 0;
+  for (let j = 0; j < m; ++j) if (flags[j] & FLAG_BIAS && !(flags[j] & FLAG_END)) ++biased;
+  if (biased > 0) diagnostics.push(`bands: at ${biased} of ${m} samples the curvature changes by more than its band when smoothed less (a feature near the resolution length): the bands may under-cover there`);
   if (trace.planarProjection) diagnostics.push("planar projection: curvature is the projected curvature; torsion is not measurable");
 
   let kappaSamples: Float64Array | undefined, tauSamples: Float64Array | undefined;

@@ -1,8 +1,8 @@
 import { describe, expect, it } from "vitest";
 import { fitProfile } from "../../src/frame/profile.js";
-import { FLAG_END, FLAG_TORSION_UNDEFINED, type Profile, type Trace } from "../../src/types.js";
+import { FLAG_BIAS, FLAG_END, FLAG_TORSION_UNDEFINED, type Profile, type Trace } from "../../src/types.js";
 import {
-  circleCurve, cornuCurve, ellipseCurve, helixCurve, rigidMotion, sampleCurve, vivianiCurve, type TestCurve,
+  bumpCurve, circleCurve, cornuCurve, ellipseCurve, helixCurve, rigidMotion, sampleCurve, vivianiCurve, type TestCurve,
 } from "../support/curves.js";
 import { normalStream } from "../support/rng.js";
 
@@ -208,6 +208,21 @@ describe("fitProfile: bands, degenerate input, robustness", () => {
     expect(Math.abs(meanK / k0 - 1)).toBeLessThan(0.05); // measured 0.02
     expect(Math.abs(meanT / t0 - 1)).toBeLessThan(0.15); // measured 0.13
     expect(meanT).toBeGreaterThan(0);
+  });
+
+  it("flags a curvature peak narrower than the resolution as bias-dominated, and a smooth helix not", () => {
+    // Planar wire y = 0.6 exp(-x^2): curvature peak 2 * 0.6 = 1.2 at x = 0 (second derivative of the
+    // Gaussian; common practice), narrower than the fit's resolution at 1% noise.
+    const bump = bumpCurve(10, 0.6, 1);
+    const { xyz } = sampleCurve(bump, 1000, 0.01 * bump.radius, 1);
+    const p = fitProfile(trace(xyz, { closed: false }), { bootstrap: 100 });
+    const j = p.n >> 1;
+    expect(p.resolution).toBeGreaterThan(1); // measured 1.30: the peak (width ~0.7) is below it
+    expect(p.kappa[j]).toBeLessThan(1.2); // smoothed away: measured 1.07
+    expect(p.flags[j] & FLAG_BIAS).toBe(FLAG_BIAS);
+    expect(p.diagnostics.some((d) => d.startsWith("bands: at "))).toBe(true);
+    const h = fitCurve(helixCurve(1, 0.4, 4), 1000, 0.01, 7);
+    expect(interior(h).filter((i) => h.flags[i] & FLAG_BIAS).length).toBe(0);
   });
 
   it("rejects too few points with a message naming the file", () => {
