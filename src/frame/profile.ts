@@ -209,9 +209,10 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
     if (options.lambda === undefined && options.segments === undefined) {
       const want = Math.ceil((KNOTS_PER_WAVELENGTH * span) / wl);
       // Shrink when the basis is much richer than the smoothing scale; grow back (up to the
-      // point-count rule) when a coarse first pass turns out too coarse.
+      // point-count rule) when the basis is too coarse, but not after the first pass, whose
+      // parameters are still noisy and whose level is too low.
       if (wl > 2 * KNOTS_PER_WAVELENGTH * basis.h) nseg = Math.max(closed ? 12 : 8, want);
-      else if (wl < KNOTS_PER_WAVELENGTH * basis.h / 2) nseg = Math.min(fullSegments, Math.max(nseg, want));
+      else if (pass > 0 && wl < KNOTS_PER_WAVELENGTH * basis.h / 2) nseg = Math.min(fullSegments, Math.max(nseg, want));
     }
     basis = makeBasis(0, span, nseg, closed);
   }
@@ -268,8 +269,8 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
   const tauLo = new Float64Array(m).fill(NaN), tauHi = new Float64Array(m).fill(NaN);
   const flags = new Uint8Array(m);
   const Rb = Math.max(R, 50);
-  // The bands vary on the resolution scale: 16 grid points per resolution length suffice.
-  const gridCount = Math.min(4 * basis.nseg, Math.max(256, Math.ceil((16 * length) / resolutionInternal)));
+  // The bands vary on the resolution scale: 10 grid points per resolution length suffice.
+  const gridCount = Math.min(4 * basis.nseg, Math.max(256, Math.ceil((10 * length) / resolutionInternal)));
   const gridU = m <= gridCount ? sampleU : uniformGrid(basis, gridCount, closed);
   const tangent = new Float64Array(3 * n);
   for (let i = 0; i < n; ++i) {
