@@ -1,7 +1,7 @@
 /** What both profile writers share: the column set in output units, and the metadata. */
 import { ParameterError } from "../errors.js";
 import {
-  FLAG_END, FLAG_FRAME_TRANSPORTED, FLAG_TORSION_NOT_MEASURABLE, FLAG_TORSION_UNDEFINED,
+  FLAG_BIAS, FLAG_END, FLAG_FRAME_TRANSPORTED, FLAG_TORSION_NOT_MEASURABLE, FLAG_TORSION_UNDEFINED,
   PER_METRE, type LengthUnit, type Profile,
 } from "../types.js";
 import { resolveOutputUnit } from "./outputUnit.js";
@@ -22,6 +22,7 @@ export const FLAG_MEANINGS: readonly (readonly [number, string])[] = [
   [FLAG_FRAME_TRANSPORTED, "n and b from the twist-free (parallel-transport) frame"],
   [FLAG_END, "within one resolution length of an open end (larger bias)"],
   [FLAG_TORSION_NOT_MEASURABLE, "torsion not measurable (planar projection)"],
+  [FLAG_BIAS, "smoothing bias comparable to the band (feature near the resolution length): the band may under-cover"],
 ];
 
 /** The line every profile output carries: what the numbers are, and are not. */

@@ -35,6 +35,7 @@ describe("profileToCsv(profile, options)", () => {
       "# flag 2: n and b from the twist-free (parallel-transport) frame",
       "# flag 4: within one resolution length of an open end (larger bias)",
       "# flag 8: torsion not measurable (planar projection)",
+      "# flag 16: smoothing bias comparable to the band (feature near the resolution length): the band may under-cover",
       "# diagnostic: dropped 1 consecutive duplicate point (line 7)",
     ]);
   });

@@ -29,7 +29,7 @@ describe("profileToJson(profile, options)", () => {
     expect(doc).toMatchObject({ closed: false, n: 20, sigma: 0.25, lambda: 0.0123, lambdaTorsion: 0.5, edf: 17.5, resolution: 5, planarProjection: false });
     expect(doc.bootstrap).toEqual({ replicates: 200, seed: 3, level: 0.95 });
     expect(doc.diagnostics).toEqual(["dropped 1 consecutive duplicate point (line 7)"]);
-    expect(Object.keys(doc.flags)).toEqual(["1", "2", "4", "8"]);
+    expect(Object.keys(doc.flags)).toEqual(["1", "2", "4", "8", "16"]);
     expect(Object.keys(doc.columns)).toEqual([...PROFILE_COLUMNS]);
     for (const name of PROFILE_COLUMNS) expect(doc.columns[name].length).toBe(20);
     expect(Math.abs((doc.columns.kappa[5] as number) - kappa0 / 1e9) / (kappa0 / 1e9)).toBeLessThan(1e-11);
