@@ -93,7 +93,12 @@ export function rhsNoiseFactor(
       }
     }
   }
-  factorLdl(C, 1e-12);
+  // A basis richer than the data (sparse traces) makes C singular; a ridge of 1e-9 of its largest
+  // diagonal keeps the L D L^T stable and adds a negligible variance.
+  let maxDiag = 0;
+  for (let r = 0; r < C.n; ++r) maxDiag = Math.max(maxDiag, C.data[C.offset[r] + r - C.first[r]]);
+  for (let r = 0; r < C.n; ++r) C.data[C.offset[r] + r - C.first[r]] += 1e-9 * maxDiag;
+  factorLdl(C, 0);
   return C;
 }
 

@@ -37,6 +37,8 @@ export interface ProfileOptions {
 const MAX_SEGMENTS = 5_000;
 const KNOTS_PER_WAVELENGTH = 12;
 const INITIAL_SEGMENTS_CAP = 1500;
+/** Turning angle between samples (rad) above which a trace counts as sparse. */
+const SPARSE_TURN = 0.35;
 
 /** Number of knot intervals: rich enough for sparse traces, capped for long ones. */
 export function segmentCount(n: number, closed: boolean): number {
@@ -162,6 +164,7 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
   let nseg = options.segments ?? Math.min(fullSegments, INITIAL_SEGMENTS_CAP);
 
   let basis: SplineBasis = makeBasis(0, span, nseg, closed);
+  let sparse = false;
   let sel: Selection | undefined;
   let smFinal: Smoother | undefined;
   const d12 = new Float64Array(12), st = new Float64Array(1), sb = new Float64Array(24);
@@ -206,7 +209,22 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
     // Once the smoothing scale is known, a basis with ~KNOTS_PER_WAVELENGTH intervals per resolved
     // wavelength represents the fit as well as a richer one; fewer coefficients make every later step cheaper.
     const wl = wavelengthForLambda(sel.fit.lambda, sm.normal.wSum / (basis.nseg * basis.h), basis.h);
-    if (options.lambda === undefined && options.segments === undefined) {
+    // Sparse traces (a few points per turn, e.g. a molecule's atoms): a knot interval per point cannot
+    // follow the curve between samples and the fit shrinks it; give them four intervals per point.
+    if (pass === 0 && !sparse && n <= 2000 && options.segments === undefined) {
+      let turn = 0;
+      const kt0 = new Float64Array(5);
+      for (let i = 0; i < n; ++i) {
+        evalCurve(basis, sel.fit.coef, u[i], 3, d12, st, sb);
+        turn = Math.max(turn, kappaTau(d12, kt0)[0] * medianStep);
+      }
+      if (turn > SPARSE_TURN) {
+        sparse = true;
+        nseg = Math.min(MAX_SEGMENTS, 4 * n);
+        diagnostics.push(`sparse trace: the curve turns by up to ${turn.toFixed(2)} rad between samples; fitted with ${nseg} knot intervals`);
+      }
+    }
+    if (options.lambda === undefined && options.segments === undefined && !sparse) {
       const want = Math.ceil((KNOTS_PER_WAVELENGTH * span) / wl);
       // Shrink when the basis is much richer than the smoothing scale; grow back (up to the
       // point-count rule) when the basis is too coarse, but not after the first pass, whose

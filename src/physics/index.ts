@@ -1,0 +1,20 @@
+/** Physics stage: materials, effective interactions, states, stability, pinning and magnons. */
+export * from "./types.js";
+export { parseMaterial, materialSchema, type MaterialJson } from "./parseMaterial.js";
+export { reducedSystem, plainSystem } from "./reducedSystem.js";
+export { tiltFerro, tiltAntiferro, antiferroEnergy, ferroEnergy } from "./closedForms.js";
+export { ellipticKE } from "./elliptic.js";
+export { ferroRingEnergies, ferroRingSwitch } from "./ferroRing.js";
+export { anisotropyTensor } from "./anisotropyTensor.js";
+export { homogeneousState } from "./homogeneousState.js";
+export { homogeneousModes } from "./homogeneousModes.js";
+export { magnonGaps, magnonDispersion, ringLevels } from "./magnonGaps.js";
+export { latticeMagnons } from "./latticeMagnons.js";
+export { periodicState, type PeriodicOptions, type PeriodicResult } from "./periodicState.js";
+export { phaseBoundary } from "./phaseBoundary.js";
+export { stretchLabels, stretchProbabilities, type StretchContext } from "./stretchLabels.js";
+export { interactions, type FrameColumns } from "./interactions.js";
+export { wireChain, relaxWire, type WireColumns } from "./relaxWire.js";
+export { pinningLandscape, pinningScan, firstOrderPinning, pinningSites, type PinningOptions } from "./pinning.js";
+export { gapProfile } from "./gapProfile.js";
+export { buildWireModel, BOLTZMANN, type WireModelOptions } from "./buildWireModel.js";

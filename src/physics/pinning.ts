@@ -1,0 +1,300 @@
+import { chainEnergy, normalise, type Chain } from "./chain.js";
+import { relaxChain } from "./relaxChain.js";
+import type { MagneticOrder } from "./types.js";
+
+/** Options of the wall-pinning landscape; lengths reduced (units of l). */
+export interface PinningOptions {
+  /** Spacing of wall positions (default 0.25). */
+  readonly qStep?: number;
+  /** Half-width of the relaxed window around the wall (default 6 for FM, 6/kappa for AFM, at most 60;
+   *  the wall energy density decays like exp(-2|x|/width), so the cut costs ~1e-5 of the wall energy). */
+  readonly window?: number;
+  /** Wall positions closer than this to an open end are skipped (default: the window half-width). */
+  readonly endMargin?: number;
+  /** AFM: no wall where kappa l is below this (the wall is not localised; default 0.1). */
+  readonly afmMinKappa?: number;
+  /** Reduced node range [from, to) of wall positions to consider (default: all). */
+  readonly from?: number;
+  readonly to?: number;
+  /** Explicit wall positions (node indices, ascending); overrides from/to/qStep. */
+  readonly nodes?: ArrayLike<number>;
+  /** Gradient tolerance per unit node spacing of the window relaxations (default 1e-6). */
+  readonly tolerance?: number;
+}
+
+/** Gather a window of a chain (node indices, consecutive along the chain) into an open chain. */
+function windowChain(chain: Chain, nodes: Int32Array, fixed: Uint8Array): Chain {
+  const m = nodes.length;
+  const rot = new Float64Array(9 * (m - 1)), h = new Float64Array(m - 1), w = new Float64Array(m);
+  for (let k = 0; k + 1 < m; ++k) {
+    const b = nodes[k];
+    rot.set(chain.rot.subarray(9 * b, 9 * b + 9), 9 * k);
+    h[k] = chain.h[b];
+    w[k] += 0.5 * h[k];
+    w[k + 1] += 0.5 * h[k];
+  }
+  return { n: m, rot, h, w, q: chain.q, closure: "open", fixed };
+}
+
+/**
+ * Domain-wall energy landscape U(q) along a wire by constrained relaxation (the general algorithm
+ * of ../shared/PHYSICS.md section 5): for each wall position q (a node), the texture in a window
+ * around q starts as a wall between the background texture bg and -bg (tanh profile), the node at
+ * q is held at the wall-centre direction (FM: -N, the pinned sense; AFM: +N, both senses
+ * degenerate), the window ends are held at +-bg, and the rest is relaxed by L-BFGS;
+ * U(q) = E_window(wall) - E_window(bg). Warm starts from the previous q (shifted).
+ * bg must be the relaxed wall-free texture (local components) of the same chain.
+ * Reduced energies (K l per cross-section). Positions where no wall is computed hold NaN.
+ * Cost: (number of q) x (a few hundred iterations on 2 window/h nodes).
+ */
+export function pinningLandscape(
+  chain: Chain,
+  s: Float64Array,
+  bg: Float64Array,
+  kappaReduced: ArrayLike<number>,
+  order: MagneticOrder,
+  options: PinningOptions = {},
+): { index: Int32Array; q: Float64Array; energy: Float64Array; iterations: number } {
+  const n = chain.n;
+  const closed = chain.closure !== "open";
+  let hMean = 0;
+  for (let i = 0; i < chain.h.length; ++i) hMean += chain.h[i];
+  hMean /= chain.h.length;
+  const stride = Math.max(1, Math.round((options.qStep ?? 0.25) / hMean));
+  const afmMin = options.afmMinKappa ?? 0.1;
+  let index: Int32Array;
+  if (options.nodes !== undefined) index = Int32Array.from(options.nodes);
+  else {
+    const indices: number[] = [];
+    const from = options.from ?? 0, to = options.to ?? n;
+    for (let i = from; i < to; i += stride) indices.push(i);
+    index = Int32Array.from(indices);
+  }
+  const energy = new Float64Array(index.length).fill(NaN);
+  let prev: { centre: number; nodes: Int32Array; v: Float64Array } | null = null;
+  let iterations = 0;
+  for (let k = 0; k < index.length; ++k) {
+    const iq = index[k];
+    const kq = kappaReduced[iq];
+    if (order === "antiferro" && !(kq >= afmMin)) {
+      prev = null;
+      continue;
+    }
+    const half = options.window ?? Math.min(60, order === "ferro" ? 6 : 6 / Math.max(kq, 0.2));
+    const margin = options.endMargin ?? half;
+    // window nodes around iq by arc length
+    const left: number[] = [], right: number[] = [];
+    let acc = 0, i = iq;
+    let leftOpen = false, rightOpen = false;
+    while (acc < half) {
+      const j = i - 1;
+      if (j < 0 && !closed) { leftOpen = true; break; }
+      const jj = (j + n) % n;
+      acc += chain.h[jj];
+      left.push(jj);
+      i = jj;
+      if (left.length + 1 >= n / 2) break;
+    }
+    if (!closed && acc < margin && leftOpen) continue;
+    acc = 0;
+    i = iq;
+    while (acc < half) {
+      const j = i + 1;
+      if (j >= n && !closed) { rightOpen = true; break; }
+      acc += chain.h[i % n];
+      right.push(j % n);
+      i = j % n;
+      if (right.length + 1 >= n / 2) break;
+    }
+    if (!closed && acc < margin && rightOpen) continue;
+    const nodes = Int32Array.from([...left.reverse(), iq, ...right]);
+    const m = nodes.length, c0 = left.length;
+    const fixed = new Uint8Array(m);
+    fixed[c0] = 1;
+    if (!leftOpen) fixed[0] = 1;
+    if (!rightOpen) fixed[m - 1] = 1;
+    const sub = windowChain(chain, nodes, fixed);
+    // wall-centre direction: -N (FM) or +N (AFM), orthogonalised against bg at q
+    const sign = order === "ferro" ? -1 : 1;
+    const bq = 3 * iq;
+    let wx = -bg[bq + 1] * sign * bg[bq], wy = sign * (1 - bg[bq + 1] * bg[bq + 1]), wz = -bg[bq + 1] * sign * bg[bq + 2];
+    let wn = Math.hypot(wx, wy, wz);
+    if (wn < 1e-6) {
+      // bg along N: rotate through the binormal instead
+      wx = 0; wy = 0; wz = 1; wn = 1;
+    }
+    wx /= wn; wy /= wn; wz /= wn;
+    const width = order === "ferro" ? 1 : 1 / Math.max(kq, 0.2);
+    const v = new Float64Array(3 * m);
+    const vb = new Float64Array(3 * m);
+    let sRel = 0;
+    const sPos = new Float64Array(m);
+    for (let a = c0 - 1; a >= 0; --a) { sRel -= sub.h[a]; sPos[a] = sRel; }
+    sRel = 0;
+    for (let a = c0 + 1; a < m; ++a) { sRel += sub.h[a - 1]; sPos[a] = sRel; }
+    for (let a = 0; a < m; ++a) {
+      const g = 3 * nodes[a];
+      const bx = bg[g], by = bg[g + 1], bz = bg[g + 2];
+      vb[3 * a] = bx; vb[3 * a + 1] = by; vb[3 * a + 2] = bz;
+      // centre direction transported only approximately: orthogonalise the global w against bg here
+      const dot = wx * bx + wy * by + wz * bz;
+      let ux = wx - dot * bx, uy = wy - dot * by, uz = wz - dot * bz;
+      const un = Math.hypot(ux, uy, uz) || 1;
+      ux /= un; uy /= un; uz /= un;
+      const phi = 0.5 * Math.PI * (1 + Math.tanh(sPos[a] / width));
+      const c = Math.cos(phi), sn = Math.sin(phi);
+      v[3 * a] = c * bx + sn * ux;
+      v[3 * a + 1] = c * by + sn * uy;
+      v[3 * a + 2] = c * bz + sn * uz;
+    }
+    // warm start: the previous relaxed wall, shifted to the new centre
+    if (prev !== null) {
+      const pc0 = prev.nodes.indexOf(prev.centre);
+      for (let a = 0; a < m; ++a) {
+        const pa = a - c0 + pc0; // same offset from the wall centre
+        if (pa >= 0 && pa < prev.nodes.length) {
+          for (let c = 0; c < 3; ++c) v[3 * a + c] = prev.v[3 * pa + c];
+        }
+      }
+    }
+    v[3 * c0] = wx; v[3 * c0 + 1] = wy; v[3 * c0 + 2] = wz;
+    if (fixed[0]) { v[0] = vb[0]; v[1] = vb[1]; v[2] = vb[2]; }
+    if (fixed[m - 1]) { v[3 * m - 3] = -vb[3 * m - 3]; v[3 * m - 2] = -vb[3 * m - 2]; v[3 * m - 1] = -vb[3 * m - 1]; }
+    normalise(v);
+    let hMin = Infinity;
+    for (let a = 0; a < sub.h.length; ++a) hMin = Math.min(hMin, sub.h[a]);
+    // depths need ~1e-7 relative: stop when the energy changes by < 1e-10 relative over 10 steps
+    const r = relaxChain(sub, v, { gradientTolerance: (options.tolerance ?? 1e-6) * hMin, energyTolerance: 1e-10, maxIterations: 20000 });
+    iterations += r.iterations;
+    const eBg = chainEnergy({ ...sub, fixed: null }, vb, null);
+    energy[k] = r.energy - eBg;
+    prev = { centre: iq, nodes, v };
+  }
+  const q = new Float64Array(index.length);
+  for (let k = 0; k < index.length; ++k) q[k] = s[index[k]];
+  return { index, q, energy, iterations };
+}
+
+/**
+ * First-order (fast preview) wall energy along a wire, reduced.
+ * FM planar head-to-head wall through -N: U(q) = 4 - 2 integral kappa(s) sech(s - q) ds, the
+ * curvature convolved with a sech kernel of width l (../shared/PHYSICS.md section 5; background
+ * Yershov, Kravchuk, Sheka, Gaididei, PRB 92, 104412 (2015)).
+ * For an AFM there is no first-order formula in PHYSICS.md: NaN (use the constrained relaxation).
+ * s and kappaReduced are reduced; trapezoid rule over all samples within 25 kernel widths.
+ * Cost O(n x window).
+ * @example firstOrderPinning(s, k, q, "ferro") // 4 - 2*pi*k0 for a constant curvature k0
+ */
+export function firstOrderPinning(s: Float64Array, kappaReduced: ArrayLike<number>, q: Float64Array, order: MagneticOrder): Float64Array {
+  const n = s.length;
+  const out = new Float64Array(q.length);
+  if (order !== "ferro") return out.fill(NaN);
+  for (let k = 0; k < q.length; ++k) {
+    const qk = q[k];
+    const width = 1;
+    let acc = 0;
+    for (let i = 0; i + 1 < n; ++i) {
+      const x0 = s[i] - qk, x1 = s[i + 1] - qk;
+      if (Math.abs(x0) > 25 * width && Math.abs(x1) > 25 * width) continue;
+      const f = (x: number, kap: number): number => (-2 * kap) / Math.cosh(x);
+      acc += 0.5 * (x1 - x0) * (f(x0, kappaReduced[i]) + f(x1, kappaReduced[i + 1]));
+    }
+    out[k] = 4 + acc;
+  }
+  return out;
+}
+
+/**
+ * Pinning sites of a landscape U(q): interior local minima, position and energy refined by a
+ * parabola through the three nearest points, depth = the lower of the two barriers to the
+ * highest points between this minimum and its neighbouring minima (or the ends). NaN entries
+ * split the landscape; depths below minDepth (default 1e-6 of max |U|) are dropped. Sorted deepest first. Reduced units in, reduced out. Cost O(m).
+ * @example pinningSites(q, U)[0].depth // U(far) - U(0) for a single bump
+ */
+export function pinningSites(q: Float64Array, u: Float64Array, minDepth?: number): { q: number; depth: number; energy: number }[] {
+  const m = q.length;
+  let scale = 0;
+  for (let k = 0; k < m; ++k) if (Number.isFinite(u[k])) scale = Math.max(scale, Math.abs(u[k]));
+  // default: depths below 1e-6 of the wall energy are round-off, not sites
+  const floor = minDepth ?? 1e-6 * Math.max(scale, 1e-12);
+  const minima: number[] = [];
+  for (let k = 1; k + 1 < m; ++k) {
+    if (!Number.isFinite(u[k - 1]) || !Number.isFinite(u[k]) || !Number.isFinite(u[k + 1])) continue;
+    if (u[k] < u[k - 1] && u[k] <= u[k + 1]) minima.push(k);
+  }
+  const out: { q: number; depth: number; energy: number }[] = [];
+  minima.forEach((k, idx) => {
+    const stopL = idx > 0 ? minima[idx - 1] : -1, stopR = idx + 1 < minima.length ? minima[idx + 1] : m;
+    let maxL = -Infinity, maxR = -Infinity;
+    for (let j = k - 1; j > stopL && Number.isFinite(u[j]); --j) maxL = Math.max(maxL, u[j]);
+    for (let j = k + 1; j < stopR && Number.isFinite(u[j]); ++j) maxR = Math.max(maxR, u[j]);
+    // parabola through k-1, k, k+1 (uneven spacing allowed)
+    const x0 = q[k - 1], x1 = q[k], x2 = q[k + 1], y0 = u[k - 1], y1 = u[k], y2 = u[k + 1];
+    const d0 = (y1 - y0) / (x1 - x0), d1 = (y2 - y1) / (x2 - x1);
+    const a = (d1 - d0) / (x2 - x0);
+    let qm = x1, um = y1;
+    if (a > 0) {
+      const b = d0 - a * (x0 + x1);
+      qm = Math.min(x2, Math.max(x0, -b / (2 * a)));
+      um = y1 + (qm - x1) * (d0 + a * (qm - x0)) ;
+      um = Math.min(um, y1);
+    }
+    const depth = Math.min(maxL, maxR) - um;
+    if (depth > floor) out.push({ q: qm, depth, energy: um });
+  });
+  return out.sort((x, y) => y.depth - x.depth);
+}
+
+/**
+ * Two-stage landscape: constrained relaxation on a coarse grid of wall positions (step `coarse`,
+ * reduced, default 1), then on a fine grid (step `fine`, default 0.25) within one coarse step of
+ * every coarse local minimum and maximum, merged in order. Same method and units as
+ * `pinningLandscape`; the extremes are what the site depths need. Cost ~ L/coarse + 8 per extremum
+ * window relaxations.
+ */
+export function pinningScan(
+  chain: Chain,
+  s: Float64Array,
+  bg: Float64Array,
+  kappaReduced: ArrayLike<number>,
+  order: MagneticOrder,
+  options: PinningOptions & { readonly coarse?: number; readonly fine?: number } = {},
+): { index: Int32Array; q: Float64Array; energy: Float64Array; iterations: number } {
+  const n = chain.n;
+  let hMean = 0;
+  for (let i = 0; i < chain.h.length; ++i) hMean += chain.h[i];
+  hMean /= chain.h.length;
+  const cs = Math.max(1, Math.round((options.coarse ?? 1) / hMean));
+  const fs = Math.max(1, Math.round((options.fine ?? 0.25) / hMean));
+  const coarseNodes: number[] = [];
+  for (let i = 0; i < n; i += cs) coarseNodes.push(i);
+  const first = pinningLandscape(chain, s, bg, kappaReduced, order, { ...options, nodes: coarseNodes });
+  const extra = new Set<number>();
+  const e = first.energy, idx = first.index;
+  for (let k = 0; k < e.length; ++k) {
+    if (!Number.isFinite(e[k])) continue;
+    const l = k > 0 && Number.isFinite(e[k - 1]) ? e[k - 1] : NaN;
+    const r = k + 1 < e.length && Number.isFinite(e[k + 1]) ? e[k + 1] : NaN;
+    // extremes must stand out from round-off (1e-7 of the wall energy), else a flat landscape
+    // would be refined everywhere
+    const tol = 1e-7 * Math.max(1, Math.abs(e[k]));
+    const anyNeighbour = Number.isFinite(l) || Number.isFinite(r);
+    // NaN neighbours count as "not lower" / "not higher"
+    const isMin = anyNeighbour && !(l < e[k] - tol) && !(r < e[k] - tol) && (l > e[k] + tol || r > e[k] + tol);
+    const isMax = anyNeighbour && !(l > e[k] + tol) && !(r > e[k] + tol) && (l < e[k] - tol || r < e[k] - tol);
+    if (!isMin && !isMax) continue;
+    for (let i = idx[k] - cs + fs; i < idx[k] + cs; i += fs) if (i >= 0 && i < n && i !== idx[k]) extra.add(i);
+  }
+  const fineNodes = [...extra].sort((a, b) => a - b);
+  const second = fineNodes.length > 0 ? pinningLandscape(chain, s, bg, kappaReduced, order, { ...options, nodes: fineNodes }) : null;
+  const all: { i: number; q: number; e: number }[] = [];
+  for (let k = 0; k < idx.length; ++k) all.push({ i: idx[k], q: first.q[k], e: e[k] });
+  if (second !== null) for (let k = 0; k < second.index.length; ++k) all.push({ i: second.index[k], q: second.q[k], e: second.energy[k] });
+  all.sort((a, b) => a.i - b.i);
+  return {
+    index: Int32Array.from(all.map((x) => x.i)),
+    q: Float64Array.from(all.map((x) => x.q)),
+    energy: Float64Array.from(all.map((x) => x.e)),
+    iterations: first.iterations + (second?.iterations ?? 0),
+  };
+}

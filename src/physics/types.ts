@@ -1,0 +1,216 @@
+/**
+ * Types of the physics stage (src/physics). SI units unless a name says "reduced":
+ * reduced lengths are in the magnetic length l = sqrt(A/K), reduced energy densities in K,
+ * reduced energies per cross-section in K*l, reduced frequencies in omega_0 = c/l.
+ * Local frame components are ordered (T, N, B); torsion follows B' = -tau N.
+ */
+
+/** "ferro": thin FM wire, easy-tangential shape anisotropy; "antiferro": AFM chain, hard-tangential. */
+export type MagneticOrder = "ferro" | "antiferro";
+
+/** An axis of the local (Frenet) frame. */
+export type LocalAxis = "tangent" | "normal" | "binormal";
+
+/** Extra intrinsic uniaxial term, energy density -constant * (u . axis)^2 (constant > 0: easy axis). */
+export interface IntrinsicAnisotropy {
+  /** J/m^3; positive for an easy axis, negative for a hard axis. */
+  readonly constant: number;
+  readonly axis: LocalAxis;
+}
+
+/** A validated material. Unknown quantities are null (never invented). */
+export interface Material {
+  readonly order: MagneticOrder;
+  /** Magnetic length l = sqrt(A/K) (m). */
+  readonly magneticLength: number;
+  /** Exchange stiffness A (J/m), null when only l was given. */
+  readonly exchange: number | null;
+  /** Anisotropy constant K of the shape (FM) or dipolar (AFM) term (J/m^3), null when unknown. */
+  readonly anisotropy: number | null;
+  readonly intrinsic: IntrinsicAnisotropy | null;
+  /** Lattice spacing (m) for validity checks, null when not given. */
+  readonly latticeSpacing: number | null;
+  /** Wire thickness (diameter, m) for validity checks, null when not given. */
+  readonly thickness: number | null;
+  /** Cross-section area (m^2): given, or pi thickness^2 / 4 (round wire), else null. */
+  readonly crossSection: number | null;
+  /** Temperature (K) for pinning depths in k_B T (default 300). */
+  readonly temperature: number;
+  /** Magnon speed c (m/s) to turn reduced frequencies into rad/s; null when not given. */
+  readonly magnonSpeed: number | null;
+}
+
+/**
+ * The model in reduced units the numerics see: the order and the reduced anisotropy tensor of the
+ * material alone (no geometry) in local (T, N, B) components, row-major 3x3:
+ * FM -T T^T, AFM +T T^T, plus -(K_i/K) a a^T for an intrinsic term.
+ */
+export interface ReducedSystem {
+  readonly order: MagneticOrder;
+  readonly q: Float64Array;
+}
+
+/** Homogeneous state of a constant-(kappa, tau) stretch, reduced units. */
+export interface HomogeneousState {
+  /** Unit vector of the state in local (T, N, B) components. */
+  readonly u: Float64Array;
+  /** Tilt (rad): FM from T toward B, AFM from B toward T; the sign follows the handedness. */
+  readonly tilt: number;
+  /** Energy density relative to the fully relaxed reference, reduced (units of K). */
+  readonly energy: number;
+  /** Eigenvalues (ascending, reduced) of the total anisotropy tensor (material + geometric). */
+  readonly eigenvalues: Float64Array;
+  /** Eigenvectors as rows, local components, matching `eigenvalues`. */
+  readonly axes: Float64Array;
+}
+
+/** Linear stability and small-oscillation data of a homogeneous state, reduced units. */
+export interface HomogeneousModes {
+  /** D . mu0 (reduced): the geometric DMI coupling of the two transverse modes. */
+  readonly d0: number;
+  /** Transverse stiffnesses Ka >= Kb (eigenvalue gaps of the anisotropy tensor). */
+  readonly ka: number;
+  readonly kb: number;
+  /** Linearly unstable: 2|D0| > sqrt(Ka) + sqrt(Kb). */
+  readonly unstable: boolean;
+  /** (sqrt(Ka) + sqrt(Kb)) - 2|D0|: positive when stable. */
+  readonly margin: number;
+}
+
+/** AFM magnon data of a homogeneous stretch (reduced frequencies in omega_0 = c/l). */
+export interface MagnonGaps {
+  /** Lower and upper branches at k = 0. */
+  readonly lower0: number;
+  readonly upper0: number;
+  /** Wave number (1/l) of the minimum of the lower branch; 0 when the minimum is at k = 0. */
+  readonly kMin: number;
+  /** Lower branch at its minimum; NaN when the state is unstable (omega^2 < 0). */
+  readonly lowerMin: number;
+  /** lower0 - lowerMin: depth of the negative group-velocity region (0 when none). */
+  readonly depth: number;
+  readonly unstable: boolean;
+}
+
+export type GroundState = "homogeneous" | "periodic";
+export type Stability = "stable" | "metastable" | "unstable";
+
+/** Per-stretch result in model.json. Lengths in m, kappa and tau in 1/m. */
+export interface StretchModel {
+  readonly s0: number;
+  readonly s1: number;
+  readonly kind: "straight" | "arc" | "helix" | "irregular";
+  readonly kappa: number;
+  readonly kappaLo: number;
+  readonly kappaHi: number;
+  readonly tau: number;
+  readonly tauLo: number;
+  readonly tauHi: number;
+  readonly kappaReduced: number;
+  readonly tauReduced: number;
+  readonly state: GroundState;
+  readonly homogeneousStability: Stability;
+  /** Homogeneous tilt in degrees: FM from T toward B, AFM from B toward T. */
+  readonly tiltDeg: number;
+  /** Label probabilities from the bootstrap replicates (or seeded draws within the bands). */
+  readonly probabilities: {
+    readonly homogeneous: number;
+    readonly periodic: number;
+    readonly stable: number;
+    readonly metastable: number;
+    readonly unstable: number;
+  };
+  /** true when the band straddles the phase boundary or the stability line. */
+  readonly uncertain: boolean;
+  /** Homogeneous energy density (reduced, units of K) and, when K is known, in J/m^3. */
+  readonly energyReduced: number;
+  /** Best periodic energy density found (reduced) and its period (m); null when not searched. */
+  readonly periodicEnergyReduced: number | null;
+  readonly period: number | null;
+  /** Geometric DMI magnitude 2 A sqrt(kappa^2 + tau^2) (J/m^2), null when A is unknown. */
+  readonly dmi: number | null;
+  /** Reduced |D| l = sqrt((kappa l)^2 + (tau l)^2). */
+  readonly dmiReduced: number;
+  /** Effective anisotropy: eigenvalues (J/m^3 when K known, else reduced) and axes (local, rows). */
+  readonly anisotropyConstants: readonly number[];
+  readonly anisotropyConstantsUnit: "J/m^3" | "K";
+  readonly anisotropyAxesLocal: readonly number[];
+  /** AFM only: magnon gaps of the homogeneous state (reduced, and in rad/s when c is known). */
+  readonly magnons: (MagnonGaps & { readonly note: string | null; readonly omega0: number | null }) | null;
+  readonly flags: readonly string[];
+}
+
+/** A pinning site of a domain wall (reduced and SI). */
+export interface PinningSite {
+  /** Position along the wire (m). */
+  readonly s: number;
+  /** Depth: barrier to the lower of the neighbouring maxima, J (null when K*l*area is unknown). */
+  readonly depthJ: number | null;
+  /** Depth in units of k_B T at the material temperature. */
+  readonly depthKT: number | null;
+  /** Depth in reduced units (K l area). */
+  readonly depthReduced: number;
+}
+
+/** Wall-pinning landscape U(q) along the wire. */
+export interface PinningLandscape {
+  /** Wall positions (m). */
+  readonly q: Float64Array;
+  /** Wall energy relative to the wall-free texture (reduced, units of K l area). */
+  readonly energy: Float64Array;
+  /** First-order estimate at the same q (reduced). */
+  readonly firstOrder: Float64Array;
+  readonly sites: readonly PinningSite[];
+  readonly method: string;
+}
+
+/** The relaxed texture along the wire. */
+export interface Texture {
+  /** Unit vectors in local (T, N, B) components, interleaved 3 per sample. */
+  readonly local: Float64Array;
+  /** The same in lab components, interleaved. */
+  readonly lab: Float64Array;
+  /** Total energy, reduced (K l area), relative to the fully relaxed reference density 0. */
+  readonly energyReduced: number;
+  /** Total energy in J (null when K*l*area is unknown). */
+  readonly energyJ: number | null;
+  readonly iterations: number;
+  readonly converged: boolean;
+}
+
+/** Per-sample effective interactions for a resampled-chain export. */
+export interface SampleInteractions {
+  /** Reduced kappa l and tau l (tau NaN where undefined). */
+  readonly kappaReduced: Float64Array;
+  readonly tauReduced: Float64Array;
+  /** Geometric DMI vector 2 A (tau T + kappa B) in lab components (J/m^2; reduced 2 D l if A unknown). */
+  readonly dmiLab: Float64Array;
+  /** Anisotropy eigenvalues per sample (3 each, ascending; J/m^3, or reduced when K unknown). */
+  readonly anisotropyConstants: Float64Array;
+  /** Principal axes per sample in lab components, 3 rows of 3 per sample (9 each). */
+  readonly anisotropyAxesLab: Float64Array;
+  readonly unit: { readonly dmi: "J/m^2" | "reduced"; readonly anisotropy: "J/m^3" | "K" };
+}
+
+/** Slowly-varying-geometry magnon gap profile along the wire (AFM). */
+export interface GapProfile {
+  readonly lower0: Float64Array;
+  readonly upper0: Float64Array;
+  /** Local band bottom (lower branch minimum over k). */
+  readonly bandBottom: Float64Array;
+  /** 1 where the geometry varies slowly enough for the local picture, else 0. */
+  readonly valid: Uint8Array;
+}
+
+/** Everything the CLI writes into model.json (lengths in m). */
+export interface WireModel {
+  readonly unit: "m";
+  readonly material: Material;
+  readonly segments: readonly StretchModel[];
+  readonly pinning: readonly PinningSite[];
+  readonly landscape: PinningLandscape | null;
+  readonly texture: Texture;
+  readonly interactions: SampleInteractions;
+  readonly gapProfile: GapProfile | null;
+  readonly ringLevels: { readonly j: number; readonly lower: number; readonly upper: number }[] | null;
+  readonly warnings: readonly string[];
+}

@@ -1,0 +1,67 @@
+import { describe, expect, it } from "vitest";
+import { antiferroEnergy, periodicState, plainSystem, stretchLabels } from "../../src/physics/index.js";
+
+const fm = plainSystem("ferro"), af = plainSystem("antiferro");
+const FAST = { hMax: 0.25, scan: 10, refine: 6 } as const;
+
+describe("periodic state of an infinite helix (PHYSICS.md section 4, own algorithm)", () => {
+  // PHYSICS.md: "lower periodic energies found": (0.5,0.5) 0.0947 vs e0 0.191; (1,1) 0.191 vs 0.382
+  it.each([[0.5, 0.5, 0.0947], [1, 1, 0.191]])("AFM (%s, %s): periodic energy %s within 2%", (k, t, e) => {
+    const r = periodicState(af, k, t, FAST);
+    expect(Math.abs(r.energy / e - 1)).toBeLessThan(0.02); // measured +0.2%, -0.1%
+    expect(r.energy).toBeLessThan(r.e0);
+    expect(r.e0).toBeCloseTo(antiferroEnergy(k, t), 12);
+  });
+  it("AFM (0.3, 0.8): at least as low as the PHYSICS.md value 0.031 (vs e0 0.536)", () => {
+    // The PHYSICS.md figure is an energy found (an upper bound). Our search reaches 0.0281 at a
+    // half-turn period 3.76 l (0.02685 at h = 0.025), below a bracket starting near 4-5 l; at
+    // p = 4 it gives 0.0301, matching the table. Reported to the lead.
+    const r = periodicState(af, 0.3, 0.8, FAST);
+    expect(r.energy).toBeLessThan(0.031 * 1.02);
+    expect(r.energy).toBeGreaterThan(0.02);
+    expect(r.e0).toBeCloseTo(0.536, 3);
+  });
+  it("the periodic energy is below the closed-form planar-spiral bound (PHYSICS.md section 4)", () => {
+    const esp = (k: number, t: number) => (1 + k * k + t * t) / 4 - 0.5 * Math.sqrt(((1 + t * t - k * k) / 2) ** 2 + k * k * t * t);
+    for (const [k, t] of [[1, 1], [0.66, 0.5]]) expect(periodicState(af, k, t, FAST).energy).toBeLessThanOrEqual(esp(k, t) + 1e-4);
+  });
+  it("two resolutions (h, h/2) agree within 0.5% at (1, 1)", () => {
+    const a = periodicState(af, 1, 1, { ...FAST, hMax: 0.2 }).energy, b = periodicState(af, 1, 1, { ...FAST, hMax: 0.1 }).energy;
+    expect(Math.abs(a / b - 1)).toBeLessThan(0.005);
+  });
+});
+
+describe("phase boundary: classification 2% either side of the PHYSICS.md table (reduced resolution)", () => {
+  // AFM kappa_c (periodic below); FM kappa_c (periodic above); 3 significant figures, own derivation
+  it.each([[0.25, 0.364], [0.5, 0.670], [1.0, 1.36], [2.0, 2.80]])("AFM tau %s: periodic at 0.98 kappa_c, homogeneous at 1.02 kappa_c (%s)", (t, kc) => {
+    expect(periodicState(af, 0.98 * kc, t, FAST).margin).toBeLessThan(0);
+    expect(periodicState(af, 1.02 * kc, t, FAST).margin).toBeGreaterThan(0);
+  });
+  it.each([[0, 2 / Math.PI], [0.5, 0.902], [1.0, 1.5]])("FM tau %s: homogeneous at 0.98 kappa_c, periodic at 1.02 kappa_c (%s)", (t, kc) => {
+    expect(periodicState(fm, 0.98 * kc, t, FAST).margin).toBeGreaterThan(0);
+    expect(periodicState(fm, 1.02 * kc, t, FAST).margin).toBeLessThan(0);
+  });
+});
+
+describe("stretch labels (PHYSICS.md section 4 examples, AFM)", () => {
+  it.each([[0.5, 0.25], [1, 0.5], [2, 1]])("(%s, %s): homogeneous ground state, stable", (k, t) => {
+    const r = stretchLabels(af, "helix", k, t, FAST);
+    expect(r.state).toBe("homogeneous");
+    expect(r.stability).toBe("stable");
+  });
+  it.each([[0.5, 0.5], [1, 1], [0.3, 0.8]])("(%s, %s): periodic ground state, homogeneous metastable", (k, t) => {
+    const r = stretchLabels(af, "helix", k, t, FAST);
+    expect(r.state).toBe("periodic");
+    expect(r.stability).toBe("metastable");
+  });
+  it("unstable beyond the stability line; AFM rings and straight stretches are homogeneous (edge cases)", () => {
+    expect(stretchLabels(af, "helix", 0.5, 1.2, FAST).stability).toBe("unstable");
+    expect(stretchLabels(af, "arc", 0.05, 0, FAST)).toMatchObject({ state: "homogeneous", stability: "stable" });
+    expect(stretchLabels(fm, "straight", 0, 0, FAST)).toMatchObject({ state: "homogeneous", stability: "stable" });
+  });
+  it("FM closed ring: vortex below kappa 0.6569, onion (reported periodic) above; metastable vortex until kappa 1", () => {
+    expect(stretchLabels(fm, "ring", 0.6, 0, FAST)).toMatchObject({ state: "homogeneous", stability: "stable" });
+    expect(stretchLabels(fm, "ring", 0.7, 0, FAST)).toMatchObject({ state: "periodic", stability: "metastable" });
+    expect(stretchLabels(fm, "ring", 1.2, 0, FAST)).toMatchObject({ state: "periodic", stability: "unstable" });
+  });
+});

@@ -1,0 +1,82 @@
+import { describe, expect, it } from "vitest";
+import { makeChain } from "../../src/physics/chain.js";
+import { firstOrderPinning, pinningLandscape, pinningScan, pinningSites, plainSystem, relaxWire } from "../../src/physics/index.js";
+
+/** A planar wire (tau = 0) with kappa = kb + k0 exp(-(s - c)^2 / w^2), reduced units, spacing h. */
+function bumpWire(order: "ferro" | "antiferro", kb: number, k0: number, w: number, L: number, h = 0.05, c = 0) {
+  const n = Math.round(L / h) + 1;
+  const s = new Float64Array(n), k = new Float64Array(n), t = new Float64Array(n);
+  for (let i = 0; i < n; ++i) {
+    s[i] = -L / 2 + i * h;
+    k[i] = kb + k0 * Math.exp(-((s[i] - c) ** 2) / (w * w));
+  }
+  const sys = plainSystem(order);
+  const chain = makeChain(k, t, new Float64Array(n - 1).fill(h), sys.q, "open");
+  const bg = relaxWire(chain, sys, k, t);
+  const node = (x: number) => Math.round((x + L / 2) / h);
+  const at = (xs: number[]) => pinningLandscape(chain, s, bg.local, k, order, { nodes: xs.map(node) }).energy;
+  return { s, k, chain, bg, at, node };
+}
+
+describe("FM wall pinning at a curvature bump (PHYSICS.md section 5)", () => {
+  it("first-order depth D1/k0 = 2 integral exp(-s^2/w^2) sech(s) ds = 2.9581, 4.4522, 5.7754 (w = 1, 2, 5)", () => {
+    for (const [w, d] of [[1, 2.9581], [2, 4.4522], [5, 5.7754]]) {
+      const L = 120, h = 0.01, n = L / h + 1;
+      const s = Float64Array.from({ length: n }, (_, i) => -L / 2 + i * h);
+      const k = Float64Array.from(s, (x) => Math.exp(-(x * x) / (w * w)));
+      const u = firstOrderPinning(s, k, Float64Array.of(0, 55), "ferro");
+      expect(Math.abs((u[1] - u[0]) / d - 1)).toBeLessThan(5e-5); // trapezoid rule, measured ~1e-5
+      expect(u[1]).toBeCloseTo(4, 9); // straight-wire wall energy 4
+    }
+  });
+  // constrained relaxation, h = 0.05: (w, k0) -> depth U(far) - U(0) and the first-order value
+  it.each([[1, 0.05, 0.14841, 0.14791], [1, 0.2, 0.59947, 0.59162], [1, 0.5, 1.52362, 1.47906], [2, 0.2, 0.89504, 0.89044], [5, 0.2, 1.1555, 1.15508]])(
+    "bump w %s, k0 %s: constrained depth %s within 0.1%, first order %s within 10% of it",
+    (w, k0, depth, first) => {
+      const b = bumpWire("ferro", 0, k0, w, 70);
+      const [u0, far] = b.at([0, 24]);
+      expect(Math.abs((far - u0) / depth - 1)).toBeLessThan(1e-3); // measured <= 0.02%
+      expect(far).toBeCloseTo(4, 3); // straight-wire wall energy 4 (measured 3.99958 at h = 0.05)
+      const fo = firstOrderPinning(b.s, b.k, Float64Array.of(0, 24), "ferro");
+      expect(Math.abs((fo[1] - fo[0]) / first - 1)).toBeLessThan(1e-3);
+      expect(Math.abs((fo[1] - fo[0]) / (far - u0) - 1)).toBeLessThan(0.1); // target 10%; measured max 2.9% (k0 0.5)
+    },
+  );
+  it("the pinning site is found within a quarter magnetic length of an off-grid curvature maximum", () => {
+    const c = 0.37;
+    const b = bumpWire("ferro", 0, 0.3, 1, 40, 0.05, c);
+    const scan = pinningScan(b.chain, b.s, b.bg.local, b.k, "ferro", { from: b.node(-6), to: b.node(6) });
+    const sites = pinningSites(scan.q, scan.energy);
+    expect(sites.length).toBeGreaterThan(0);
+    expect(Math.abs(sites[0].q - c)).toBeLessThan(0.25); // measured ~0.02
+  });
+});
+
+describe("AFM wall on a curved background (PHYSICS.md section 5, own derivation)", () => {
+  it("uniform kb = 0.5: wall energy 1.726855 (below 4 kb: tangential admixture)", () => {
+    const b = bumpWire("antiferro", 0.5, 0, 1, 70);
+    const [u] = b.at([0]);
+    expect(Math.abs(u / 1.726855 - 1)).toBeLessThan(1e-4); // measured 1e-7
+    expect(u).toBeLessThan(4 * 0.5);
+  });
+  it.each([[1, 0.1, 0.11314], [2, 0.1, 0.17734], [1, -0.1, -0.10496]])("bump (w %s, k0 %s): U(0) - U(far) = %s within 1%", (w, k0, d) => {
+    const b = bumpWire("antiferro", 0.5, k0, w, 70);
+    const [u0] = b.at([0]);
+    expect(Math.abs((u0 - 1.726855) / d - 1)).toBeLessThan(0.01); // measured <= 0.02%
+  });
+  it("a curvature minimum pins the AFM wall; a maximum repels it (opposite to the FM)", () => {
+    const dip = bumpWire("antiferro", 0.5, -0.1, 1, 50, 0.1);
+    const a = pinningScan(dip.chain, dip.s, dip.bg.local, dip.k, "antiferro", { from: dip.node(-5), to: dip.node(5) });
+    const sites = pinningSites(a.q, a.energy);
+    expect(sites.length).toBeGreaterThan(0);
+    expect(Math.abs(sites[0].q)).toBeLessThan(0.25);
+    const hump = bumpWire("antiferro", 0.5, 0.1, 1, 50, 0.1);
+    const [top, side] = hump.at([0, 3]);
+    expect(top).toBeGreaterThan(side);
+  });
+  it("on a straight wire the AFM wall is not localised: no landscape (NaN)", () => {
+    const b = bumpWire("antiferro", 0, 0, 1, 20, 0.1);
+    expect(b.at([0])[0]).toBeNaN();
+    expect(firstOrderPinning(b.s, b.k, Float64Array.of(0), "antiferro")[0]).toBeNaN();
+  });
+});
