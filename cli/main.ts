@@ -2,6 +2,7 @@
 import { Command, CommanderError } from "@commander-js/extra-typings";
 import { InputError, ParameterError } from "../src/errors.js";
 import { TOOL_NAME, TOOL_VERSION } from "../src/export/version.js";
+import { addCenterlineCommand } from "./centerline.js";
 import { addDemoCommand } from "./demo.js";
 import type { Io } from "./io.js";
 import { addProfileCommand } from "./profile.js";
@@ -20,6 +21,7 @@ const HELP_WIDTH = 80;
 /** The commands, one per file; a new command is one more entry. */
 const COMMANDS: readonly ((program: Command, io: Io) => void)[] = [
   addProfileCommand,
+  addCenterlineCommand,
   addDemoCommand,
 ];
 

@@ -1,4 +1,7 @@
-/** `twistline profile <input> --out <file>`: the geometry stage alone (trace -> kappa, tau with bands). */
+/**
+ * `twistline profile <input> --out <file>`: the geometry stage alone (trace -> kappa, tau with bands).
+ * The input is any format of the import table: an ordered trace, a mesh, a point cloud or SVG path data.
+ */
 import { stat } from "node:fs/promises";
 import { dirname, extname } from "node:path";
 import type { Command } from "@commander-js/extra-typings";
@@ -9,7 +12,8 @@ import { profileToJson } from "../src/export/profileToJson.js";
 import { sameFile } from "../src/export/sameFile.js";
 import { writeFileAtomic } from "../src/export/writeFileAtomic.js";
 import { fitProfile, type ProfileOptions } from "../src/frame/profile.js";
-import { readTraceFile, type ReadTraceOptions } from "../src/import/readTrace.js";
+import type { BranchPolicy } from "../src/import/mesh/types.js";
+import { formatOfPath, readTraceFile, type ReadOneTraceOptions } from "../src/import/readTrace.js";
 import { TRACE_READERS } from "../src/import/traceReaders.js";
 import { DEFAULT_INPUT_UNIT } from "../src/import/types.js";
 import { PER_METRE, type InputUnit, type LengthUnit, type Profile, type Trace } from "../src/types.js";
@@ -36,6 +40,9 @@ export interface ProfileRequest {
   readonly step?: number;
   readonly outUnit?: LengthUnit;
   readonly format?: string;
+  /** 1-based wire of a file that holds several (default 1). */
+  readonly wire?: number;
+  readonly branches?: BranchPolicy;
   readonly quiet: boolean;
 }
 
@@ -59,10 +66,79 @@ export interface ProfileFlags {
   step?: string;
   outUnit?: string;
   format?: string;
+  wire?: string;
+  branches?: string;
   quiet?: true;
 }
 
 const WHERE = "profile";
+
+/** The checked input options every command that reads a wire shares; lengths in metres. */
+export interface InputRequest {
+  readonly unit?: InputUnit;
+  readonly pixelSize?: number;
+  readonly format?: string;
+  readonly wire?: number;
+  readonly branches?: BranchPolicy;
+}
+
+/** Raw input option values (text), as commander hands them over. */
+export interface InputFlags {
+  unit?: string;
+  pixelSize?: string;
+  format?: string;
+  wire?: string;
+  branches?: string;
+}
+
+/** Choices of --branches. */
+export const BRANCH_POLICIES: readonly BranchPolicy[] = ["error", "longest"];
+
+/**
+ * Checks --unit, --pixel-size, --format, --wire and --branches for `input`, the same way for every
+ * command; throws ParameterError("<where>: --option: ...") on the first bad one. SVG drawings are in
+ * user units: --pixel-size goes with them without --unit px, and --unit px may omit it (the root's
+ * physical size calibrates the drawing).
+ */
+export function checkInputFlags(where: string, input: string, flags: InputFlags): InputRequest {
+  const req: { -readonly [K in keyof InputRequest]: InputRequest[K] } = {};
+  if (flags.unit !== undefined) req.unit = parseInputUnitOption(where, "--unit", flags.unit);
+  if (flags.pixelSize !== undefined) req.pixelSize = parseLengthOption(where, "--pixel-size", flags.pixelSize);
+  if (flags.format !== undefined) req.format = parseChoiceOption(where, "--format", flags.format, [...TRACE_READERS.keys()]);
+  if (flags.wire !== undefined) {
+    const wire = /^\s*\d+\s*$/.test(flags.wire) ? Number(flags.wire) : NaN;
+    if (!(Number.isSafeInteger(wire) && wire >= 1)) throw new ParameterError(where, "--wire", `must be an integer >= 1 (got ${JSON.stringify(flags.wire)})`);
+    req.wire = wire;
+  }
+  if (flags.branches !== undefined) req.branches = parseChoiceOption(where, "--branches", flags.branches, BRANCH_POLICIES);
+  const format = req.format ?? (input === "-" ? null : formatOfPath(input));
+  if (format === "svg") {
+    if (req.unit !== undefined && req.unit !== "px") {
+      throw new ParameterError(where, "--unit", `an SVG drawing is in user units: use --pixel-size (metres per user unit) or leave --unit out (got --unit ${req.unit})`);
+    }
+    return req;
+  }
+  if (req.unit === "px" && req.pixelSize === undefined && format !== "json") {
+    throw new ParameterError(where, "--pixel-size", "is required with --unit px (e.g. --pixel-size 2.5nm)");
+  }
+  if (req.pixelSize !== undefined && req.unit !== undefined && req.unit !== "px") {
+    throw new ParameterError(where, "--pixel-size", `only applies to --unit px (got --unit ${req.unit})`);
+  }
+  return req;
+}
+
+/** The reader options of a checked input request (plus closure and standard input). */
+export function readOptionsOf(req: InputRequest, closed: boolean | undefined, io: Io): ReadOneTraceOptions {
+  const o: { -readonly [K in keyof ReadOneTraceOptions]: ReadOneTraceOptions[K] } = {};
+  if (req.unit !== undefined) o.unit = req.unit;
+  if (req.pixelSize !== undefined) o.pixelSize = req.pixelSize;
+  if (closed !== undefined) o.closed = closed;
+  if (req.format !== undefined) o.format = req.format;
+  if (req.wire !== undefined) o.wire = req.wire;
+  if (req.branches !== undefined) o.branches = req.branches;
+  if (io.readStdin !== undefined) o.io = { readStdin: io.readStdin };
+  return o;
+}
 
 /** Checks every option; throws ParameterError("profile: --option: ...") on the first bad one. */
 export function checkProfileFlags(input: string, flags: ProfileFlags): ProfileRequest {
@@ -73,20 +149,17 @@ export function checkProfileFlags(input: string, flags: ProfileFlags): ProfileRe
     seed: flags.seed === undefined ? DEFAULT_SEED : parseSeedOption(WHERE, "--seed", flags.seed),
     quiet: flags.quiet === true,
   };
-  if (flags.unit !== undefined) req.unit = parseInputUnitOption(WHERE, "--unit", flags.unit);
-  if (flags.pixelSize !== undefined) req.pixelSize = parseLengthOption(WHERE, "--pixel-size", flags.pixelSize);
+  const inputs = checkInputFlags(WHERE, input, flags);
+  if (inputs.unit !== undefined) req.unit = inputs.unit;
+  if (inputs.pixelSize !== undefined) req.pixelSize = inputs.pixelSize;
   if (flags.closed && flags.open) throw new ParameterError(WHERE, "--closed/--open", "give one of them, not both");
   if (flags.closed) req.closed = true;
   if (flags.open) req.closed = false;
   if (flags.step !== undefined) req.step = parseLengthOption(WHERE, "--step", flags.step);
   if (flags.outUnit !== undefined) req.outUnit = parseLengthUnitOption(WHERE, "--out-unit", flags.outUnit);
-  if (flags.format !== undefined) req.format = parseChoiceOption(WHERE, "--format", flags.format, [...TRACE_READERS.keys()]);
-  if (req.unit === "px" && req.pixelSize === undefined && req.format !== "json" && extname(input).toLowerCase() !== ".json") {
-    throw new ParameterError(WHERE, "--pixel-size", "is required with --unit px (e.g. --pixel-size 2.5nm)");
-  }
-  if (req.pixelSize !== undefined && req.unit !== undefined && req.unit !== "px") {
-    throw new ParameterError(WHERE, "--pixel-size", `only applies to --unit px (got --unit ${req.unit})`);
-  }
+  if (inputs.format !== undefined) req.format = inputs.format;
+  if (inputs.wire !== undefined) req.wire = inputs.wire;
+  if (inputs.branches !== undefined) req.branches = inputs.branches;
   const ext = extname(req.out).toLowerCase();
   if (req.out === "") throw new ParameterError(WHERE, "--out", "must not be empty");
   if (req.out !== "-" && ext !== ".csv" && ext !== ".json") {
@@ -106,7 +179,7 @@ const WRITE_PROBLEMS: Readonly<Record<string, string>> = {
 };
 
 /** Refuses an output that is the input, or whose folder is missing, before any work is done. */
-async function checkOutputPath(req: ProfileRequest, where: string): Promise<void> {
+export async function checkOutputPath(req: { readonly input: string; readonly out: string }, where: string): Promise<void> {
   if (req.out === "-") return;
   if (req.input !== "-" && (await sameFile(req.out, req.input))) {
     throw new ParameterError(where, "--out", `${JSON.stringify(req.out)} is the input file; refusing to overwrite it`);
@@ -118,6 +191,19 @@ async function checkOutputPath(req: ProfileRequest, where: string): Promise<void
   if (existing?.isDirectory()) throw new ParameterError(where, "--out", `${JSON.stringify(req.out)} is a directory`);
 }
 
+/** Writes `text` to `out` atomically, never over `input`; file-system failures become ParameterError(where, "--out"). */
+export async function writeOutput(out: string, text: string, input: string, where: string): Promise<void> {
+  try {
+    await writeFileAtomic(out, text, { protect: input === "-" ? [] : [input] });
+  } catch (e) {
+    const code = (e as { code?: unknown }).code;
+    if (typeof code === "string" && Object.hasOwn(WRITE_PROBLEMS, code)) {
+      throw new ParameterError(where, "--out", `cannot write ${JSON.stringify(out)}: ${WRITE_PROBLEMS[code]}`);
+    }
+    throw e;
+  }
+}
+
 /**
  * Runs the profile stage: read the trace, fit, write CSV or JSON (by the `--out` extension)
  * atomically, and print a one-line summary on stderr unless quiet.
@@ -126,13 +212,7 @@ async function checkOutputPath(req: ProfileRequest, where: string): Promise<void
 export async function runProfile(req: ProfileRequest, io: Io, where = WHERE): Promise<ProfileOutcome> {
   await checkOutputPath(req, where);
 
-  const readOptions: { -readonly [K in keyof ReadTraceOptions]: ReadTraceOptions[K] } = {};
-  if (req.unit !== undefined) readOptions.unit = req.unit;
-  if (req.pixelSize !== undefined) readOptions.pixelSize = req.pixelSize;
-  if (req.closed !== undefined) readOptions.closed = req.closed;
-  if (req.format !== undefined) readOptions.format = req.format;
-  if (io.readStdin !== undefined) readOptions.io = { readStdin: io.readStdin };
-  const trace = await readTraceFile(req.input, readOptions);
+  const trace = await readTraceFile(req.input, readOptionsOf(req, req.closed, io));
 
   const fitOptions: { -readonly [K in keyof ProfileOptions]: ProfileOptions[K] } = { bootstrap: req.bootstrap, seed: req.seed };
   if (req.closed !== undefined) fitOptions.closed = req.closed;
@@ -147,15 +227,7 @@ export async function runProfile(req: ProfileRequest, io: Io, where = WHERE): Pr
   if (req.out === "-") {
     io.stdout(text);
   } else {
-    try {
-      await writeFileAtomic(req.out, text, { protect: req.input === "-" ? [] : [req.input] });
-    } catch (e) {
-      const code = (e as { code?: unknown }).code;
-      if (typeof code === "string" && Object.hasOwn(WRITE_PROBLEMS, code)) {
-        throw new ParameterError(where, "--out", `cannot write ${JSON.stringify(req.out)}: ${WRITE_PROBLEMS[code]}`);
-      }
-      throw e;
-    }
+    await writeOutput(req.out, text, req.input, where);
   }
 
   if (!req.quiet) {
@@ -173,26 +245,44 @@ export async function runProfile(req: ProfileRequest, io: Io, where = WHERE): Pr
   return { trace, profile, outUnit };
 }
 
+/** The accepted inputs, for help texts. */
+export const INPUT_HELP =
+  "ordered trace (.csv .tsv .txt .xyz .json), tube mesh (.stl .obj .ply), point cloud (.ply without faces, or --format cloud) or SVG path data (.svg)";
+
+/** Help texts of the input options every reading command shares. */
+export const HELP = {
+  unit: `unit of the input numbers: nm, um, m, A (angstrom) or px (default: the unit the file declares, else ${DEFAULT_INPUT_UNIT})`,
+  pixelSize:
+    "size of one pixel (a voxel for meshes and clouds; one user unit for SVG), with its unit, e.g. 2.5nm " +
+    "(required with --unit px; for SVG it replaces the drawing's own calibration)",
+  format:
+    `input format: ${[...TRACE_READERS.keys()].join(", ")} (default: from the file extension; ` +
+    "cloud: unordered points in .csv .tsv .txt .xyz .json or the vertices of a .ply)",
+  wire: "which wire of a file that holds several, from 1 (meshes: largest first; SVG: document order) (default: 1)",
+  branches: "meshes: a branched wire is an error, or keep its longest path: error, longest (default: error)",
+} as const;
+
 /** Adds `profile` to the program. */
 export function addProfileCommand(program: Command, io: Io): void {
-  const formats = [...TRACE_READERS.keys()].join(", ");
   program
     .command("profile")
     .description(
-      "fit a centre line to an ordered trace and write curvature kappa(s) and torsion tau(s) with 95% bootstrap bands " +
+      "fit a centre line to a traced wire and write curvature kappa(s) and torsion tau(s) with 95% bootstrap bands " +
         "(model estimates, not measurements)",
     )
-    .argument("<input>", `ordered trace: ${[...TRACE_READERS.values()].flatMap((r) => r.extensions).join(" ")} file, or - for standard input`)
+    .argument("<input>", `${INPUT_HELP}, or - for standard input`)
     .requiredOption("--out <file>", "output: a .csv or .json file, or - for CSV on standard output")
-    .option("--unit <unit>", `unit of the input numbers: nm, um, m, A (angstrom) or px (default: the unit the file declares, else ${DEFAULT_INPUT_UNIT})`)
-    .option("--pixel-size <length>", "size of one pixel, with its unit, e.g. 2.5nm (required with --unit px)")
+    .option("--unit <unit>", HELP.unit)
+    .option("--pixel-size <length>", HELP.pixelSize)
     .option("--closed", "fit a closed loop")
     .option("--open", "fit an open wire (default: the file's declaration, else detected from the ends)")
     .option("--bootstrap <n>", `bootstrap replicates for the 95% bands, 0 for none (default: ${DEFAULT_BOOTSTRAP})`)
     .option("--seed <n>", `seed of the bootstrap random stream, 0 to 4294967295 (default: ${DEFAULT_SEED})`)
     .option("--step <length>", "resample at this arc-length step, with its unit, e.g. 5nm (default: one sample per input point)")
     .option("--out-unit <unit>", "length unit of the output, nm, um, m or A; kappa and tau in 1/unit (default: the input unit; um for px)")
-    .option("--format <format>", `input format: ${formats} (default: from the file extension)`)
+    .option("--format <format>", HELP.format)
+    .option("--wire <n>", HELP.wire)
+    .option("--branches <policy>", HELP.branches)
     .option("--quiet", "print no summary line")
     .action(async (input, flags) => {
       await runProfile(checkProfileFlags(input, flags), io);

@@ -197,9 +197,10 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
       resid[i] = Math.hypot(d12[0] - y[3 * i], d12[1] - y[3 * i + 1], d12[2] - y[3 * i + 2]);
     }
     // Robust weights from the residual norms (Rayleigh median in 3D: 1.1774 sigma; half-normal in 2D: 0.6745 sigma).
-    // Floor the scale far below any real noise (1e-4 of the median input step) so that exact,
-    // noise-free traces keep unit weights (their residuals are rounding and end effects).
-    const sc = Math.max(median(resid) / (normalDims === 2 ? 1.1774 : 0.6745), 1e-4 * medianStep);
+    // Floor the scale at 1% of the median input step: a gross outlier is off by a good part of a
+    // step at least, and nearly noise-free traces (designed paths, mesh centre lines with a small
+    // deterministic ripple) must keep unit weights.
+    const sc = Math.max(median(resid) / (normalDims === 2 ? 1.1774 : 0.6745), 1e-2 * medianStep);
     if (sc > 0) for (let i = 0; i < n; ++i) w[i] = robustWeight(resid[i], sc);
     // Map parameters to the arc length of the current fit.
     const table = arcTable(basis, sel.fit.coef);

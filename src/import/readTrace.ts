@@ -1,4 +1,4 @@
-/** File-system entry point of the import stage: read a file (or stdin), pick a reader, parse. */
+/** File-system entry point of the import stage: read a file (or stdin), pick a reader, parse into one trace per wire. */
 import { readFile } from "node:fs/promises";
 import { extname } from "node:path";
 import { InputError, ParameterError } from "../errors.js";
@@ -15,13 +15,19 @@ export interface TraceIo {
   readStdin?(): Promise<Uint8Array>;
 }
 
-/** Options of {@link readTraceFile}: the reader options plus format choice and I/O. */
+/** Options of {@link readTracesFile} and {@link readTraceFile}: the reader options plus format choice and I/O. */
 export interface ReadTraceOptions extends TraceReadOptions {
-  /** Format name (a key of `readers`, e.g. "csv" or "json"); default: from the file's extension. */
+  /** Format name (a key of `readers`, e.g. "csv", "stl" or "cloud"); default: from the file's extension. */
   readonly format?: string;
   readonly io?: TraceIo;
   /** Format table; default {@link TRACE_READERS}. */
   readonly readers?: ReadonlyMap<string, TraceReader>;
+}
+
+/** Options of {@link readTraceFile}: which wire to return when the file holds several. */
+export interface ReadOneTraceOptions extends ReadTraceOptions {
+  /** 1-based index of the wire (in the reader's order: meshes largest first, SVG in document order); default 1. */
+  readonly wire?: number;
 }
 
 function extensionList(readers: ReadonlyMap<string, TraceReader>): string {
@@ -66,17 +72,32 @@ function decodeText(bytes: Uint8Array, file: string): string {
   }
 }
 
+/** The format of standard input read without a name: PLY, SVG or JSON by their first bytes, else delimited text. */
+function sniffFormat(bytes: Uint8Array, readers: ReadonlyMap<string, TraceReader>): string | undefined {
+  const head = new TextDecoder("latin1").decode(bytes.subarray(0, 256)).replace(/^\uFEFF|^\u00EF\u00BB\u00BF/, "");
+  const pick = (name: string): string | undefined => (readers.has(name) ? name : undefined);
+  if (/^ply\r?\n/.test(head)) return pick("ply");
+  if (/^\s*</.test(head)) return pick("svg");
+  if (/^\s*\{/.test(head)) return pick("json");
+  return pick("txt");
+}
+
 /**
- * Reads an ordered trace from `path` ("-" reads `io.readStdin()`), with the reader chosen by
- * `options.format` or by the file's extension (`.csv .tsv .txt .xyz .json` built in). Standard input
- * without a format is read as JSON when its first non-blank character is "{", else as delimited text.
+ * Reads every wire in `path` ("-" reads `io.readStdin()`), with the reader chosen by
+ * `options.format` or by the file's extension: ordered traces `.csv .tsv .txt .xyz .json` (one
+ * wire), meshes `.stl .obj` and `.ply` with faces (one wire per tube, with its radius), `.ply`
+ * without faces (an unordered cloud of its vertices), `.svg` (one planar projection per path), and
+ * the format "cloud" (unordered points in delimited text, JSON or PLY) by name only. Standard input
+ * without a format is told apart by its first bytes: "ply", "<" (SVG), "{" (JSON), else delimited text.
  * Messages name the file as given (`<stdin>` for "-").
  *
- * Cost: one read plus the reader's cost (linear in the file size for the built-in readers).
+ * Cost: one read plus the reader's cost (linear in the file size for the ordered readers; see
+ * `meshCenterline` and `orderCloud` for meshes and clouds).
  * @throws {InputError} missing or unreadable file, unknown extension, non-UTF-8 text, or the
  *   reader's own errors. {@link ParameterError} for an unknown `options.format`.
+ * @example (await readTracesFile("two-wires.stl", { unit: "nm" })).length // 2
  */
-export async function readTraceFile(path: string, options: ReadTraceOptions = {}): Promise<Trace> {
+export async function readTracesFile(path: string, options: ReadTraceOptions = {}): Promise<Trace[]> {
   const readers = options.readers ?? TRACE_READERS;
   const file = path === "-" ? STDIN_NAME : path;
   let format = options.format;
@@ -97,16 +118,48 @@ export async function readTraceFile(path: string, options: ReadTraceOptions = {}
   if (options.unit !== undefined) parseOptions.unit = options.unit;
   if (options.pixelSize !== undefined) parseOptions.pixelSize = options.pixelSize;
   if (options.closed !== undefined) parseOptions.closed = options.closed;
+  if (options.branches !== undefined) parseOptions.branches = options.branches;
 
   if (format === undefined) {
-    // Standard input without a format: sniff.
-    const text = decodeText(bytes, file);
-    format = /^\s*\{/.test(text) && readers.has("json") ? "json" : "txt";
-    const reader = readers.get(format);
-    if (reader === undefined || reader.kind !== "text") throw new InputError(file, null, "format", "cannot tell the format of standard input; name it");
-    return reader.parse(text, file, parseOptions);
+    format = sniffFormat(bytes, readers);
+    if (format === undefined) throw new InputError(file, null, "format", "cannot tell the format of standard input; name it");
   }
   const reader = readers.get(format) as TraceReader;
-  if (reader.kind === "binary") return reader.parse(bytes, file, parseOptions);
-  return reader.parse(decodeText(bytes, file), file, parseOptions);
+  const traces = reader.kind === "binary" ? reader.parse(bytes, file, parseOptions) : reader.parse(decodeText(bytes, file), file, parseOptions);
+  if (traces.length === 0) throw new InputError(file, null, "wires", "none found");
+  return traces;
+}
+
+/**
+ * Wire `wire` (1-based) of the traces read from `file`.
+ * @throws {InputError} "file: wire: asked for wire 3, but the file has 1 wire" beyond the count.
+ */
+export function pickWire(traces: readonly Trace[], file: string, wire: number): Trace {
+  const n = traces.length;
+  if (wire > n) throw new InputError(file, null, "wire", `asked for wire ${wire}, but the file has ${n === 1 ? "1 wire" : `${n} wires`}`);
+  return traces[wire - 1];
+}
+
+/**
+ * Reads one wire of `path`: {@link readTracesFile}, then wire `options.wire` (1-based, default 1).
+ * When the file holds several wires the trace's diagnostics start with "file has N wires; using
+ * wire k", followed by "(--wire to choose)" when no wire was asked for.
+ *
+ * Cost: as {@link readTracesFile} (every wire of the file is read).
+ * @throws {InputError} as {@link readTracesFile}, and "file: wire: asked for wire 3, but the file has
+ *   1 wire" when `options.wire` is beyond the count. {@link ParameterError} for a wire that is not
+ *   an integer >= 1.
+ */
+export async function readTraceFile(path: string, options: ReadOneTraceOptions = {}): Promise<Trace> {
+  const wire = options.wire;
+  if (wire !== undefined && !(Number.isSafeInteger(wire) && wire >= 1)) {
+    throw new ParameterError("readTraceFile", "wire", `must be an integer >= 1 (got ${wire})`);
+  }
+  const traces = await readTracesFile(path, options);
+  const k = wire ?? 1;
+  const trace = pickWire(traces, path === "-" ? STDIN_NAME : path, k);
+  const n = traces.length;
+  if (n === 1) return trace;
+  const note = `file has ${n} wires; using wire ${k}${wire === undefined ? " (--wire to choose)" : ""}`;
+  return { ...trace, diagnostics: [note, ...trace.diagnostics] };
 }

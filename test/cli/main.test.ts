@@ -88,7 +88,7 @@ describe("main(argv, io): profile option checks", () => {
     [["--step", "-5nm"], 'profile: --step: must be a positive length with a unit (m, um, nm, A), e.g. 2.5nm (got "-5nm")'],
     [["--step", "5px"], 'profile: --step: must be a positive length with a unit (m, um, nm, A), e.g. 2.5nm (got "5px")'],
     [["--out-unit", "px"], 'profile: --out-unit: must be one of "m", "um", "nm", "A" (got "px")'],
-    [["--format", "ply"], 'profile: --format: must be one of csv, tsv, txt, xyz, json (got "ply")'],
+    [["--format", "gltf"], 'profile: --format: must be one of csv, tsv, txt, xyz, json, stl, obj, ply, svg, cloud (got "gltf")'],
     [["--closed", "--open"], "profile: --closed/--open: give one of them, not both"],
   ];
   it.each(cases)("refuses %j with exit code 1 and one line, writing nothing", async (extra, message) => {
@@ -130,7 +130,7 @@ describe("main(argv, io): profile input and output errors", () => {
     writeFileSync(input, "0 0\n");
     const r = await run(["profile", input, "--out", join(dir, "out.csv")]);
     expect(r.code).toBe(1);
-    expect(r.stderr).toBe(`twistline: ${input}: format: unknown file extension ".dat" (accepted: .csv, .tsv, .txt, .xyz, .json; or name the format)\n`);
+    expect(r.stderr).toBe(`twistline: ${input}: format: unknown file extension ".dat" (accepted: .csv, .tsv, .txt, .xyz, .json, .stl, .obj, .ply, .svg; or name the format)\n`);
   });
 
   it("refuses to overwrite the input, also through a symbolic link, before reading it", async () => {

@@ -45,17 +45,17 @@ describe("readTraceFile(path, options)", () => {
     const p = write("trace.dat", square);
     const e = await rejection(readTraceFile(p));
     expect(e).toBeInstanceOf(InputError);
-    expect(e.message).toBe(`${p}: format: unknown file extension ".dat" (accepted: .csv, .tsv, .txt, .xyz, .json; or name the format)`);
+    expect(e.message).toBe(`${p}: format: unknown file extension ".dat" (accepted: .csv, .tsv, .txt, .xyz, .json, .stl, .obj, .ply, .svg; or name the format)`);
     const q = write("noext", square);
     expect((await rejection(readTraceFile(q))).message).toBe(
-      `${q}: format: no file extension (accepted: .csv, .tsv, .txt, .xyz, .json; or name the format)`,
+      `${q}: format: no file extension (accepted: .csv, .tsv, .txt, .xyz, .json, .stl, .obj, .ply, .svg; or name the format)`,
     );
   });
 
   it("refuses an unknown format name with a ParameterError", async () => {
-    const e = await rejection(readTraceFile(write("b.csv", square), { format: "ply" }));
+    const e = await rejection(readTraceFile(write("b.csv", square), { format: "gltf" }));
     expect(e).toBeInstanceOf(ParameterError);
-    expect(e.message).toBe('readTraceFile: format: must be one of csv, tsv, txt, xyz, json (got "ply")');
+    expect(e.message).toBe('readTraceFile: format: must be one of csv, tsv, txt, xyz, json, stl, obj, ply, svg, cloud (got "gltf")');
   });
 
   it("reports a missing file, a directory and non-UTF-8 bytes as InputError", async () => {
@@ -93,7 +93,7 @@ describe("readTraceFile(path, options)", () => {
       parse(data, file, options) {
         seen.push(data.length);
         const values = Float64Array.from([0, 0, 0, 1, 0, 0, 1, 1, 0, 0, 1, 0]);
-        return buildTrace({ values, count: 4, dims: 3, declared: {} }, file, options);
+        return [buildTrace({ values, count: 4, dims: 3, declared: {} }, file, options)];
       },
     };
     const readers = new Map<string, TraceReader>([...TRACE_READERS, ["bin", binary]]);
