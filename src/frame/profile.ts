@@ -8,6 +8,7 @@ import { bootstrapBands, gridBasis, kappaTauAt, rhsNoiseFactor } from "./bootstr
 import { torsionLevel } from "./torsionLevel.js";
 import { arcAt, arcTable, evalCurve, kappaTau, uAtArc } from "./curve.js";
 import { canonicalFrame } from "./canonicalFrame.js";
+import { symEigen3 } from "./symEigen3.js";
 import { detectClosed } from "./detectClosed.js";
 import { frames } from "./frames.js";
 import { makeSmoother, selectSmoothing, solveAt, wavelengthForLambda, type Selection, type Smoother } from "./smoother.js";
@@ -496,16 +497,5 @@ function outOfPlaneVariance(y: Float64Array, w: Float64Array): number {
     c[0] += wi * dx * dx; c[1] += wi * dx * dy; c[2] += wi * dx * dz; c[3] += wi * dy * dy; c[4] += wi * dy * dz; c[5] += wi * dz * dz;
   }
   for (let k = 0; k < 6; ++k) c[k] /= sw;
-  // Smallest eigenvalue of the symmetric 3x3 by the trigonometric method (Smith 1961, CACM 4:168).
-  const [a, b, d, e, f, g] = [c[0], c[1], c[2], c[3], c[4], c[5]];
-  const p1 = b * b + d * d + f * f;
-  const q = (a + e + g) / 3;
-  const p2 = (a - q) ** 2 + (e - q) ** 2 + (g - q) ** 2 + 2 * p1;
-  const p = Math.sqrt(p2 / 6);
-  if (!(p > 0)) return a;
-  const B = [(a - q) / p, b / p, d / p, (e - q) / p, f / p, (g - q) / p];
-  const detB = B[0] * (B[3] * B[5] - B[4] * B[4]) - B[1] * (B[1] * B[5] - B[4] * B[2]) + B[2] * (B[1] * B[4] - B[3] * B[2]);
-  const r = Math.min(1, Math.max(-1, detB / 2));
-  const phi = Math.acos(r) / 3;
-  return q + 2 * p * Math.cos(phi + (2 * Math.PI) / 3);
+  return symEigen3([c[0], c[1], c[2], c[1], c[3], c[4], c[2], c[4], c[5]]).values[0];
 }
