@@ -27,7 +27,11 @@ export interface ProfileOptions {
   readonly keepSamples?: boolean;
   /** Use this smoothing level instead of the automatic choice (dimensionless, as reported). */
   readonly lambda?: number;
-  /** Curvature smoothing level: the discrepancy rule (default) or the plug-in risk of kappa. */
+  /**
+   * Curvature smoothing level: the discrepancy rule (default) or the plug-in risk of kappa from a
+   * GCV pilot. The risk rule is closer to the best level on wires with localised curvature (bumps,
+   * knots) but measured 1.3-6x worse on helix-like wires (bench/accuracy.ts), hence not the default.
+   */
   readonly kappaLevel?: "discrepancy" | "risk";
   /** Number of knot intervals (default: from the point count, then matched to the smoothing scale). */
   readonly segments?: number;
