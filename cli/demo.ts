@@ -1,18 +1,25 @@
-/** `twistline demo [--out <dir>]`: the profile stage on the invented demo wires of fixtures/demo. */
+/**
+ * `twistline demo [--out <dir>]`: `analyze` on the invented demo wires of fixtures/demo (a coil
+ * with a pitch defect, a ring, a meander with a sharp bend) with the invented demo material, on
+ * the batch's worker threads; prints a short table.
+ */
 import { existsSync } from "node:fs";
-import { mkdir, readdir, stat } from "node:fs/promises";
-import { basename, join } from "node:path";
+import { readdir } from "node:fs/promises";
+import { availableParallelism } from "node:os";
+import { join } from "node:path";
 import { fileURLToPath } from "node:url";
 import type { Command } from "@commander-js/extra-typings";
-import { max, mean } from "d3-array";
 import { ParameterError } from "../src/errors.js";
-import { PER_METRE } from "../src/types.js";
+import type { SummaryRow } from "../src/export/summaryToCsv.js";
+import { checkPipelineFlags, PIPELINE_HELP } from "./analyze.js";
+import { reportFailures, runBatch, SUMMARY_NAME } from "./batch.js";
 import type { Io } from "./io.js";
 import { brief } from "./options.js";
-import { DEFAULT_BOOTSTRAP, DEFAULT_SEED, runProfile, type ProfileOutcome } from "./profile.js";
 
 /** Output folder of `demo` when --out is not given (relative to the working directory). */
 export const DEFAULT_DEMO_DIR = "twistline-demo";
+/** The invented demo material (a soft ferromagnet), in fixtures/demo. */
+export const DEMO_MATERIAL = "material-invented-soft-ferro.json";
 const WHERE = "demo";
 
 /** The folder of demo wires: fixtures/demo next to cli/ (from source) or next to dist/ (built). */
@@ -30,63 +37,56 @@ export async function demoWires(dir = demoDataDir()): Promise<string[]> {
   return names.map((f) => join(dir, f));
 }
 
-async function checkOutDir(dir: string, force: boolean): Promise<void> {
-  const info = await stat(dir).catch(() => null);
-  if (info === null) return;
-  if (!info.isDirectory()) throw new ParameterError(WHERE, "--out", `${JSON.stringify(dir)} exists and is not a folder`);
-  if (!force && (await readdir(dir)).length > 0) {
-    throw new ParameterError(WHERE, "--out", `folder ${JSON.stringify(dir)} exists and is not empty (add --force to write into it)`);
-  }
-}
-
 function table(rows: readonly (readonly string[])[]): string {
   const widths = rows[0].map((_, c) => Math.max(...rows.map((r) => r[c].length)));
   return rows.map((r) => r.map((cell, c) => (c === 0 ? cell.padEnd(widths[c]) : cell.padStart(widths[c]))).join("  ").trimEnd()).join("\n");
 }
 
-function row(name: string, o: ProfileOutcome): string[] {
-  const k = PER_METRE[o.outUnit];
-  const p = o.profile;
-  // d3-array mean/max skip NaN (tau is NaN where undefined).
-  const meanKappa = mean(p.kappa) ?? NaN;
-  const maxKappa = max(p.kappa) ?? NaN;
-  const meanAbsTau = mean(p.tau, Math.abs) ?? NaN;
-  const show = (v: number): string => (Number.isFinite(v) ? brief(v) : "n/a");
-  return [
-    name, o.outUnit, String(o.trace.xyz.length / 3), show(p.length * k),
-    show(meanKappa / k), show(maxKappa / k), show(meanAbsTau / k),
-  ];
+/** The demo's stdout table: one line per wire. */
+export function demoTable(rows: readonly SummaryRow[]): string {
+  const show = (v: number | null | undefined): string => (v === null || v === undefined || !Number.isFinite(v) ? "n/a" : brief(v));
+  const out: string[][] = [["wire", "unit", "points", "length", "mean kappa", "max kappa", "mean |tau|", "stretches", "pinning", "deepest kT", "metastable"]];
+  for (const r of rows) {
+    const s = r.summary;
+    if (s === null) { out.push([r.wire, "error", "", "", "", "", "", "", "", "", ""]); continue; }
+    const st = s.stretches;
+    const kinds = [[st.straight, "S"], [st.arc, "A"], [st.helix, "H"], [st.irregular, "I"]].filter(([c]) => Number(c) > 0).map(([c, l]) => `${c}${l}`).join(" ");
+    out.push([
+      r.wire, s.unit, String(s.points), show(s.length), show(s.kappaMean.value), show(s.kappaMax.value), show(Math.abs(s.tauMean.value)),
+      kinds, show(s.pinningSites), show(s.deepestPinKT), show(s.metastableLength),
+    ]);
+  }
+  return table(out);
 }
 
-/** Runs the demo; returns the outcomes by wire name. */
-export async function runDemo(outDir: string, force: boolean, quiet: boolean, io: Io): Promise<Map<string, ProfileOutcome>> {
-  await checkOutDir(outDir, force);
-  const wires = await demoWires();
-  await mkdir(outDir, { recursive: true });
-  const outcomes = new Map<string, ProfileOutcome>();
-  for (const input of wires) {
-    const name = basename(input, ".csv");
-    await mkdir(join(outDir, name), { recursive: true });
-    const out = join(outDir, name, "profile.csv");
-    outcomes.set(name, await runProfile({ input, out, bootstrap: DEFAULT_BOOTSTRAP, seed: DEFAULT_SEED, quiet: true }, io, WHERE));
-  }
-  const rows: string[][] = [["wire", "unit", "points", "length", "mean kappa", "max kappa", "mean |tau|"]];
-  for (const [name, o] of outcomes) rows.push(row(name, o));
+/** Runs the demo; returns the summary rows (coil, meander, ring). */
+export async function runDemo(outDir: string, force: boolean, quiet: boolean, io: Io, jobs = availableParallelism()): Promise<SummaryRow[]> {
+  const dir = demoDataDir();
+  const wires = await demoWires(dir);
+  const req = checkPipelineFlags(WHERE, wires[0], { material: join(dir, DEMO_MATERIAL), ...(force ? { force: true as const } : {}), ...(quiet ? { quiet: true as const } : {}) });
+  const t0 = performance.now();
+  const rows = await runBatch(wires, outDir, req, { jobs, ci: process.env.CI, where: WHERE }, io);
+  const seconds = (performance.now() - t0) / 1000;
   io.stdout(
-    "invented demo wires: model estimates, not measurements (length in unit, kappa and tau in 1/unit)\n" +
-      `${table(rows)}\n`,
+    "invented demo wires and invented demo material (a soft ferromagnet): model estimates, not measurements\n" +
+      "(length in unit, kappa and tau in 1/unit; stretches S straight, A arc, H helix, I irregular; deepest pinning site in k_B T at 300 K; metastable length in unit)\n" +
+      `${demoTable(rows)}\n`,
   );
-  if (!quiet) io.stderr(`twistline: demo: wrote ${outcomes.size} profiles under ${outDir}\n`);
-  return outcomes;
+  if (!quiet) io.stderr(`twistline: demo: ${rows.length} wires in ${seconds.toFixed(1)} s; open ${join(outDir, "coil", "report.html")} (and the others); table in ${join(outDir, SUMMARY_NAME)}\n`);
+  reportFailures(rows, outDir, true, io, WHERE);
+  return rows;
 }
 
 /** Adds `demo` to the program. */
 export function addDemoCommand(program: Command, io: Io): void {
   program
     .command("demo")
-    .description("run the profile stage on the invented demo wires (a coil with a pitch defect, a ring, a meander) and print a table")
-    .option("--out <dir>", `output folder; gets <wire>/profile.csv per wire (default: ${DEFAULT_DEMO_DIR})`)
-    .option("--force", "write into the output folder even if it is not empty")
+    .description(
+      "analyze the invented demo wires (a coil with a pitch defect, a ring, a meander with a sharp bend) with an invented soft-ferromagnet " +
+        "material: one folder per wire with profile, model, chain, mesh and report, and a short table",
+    )
+    .option("--out <dir>", `output folder (default: ${DEFAULT_DEMO_DIR})`)
+    .option("--force", PIPELINE_HELP.force)
     .option("--quiet", "print no summary line on stderr")
     .action(async (flags) => {
       if (flags.out === "") throw new ParameterError(WHERE, "--out", "must not be empty");

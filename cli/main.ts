@@ -2,6 +2,8 @@
 import { Command, CommanderError } from "@commander-js/extra-typings";
 import { InputError, ParameterError } from "../src/errors.js";
 import { TOOL_NAME, TOOL_VERSION } from "../src/export/version.js";
+import { addAnalyzeCommand } from "./analyze.js";
+import { addBatchCommand } from "./batch.js";
 import { addCenterlineCommand } from "./centerline.js";
 import { addDemoCommand } from "./demo.js";
 import type { Io } from "./io.js";
@@ -22,6 +24,8 @@ const HELP_WIDTH = 80;
 const COMMANDS: readonly ((program: Command, io: Io) => void)[] = [
   addProfileCommand,
   addCenterlineCommand,
+  addAnalyzeCommand,
+  addBatchCommand,
   addDemoCommand,
 ];
 

@@ -6,6 +6,7 @@ import type { IntrinsicAnisotropy, MagneticOrder, Material } from "./types.js";
 
 /** The material JSON as written by a user (see schemas/material.schema.json). */
 export interface MaterialJson {
+  readonly note?: string;
   order: MagneticOrder;
   exchange?: number;
   anisotropy?: number;

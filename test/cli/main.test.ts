@@ -175,7 +175,7 @@ describe("main(argv, io): demo checks", () => {
   it("refuses to write into a non-empty folder without --force", async () => {
     const { dir } = fresh();
     const r = await run(["demo", "--out", dir]);
-    expect(r).toEqual({ code: 1, stdout: "", stderr: `twistline: demo: --out: folder ${JSON.stringify(dir)} exists and is not empty (add --force to write into it)\n` });
+    expect(r).toEqual({ code: 1, stdout: "", stderr: `twistline: demo: --out: folder ${JSON.stringify(dir)} exists and is not empty (add --force to replace it)\n` });
     expect(readdirSync(dir)).toEqual(["wire.csv"]);
   });
 

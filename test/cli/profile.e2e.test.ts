@@ -178,23 +178,3 @@ describe.skipIf(!fitReady)("twistline profile, end to end", () => {
   });
 });
 
-describe.skipIf(!fitReady)("twistline demo, end to end", () => {
-  it("writes one profile per demo wire and prints a table; refuses to run twice without --force", async () => {
-    const dir = join(root, "demo-out");
-    const r = await run(["demo", "--out", dir]);
-    expect(r.code).toBe(0);
-    expect(readdirSync(dir).sort()).toEqual(["coil", "meander", "ring"]);
-    for (const name of ["coil", "meander", "ring"]) expect(existsSync(join(dir, name, "profile.csv"))).toBe(true);
-    const lines = r.stdout.trimEnd().split("\n");
-    expect(lines[0]).toContain("invented demo wires");
-    expect(lines[1].split(/\s{2,}/)).toEqual(["wire", "unit", "points", "length", "mean kappa", "max kappa", "mean |tau|"]);
-    expect(lines.slice(2).map((l) => l.split(/\s+/).slice(0, 3))).toEqual([["coil", "nm", "600"], ["meander", "nm", "380"], ["ring", "nm", "300"]]);
-    expect(r.stderr).toBe(`twistline: demo: wrote 3 profiles under ${dir}\n`);
-    // The ring is closed: its mean curvature lies between the ellipse's extremes 145/155^2 and 155/145^2 (1/nm).
-    const ring = lines[4].split(/\s+/).map(Number);
-    expect(ring[4]).toBeGreaterThan(0.006);
-    expect(ring[4]).toBeLessThan(0.0074);
-    expect((await run(["demo", "--out", dir])).code).toBe(1);
-    expect((await run(["demo", "--out", dir, "--force", "--quiet"])).code).toBe(0);
-  });
-});

@@ -1,0 +1,177 @@
+/**
+ * `twistline analyze <input> --material <material.json> --out <dir>`: the whole pipeline for one wire.
+ * Writes profile.csv, model.json, chain.csv, wire.<mesh> and report.html into <dir>, all at once
+ * (a temporary folder renamed into place) or not at all.
+ */
+import type { Command } from "@commander-js/extra-typings";
+import { ParameterError } from "../src/errors.js";
+import { MESH_FORMATS, type MeshFormat } from "../src/export/meshToBytes.js";
+import { stageOutputDir } from "../src/export/stageOutputDir.js";
+import type { Material } from "../src/physics/types.js";
+import { viewerScript } from "../src/report/viewerScript.js";
+import { PER_METRE, type LengthUnit } from "../src/types.js";
+import type { Io } from "./io.js";
+import { brief, parseChoiceOption, parseCountOption, parseLengthOption, parseLengthUnitOption, parseSeedOption } from "./options.js";
+import { checkInputFlags, DEFAULT_BOOTSTRAP, DEFAULT_SEED, HELP, INPUT_HELP, readOptionsOf, type InputFlags, type InputRequest } from "./profile.js";
+import { readMaterialFile, runWireJob, type WireJob, type WireJobResult } from "./wireJob.js";
+
+const WHERE = "analyze";
+
+/** Mesh format when --mesh is not given. */
+export const DEFAULT_MESH: MeshFormat = "ply";
+
+/** Raw option values shared by analyze, batch and demo (text, as commander hands them over). */
+export interface PipelineFlags extends InputFlags {
+  material?: string;
+  closed?: true;
+  open?: true;
+  bootstrap?: string;
+  seed?: string;
+  step?: string;
+  outUnit?: string;
+  spacing?: string;
+  mesh?: string;
+  radius?: string;
+  force?: true;
+  quiet?: true;
+}
+
+/** Checked pipeline options; lengths in metres. */
+export interface PipelineRequest {
+  readonly inputs: InputRequest;
+  readonly materialFile: string | null;
+  readonly closed?: boolean;
+  readonly bootstrap: number;
+  readonly seed: number;
+  readonly step?: number;
+  readonly outUnit?: LengthUnit;
+  readonly spacing?: number;
+  readonly mesh: MeshFormat;
+  readonly radius?: number;
+  readonly force: boolean;
+  readonly quiet: boolean;
+}
+
+/** Checks the pipeline options; throws ParameterError("<where>: --option: ...") on the first bad one. */
+export function checkPipelineFlags(where: string, input: string, flags: PipelineFlags): PipelineRequest {
+  const req: { -readonly [K in keyof PipelineRequest]: PipelineRequest[K] } = {
+    inputs: checkInputFlags(where, input, flags),
+    materialFile: flags.material ?? null,
+    bootstrap: flags.bootstrap === undefined ? DEFAULT_BOOTSTRAP : parseCountOption(where, "--bootstrap", flags.bootstrap),
+    seed: flags.seed === undefined ? DEFAULT_SEED : parseSeedOption(where, "--seed", flags.seed),
+    mesh: flags.mesh === undefined ? DEFAULT_MESH : parseChoiceOption(where, "--mesh", flags.mesh, MESH_FORMATS),
+    force: flags.force === true,
+    quiet: flags.quiet === true,
+  };
+  if (req.materialFile === "") throw new ParameterError(where, "--material", "must not be empty");
+  if (flags.closed && flags.open) throw new ParameterError(where, "--closed/--open", "give one of them, not both");
+  if (flags.closed) req.closed = true;
+  if (flags.open) req.closed = false;
+  if (flags.step !== undefined) req.step = parseLengthOption(where, "--step", flags.step);
+  if (flags.outUnit !== undefined) req.outUnit = parseLengthUnitOption(where, "--out-unit", flags.outUnit);
+  if (flags.spacing !== undefined) req.spacing = parseLengthOption(where, "--spacing", flags.spacing);
+  if (flags.radius !== undefined) req.radius = parseLengthOption(where, "--radius", flags.radius);
+  if (req.bootstrap > 100_000) throw new ParameterError(where, "--bootstrap", `must be at most 100000 (got ${req.bootstrap})`);
+  return req;
+}
+
+/** A job for one input of a checked request. */
+export function jobOf(req: PipelineRequest, input: string, material: Material | null, dir: string, io: Io): WireJob {
+  return {
+    input,
+    readOptions: readOptionsOf(req.inputs, req.closed, io),
+    material,
+    materialFile: req.materialFile,
+    bootstrap: req.bootstrap,
+    seed: req.seed,
+    mesh: req.mesh,
+    dir,
+    ...(req.closed !== undefined ? { closed: req.closed } : {}),
+    ...(req.step !== undefined ? { step: req.step } : {}),
+    ...(req.outUnit !== undefined ? { outUnit: req.outUnit } : {}),
+    ...(req.spacing !== undefined ? { spacing: req.spacing } : {}),
+    ...(req.radius !== undefined ? { radius: req.radius } : {}),
+  };
+}
+
+/** One line about a finished wire, for stderr. */
+export function describeResult(name: string, r: WireJobResult): string {
+  const d = r.outputs.document;
+  const u = d.unit;
+  const kinds = (["straight", "arc", "helix", "irregular"] as const)
+    .map((k) => [k, d.segments.filter((g) => g.kind === k).length] as const)
+    .filter(([, c]) => c > 0)
+    .map(([k, c]) => `${c} ${k}`)
+    .join(", ");
+  const model = d.material !== null
+    ? `; ${d.pinning.length} pinning ${d.pinning.length === 1 ? "site" : "sites"}, ${d.segments.filter((g) => g.homogeneousStability === "metastable").length} metastable`
+    : "; geometry only (no material)";
+  return `${name}: length ${brief(d.geometry.length ?? NaN)} ${u}, ${d.segments.length} ${d.segments.length === 1 ? "stretch" : "stretches"} (${kinds})${model}`;
+}
+
+/**
+ * Runs analyze: checks the output folder first (refused when it exists and is not empty, unless
+ * --force), reads the material and the wire, runs the pipeline, writes everything into a temporary
+ * folder and renames it into place; on any error the temporary folder is removed and nothing is left.
+ */
+export async function runAnalyze(input: string, out: string, req: PipelineRequest, io: Io): Promise<WireJobResult> {
+  const staged = await stageOutputDir(out, { force: req.force, protect: [input, ...(req.materialFile !== null ? [req.materialFile] : [])], where: WHERE });
+  try {
+    const material = req.materialFile !== null ? await readMaterialFile(req.materialFile) : null;
+    const result = await runWireJob(jobOf(req, input, material, staged.path, io), await viewerScript());
+    await staged.commit();
+    if (!req.quiet) {
+      const d = result.outputs.document;
+      const k = PER_METRE[d.unit];
+      io.stderr(
+        `twistline: ${describeResult(d.source.file, result)}; chain spacing ${brief(result.outputs.chain.spacing * k)} ${d.unit} (${result.outputs.spacingNote}); wrote ${out}\n`,
+      );
+      if (d.material === null) io.stderr("twistline: no --material: add one for effective DMI and anisotropy, states, metastability and pinning sites\n");
+    }
+    return result;
+  } catch (e) {
+    await staged.abort();
+    throw e;
+  }
+}
+
+/** Help texts of the options analyze, batch and demo share. */
+export const PIPELINE_HELP = {
+  material: "material JSON (order; exchange in J/m and anisotropy in J/m^3, or magneticLength in m; optional thickness, latticeSpacing in m, temperature in K); without it: geometry only",
+  spacing: "spacing of chain.csv sites, with its unit, e.g. 1nm (default: a quarter of the resolution length, and at most a quarter of the magnetic length with a material)",
+  mesh: `tube mesh format: ${MESH_FORMATS.join(", ")} (default: ${DEFAULT_MESH})`,
+  radius: "tube radius, with its unit (default: the radius measured at import for meshes, else half the material thickness, else 1% of the bounding-box diagonal)",
+  force: "replace an existing output folder (only one holding nothing but twistline outputs)",
+} as const;
+
+/** Adds `analyze` to the program. */
+export function addAnalyzeCommand(program: Command, io: Io): void {
+  program
+    .command("analyze")
+    .description(
+      "the whole pipeline for one wire: profile with 95% bands, stretches, the curvilinear-magnet model (with --material), " +
+        "a chain for solvers, a tube mesh and an HTML report, all written into one folder (model estimates, not measurements)",
+    )
+    .argument("<input>", `${INPUT_HELP}, or - for standard input`)
+    .requiredOption("--out <dir>", "output folder (created; refused if it exists and is not empty, unless --force)")
+    .option("--material <file>", PIPELINE_HELP.material)
+    .option("--spacing <length>", PIPELINE_HELP.spacing)
+    .option("--mesh <format>", PIPELINE_HELP.mesh)
+    .option("--radius <length>", PIPELINE_HELP.radius)
+    .option("--unit <unit>", HELP.unit)
+    .option("--pixel-size <length>", HELP.pixelSize)
+    .option("--closed", "fit a closed loop")
+    .option("--open", "fit an open wire (default: the file's declaration, else detected from the ends)")
+    .option("--bootstrap <n>", `bootstrap replicates for the 95% bands (default: ${DEFAULT_BOOTSTRAP})`)
+    .option("--seed <n>", `seed of the bootstrap and the model's draws, 0 to 4294967295 (default: ${DEFAULT_SEED})`)
+    .option("--step <length>", "profile sampling step, with its unit (default: one sample per input point)")
+    .option("--out-unit <unit>", "length unit of every output, nm, um, m or A (default: the input unit; um for px)")
+    .option("--format <format>", HELP.format)
+    .option("--wire <n>", HELP.wire)
+    .option("--branches <policy>", HELP.branches)
+    .option("--force", PIPELINE_HELP.force)
+    .option("--quiet", "print no summary line")
+    .action(async (input, flags) => {
+      await runAnalyze(input, flags.out, checkPipelineFlags(WHERE, input, flags), io);
+    });
+}

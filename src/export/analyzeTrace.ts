@@ -1,0 +1,65 @@
+import { fitProfile, type ProfileOptions } from "../frame/profile.js";
+import { segment, type SegmentOptions } from "../frame/segment.js";
+import { buildWireModel, type WireModelOptions } from "../physics/buildWireModel.js";
+import type { Material, WireModel } from "../physics/types.js";
+import type { Profile, Segment, Trace } from "../types.js";
+
+/** Options of {@link analyzeTrace}. Lengths in metres. */
+export interface AnalyzeOptions {
+  /** Force a closed or open fit (default: the trace's declaration, else detected). */
+  readonly closed?: boolean;
+  /** Bootstrap replicates (default 200). */
+  readonly bootstrap?: number;
+  /** Seed of the bootstrap and of the model's draws (default 1). */
+  readonly seed?: number;
+  /** Profile sampling step (m); default one sample per input point. */
+  readonly step?: number;
+  /** A validated material (physics/parseMaterial); null or absent: geometry only. */
+  readonly material?: Material | null;
+  readonly segmentOptions?: SegmentOptions;
+  readonly modelOptions?: WireModelOptions;
+}
+
+/** Everything one wire's analysis produced (SI units inside, as everywhere in src/). */
+export interface Analysis {
+  readonly trace: Trace;
+  /** The fitted profile, import diagnostics merged into `diagnostics`, bootstrap replicates kept. */
+  readonly profile: Profile;
+  readonly segments: readonly Segment[];
+  readonly material: Material | null;
+  /** The curvilinear-magnet model, null for a geometry-only run. */
+  readonly model: WireModel | null;
+  readonly seed: number;
+  /** Wall time of each stage (ms), for the benchmark and the report footer. */
+  readonly timings: { readonly profile: number; readonly segment: number; readonly model: number };
+}
+
+/**
+ * The whole pipeline for one traced wire: fit the profile with its bootstrap replicates
+ * (`fitProfile`, keepSamples on so the stretch bands and the label probabilities come from the
+ * replicates), cut it into stretches (`segment`) and, with a material, build the model
+ * (`buildWireModel`). No file I/O. Deterministic for a given seed.
+ *
+ * Units: SI in and out. Cost: the fit (~O(n) per pass plus the bootstrap) and, with a material,
+ * seconds of physics (periodic searches per stretch, one relaxation, the pinning scan).
+ * @throws {InputError} from the fit (too few points, non-finite coordinates, zero length).
+ * @throws {ParameterError} bad options.
+ * @example analyzeTrace(trace, { material }).model?.segments[0].state // "homogeneous"
+ */
+export function analyzeTrace(trace: Trace, options: AnalyzeOptions = {}): Analysis {
+  const seed = options.seed ?? 1;
+  const fitOptions: { -readonly [K in keyof ProfileOptions]: ProfileOptions[K] } = { bootstrap: options.bootstrap ?? 200, seed, keepSamples: true };
+  if (options.closed !== undefined) fitOptions.closed = options.closed;
+  if (options.step !== undefined) fitOptions.step = options.step;
+  const t0 = performance.now();
+  const fitted = fitProfile(trace, fitOptions);
+  const diagnostics = [...trace.diagnostics, ...fitted.diagnostics.filter((d) => !trace.diagnostics.includes(d))];
+  const profile: Profile = { ...fitted, diagnostics };
+  const t1 = performance.now();
+  const segments = segment(profile, options.segmentOptions ?? {});
+  const t2 = performance.now();
+  const material = options.material ?? null;
+  const model = material !== null ? buildWireModel(profile, segments, material, { seed, ...options.modelOptions }) : null;
+  const t3 = performance.now();
+  return { trace, profile, segments, material, model, seed, timings: { profile: t1 - t0, segment: t2 - t1, model: t3 - t2 } };
+}
