@@ -9,6 +9,8 @@ export interface SegmentOptions {
   readonly minLength?: number;
   /** Reduced chi-square per effective sample above which a stretch is "irregular" (default 4). */
   readonly irregularChi2?: number;
+  /** ...and relative RMS variation of (kappa, tau) against |(kappa, tau)| above which (default 0.1). */
+  readonly irregularRelative?: number;
 }
 
 /**
@@ -25,7 +27,8 @@ export interface SegmentOptions {
  * than the penalty are joined.
  * Labels: "straight" when most samples have undefined torsion or the kappa band of the mean reaches
  * 0 (band width >= mean); "irregular" when the within-stretch reduced chi-square exceeds
- * irregularChi2; "arc" when the tau band contains 0 (or torsion is not measurable); else "helix".
+ * irregularChi2 and the RMS variation of (kappa, tau) exceeds irregularRelative (10%) of their
+ * magnitude, so that a significant but small variation still counts as a helix or an arc; "arc" when the tau band contains 0 (or torsion is not measurable); else "helix".
  * Means are weighted; bands are 2.5/97.5% quantiles of the per-replicate stretch means when the
  * profile keeps its replicates, else the mean half-band divided by sqrt(max(1, stretch/resolution)).
  * Degenerate input: n < 2 gives one stretch (or none for n = 0). Cost O(n) typical (PELT), O(n^2)
@@ -164,9 +167,15 @@ export function segment(profile: Profile, options: SegmentOptions = {}): Segment
     let undefinedCount = 0;
     for (let i = i0; i < i1; ++i) if (flags[i] & FLAG_TORSION_UNDEFINED) undefinedCount++;
     const chi2 = (ss(K, i0, i1) + ss(Tt, i0, i1)) * rho / Math.max(1, nSeg);
+    // Practical size of the variation: RMS deviation of kappa and tau about their means, relative
+    // to the stretch's |Darboux| = sqrt(kappa^2 + tau^2). A statistically significant but small
+    // variation (a few %) still describes a helix or an arc to the model.
+    const rmsK = Math.sqrt(spread(kv, i0, i1)), rmsT = Math.sqrt(spreadWhere(tv, wt, i0, i1));
+    const darboux = Math.hypot(km, Number.isFinite(tm) ? tm : 0);
+    const relVar = darboux > 0 ? Math.hypot(rmsK, rmsT) / darboux : Infinity;
     let kind: SegmentKind;
     if (undefinedCount > 0.5 * (i1 - i0) || kHi - kLo >= km || km <= 0) kind = "straight";
-    else if (chi2 > (options.irregularChi2 ?? 4)) kind = "irregular";
+    else if (chi2 > (options.irregularChi2 ?? 4) && relVar > (options.irregularRelative ?? 0.1)) kind = "irregular";
     else if (!Number.isFinite(tm) || profile.planarProjection || (tLo <= 0 && tHi >= 0)) kind = "arc";
     else kind = "helix";
     out.push({ s0: s[i0], s1: i1 < n ? s[i1] : s[n - 1], i0, i1, kind, kappa: km, kappaLo: kLo, kappaHi: kHi, tau: tm, tauLo: tLo, tauHi: tHi });
@@ -178,4 +187,19 @@ function mean(x: Float64Array, i0: number, i1: number): number {
   let a = 0;
   for (let i = i0; i < i1; ++i) a += x[i];
   return a / Math.max(1, i1 - i0);
+}
+
+/** Variance of x over [i0, i1). */
+function spread(x: Float64Array, i0: number, i1: number): number {
+  const m = mean(x, i0, i1);
+  let a = 0;
+  for (let i = i0; i < i1; ++i) a += (x[i] - m) ** 2;
+  return a / Math.max(1, i1 - i0);
+}
+
+/** Variance of x over the samples of [i0, i1) with positive weight (0 when none). */
+function spreadWhere(x: Float64Array, w: Float64Array, i0: number, i1: number): number {
+  let a = 0, b = 0, c = 0;
+  for (let i = i0; i < i1; ++i) if (w[i] > 0) { a += x[i]; b += x[i] * x[i]; ++c; }
+  return c > 1 ? Math.max(0, b / c - (a / c) ** 2) : 0;
 }
