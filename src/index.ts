@@ -19,7 +19,7 @@ export type { SegmentOptions } from "./frame/segment.js";
 export type { MaterialJson } from "./physics/parseMaterial.js";
 export type { Material, WireModel, StretchModel, PinningSite, SampleInteractions } from "./physics/types.js";
 export type { LengthUnit, InputUnit, Profile, Segment, SegmentKind, Source, Trace } from "./types.js";
-export { FLAG_END, FLAG_FRAME_TRANSPORTED, FLAG_TORSION_NOT_MEASURABLE, FLAG_TORSION_UNDEFINED, PER_METRE } from "./types.js";
+export { FLAG_BIAS, FLAG_END, FLAG_FRAME_TRANSPORTED, FLAG_TORSION_NOT_MEASURABLE, FLAG_TORSION_UNDEFINED, PER_METRE } from "./types.js";
 export { InputError, ParameterError } from "./errors.js";
 export { segment } from "./frame/segment.js";
 export { buildWireModel } from "./physics/buildWireModel.js";
