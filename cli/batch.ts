@@ -268,7 +268,7 @@ export function addBatchCommand(program: Command, io: Io): void {
       if (jobs < 1) throw new ParameterError(WHERE, "--jobs", `must be at least 1 (got ${jobs})`);
       const files = await expandInputs(inputs);
       const req = checkPipelineFlags(WHERE, files[0], flags);
-      const rows = await runBatch(files, flags.out, req, { jobs, ci: process.env.CI }, io);
+      const rows = await runBatch(files, flags.out, req, { jobs, ci: io.ci }, io);
       reportFailures(rows, flags.out, req.quiet, io);
     });
 }

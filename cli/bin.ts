@@ -19,4 +19,5 @@ process.exitCode = await main(process.argv.slice(2), {
   stderr: (s) => void process.stderr.write(s),
   readStdin,
   stderrIsTTY: process.stderr.isTTY === true,
+  ...(process.env.CI !== undefined ? { ci: process.env.CI } : {}),
 });

@@ -65,7 +65,7 @@ export async function runDemo(outDir: string, force: boolean, quiet: boolean, io
   const wires = await demoWires(dir);
   const req = checkPipelineFlags(WHERE, wires[0], { material: join(dir, DEMO_MATERIAL), ...(force ? { force: true as const } : {}), ...(quiet ? { quiet: true as const } : {}) });
   const t0 = performance.now();
-  const rows = await runBatch(wires, outDir, req, { jobs, ci: process.env.CI, where: WHERE }, io);
+  const rows = await runBatch(wires, outDir, req, { jobs, ci: io.ci, where: WHERE }, io);
   const seconds = (performance.now() - t0) / 1000;
   io.stdout(
     "invented demo wires and invented demo material (a soft ferromagnet): model estimates, not measurements\n" +

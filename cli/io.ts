@@ -8,4 +8,6 @@ export interface Io {
   readStdin?(): Promise<Uint8Array>;
   /** Whether stderr is a terminal (progress output only then). */
   readonly stderrIsTTY?: boolean;
+  /** The CI environment variable (plain periodic progress lines when set and stderr is no terminal). */
+  readonly ci?: string;
 }
