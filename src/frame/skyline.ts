@@ -167,3 +167,20 @@ function columnPattern(first: Int32Array): Int32Array[] {
   patternCache.set(first, rows);
   return rows;
 }
+
+/** y = S x[off .. off + n) for a symmetric skyline S (y of length n, not aliasing x). O(n b). */
+export function symMul(S: Skyline, x: Float64Array, off: number, y: Float64Array): void {
+  const { n, first, offset, data } = S;
+  y.fill(0);
+  for (let i = 0; i < n; ++i) {
+    const fi = first[i], oi = offset[i];
+    let s = 0;
+    for (let j = fi; j < i; ++j) {
+      const a = data[oi + j - fi];
+      s += a * x[off + j];
+      y[j] += a * x[off + i];
+    }
+    y[i] += s + data[oi + i - fi] * x[off + i];
+  }
+}
+

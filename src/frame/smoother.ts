@@ -1,6 +1,6 @@
 import type { SplineBasis } from "./bspline.js";
 import { differencePenalty, normalEquations, type Normal } from "./design.js";
-import { factorLdl, makeSkyline, selectedInverse, solveLdl, type Skyline } from "./skyline.js";
+import { factorLdl, makeSkyline, selectedInverse, solveLdl, symMul, type Skyline } from "./skyline.js";
 
 /**
  * A penalised spline smoother for one parametrisation: the normal equations, the penalty, and
@@ -44,22 +44,6 @@ export function lambdaForWavelength(wavelength: number, rho: number, h: number):
 /** Inverse of lambdaForWavelength: the half-power wavelength of a smoothing level. */
 export function wavelengthForLambda(lambda: number, rho: number, h: number): number {
   return 2 * Math.PI * Math.pow((lambda * Math.pow(h, 7)) / rho, 1 / 8);
-}
-
-/** y = S x for a symmetric skyline S. */
-function symMul(S: Skyline, x: Float64Array, off: number, y: Float64Array): void {
-  const { n, first, offset, data } = S;
-  y.fill(0);
-  for (let i = 0; i < n; ++i) {
-    const fi = first[i], oi = offset[i];
-    let s = 0;
-    for (let j = fi; j < i; ++j) {
-      const a = data[oi + j - fi];
-      s += a * x[off + j];
-      y[j] += a * x[off + i];
-    }
-    y[i] += s + data[oi + i - fi] * x[off + i];
-  }
 }
 
 /** Solves at one lambda. Cost O(K b^2). */

@@ -10,7 +10,7 @@ export interface EndMargin {
   readonly rho: number;
   readonly h: number;
 }
-import { solveLdl } from "./skyline.js";
+import { solveLdl, symMul } from "./skyline.js";
 
 /**
  * Smoothing level for torsion by a plug-in risk estimate (torsion needs the third derivative, which
@@ -66,37 +66,14 @@ export function torsionLevel(
   if (used === 0) return { fit: pilot, factorOfPilot: 1 };
   // G c_pilot, the right-hand side that reproduces the pilot curve as data.
   const G = sm.normal.G;
-  const Gc = new Float64Array(3 * K);
-  for (let c = 0; c < 3; ++c) {
-    for (let i = 0; i < K; ++i) {
-      const fi = G.first[i], oi = G.offset[i];
-      let acc = 0;
-      for (let j = fi; j < i; ++j) {
-        const a = G.data[oi + j - fi];
-        acc += a * pilot.coef[c * K + j];
-        Gc[c * K + j] += a * pilot.coef[c * K + i];
-      }
-      Gc[c * K + i] += acc + G.data[oi + i - fi] * pilot.coef[c * K + i];
-    }
-  }
-  // Pilot-noise probes: dc_k = A_pilot^{-1} dB_k, used to remove the pilot's own noise from the bias term.
-  const pilotDc: Float64Array[] = xis.map((xi) => drawCoefPerturbation(C, pilot.factor, xi, new Float64Array(3 * K), scratch).slice());
   const GdcOf = (v: Float64Array) => {
     const out = new Float64Array(3 * K);
-    for (let c = 0; c < 3; ++c) {
-      for (let i = 0; i < K; ++i) {
-        const fi = G.first[i], oi = G.offset[i];
-        let acc = 0;
-        for (let j = fi; j < i; ++j) {
-          const a = G.data[oi + j - fi];
-          acc += a * v[c * K + j];
-          out[c * K + j] += a * v[c * K + i];
-        }
-        out[c * K + i] += acc + G.data[oi + i - fi] * v[c * K + i];
-      }
-    }
+    for (let c = 0; c < 3; ++c) symMul(G, v, c * K, out.subarray(c * K, (c + 1) * K));
     return out;
   };
+  const Gc = GdcOf(pilot.coef);
+  // Pilot-noise probes: dc_k = A_pilot^{-1} dB_k, used to remove the pilot's own noise from the bias term.
+  const pilotDc: Float64Array[] = xis.map((xi) => drawCoefPerturbation(C, pilot.factor, xi, new Float64Array(3 * K), scratch).slice());
   const pilotGdc = pilotDc.map(GdcOf);
   const smoothBy = (factor: Skyline, rhs: Float64Array) => {
     const out = new Float64Array(3 * K), sol = new Float64Array(K);

@@ -7,6 +7,7 @@
 import * as THREE from "three";
 import { OrbitControls } from "three/examples/jsm/controls/OrbitControls.js";
 import { curvatureColor, stateColor, torsionColor, type Rgb } from "../colorScales.js";
+import { symEigen3 } from "../../frame/symEigen3.js";
 import { browser, type ViewerCanvas, type ViewerElement } from "./dom.js";
 
 interface ViewData {
@@ -39,36 +40,10 @@ function floats(b64: string): Float32Array {
   return new Float32Array(b.buffer, b.byteOffset, b.byteLength / 4);
 }
 
-/** Unit eigenvectors of a symmetric 3x3 (row-major), by Jacobi rotations; ascending eigenvalues. */
+/** Unit eigenvectors of a symmetric 3x3 (row-major), ascending eigenvalues (the project's own solver). */
 function principalAxes(c: number[]): { values: number[]; vectors: number[][] } {
-  const a = c.slice();
-  const v = [1, 0, 0, 0, 1, 0, 0, 0, 1];
-  for (let sweep = 0; sweep < 30; ++sweep) {
-    for (const [p, q] of [[0, 1], [0, 2], [1, 2]] as const) {
-      const apq = a[3 * p + q];
-      if (Math.abs(apq) < 1e-30) continue;
-      const theta = (a[3 * q + q] - a[3 * p + p]) / (2 * apq);
-      const t = Math.sign(theta || 1) / (Math.abs(theta) + Math.sqrt(theta * theta + 1));
-      const cs = 1 / Math.sqrt(t * t + 1), sn = t * cs;
-      for (let k = 0; k < 3; ++k) {
-        const akp = a[3 * k + p], akq = a[3 * k + q];
-        a[3 * k + p] = cs * akp - sn * akq;
-        a[3 * k + q] = sn * akp + cs * akq;
-      }
-      for (let k = 0; k < 3; ++k) {
-        const apk = a[3 * p + k], aqk = a[3 * q + k];
-        a[3 * p + k] = cs * apk - sn * aqk;
-        a[3 * q + k] = sn * apk + cs * aqk;
-      }
-      for (let k = 0; k < 3; ++k) {
-        const vkp = v[3 * k + p], vkq = v[3 * k + q];
-        v[3 * k + p] = cs * vkp - sn * vkq;
-        v[3 * k + q] = sn * vkp + cs * vkq;
-      }
-    }
-  }
-  const order = [0, 1, 2].sort((i, j) => a[4 * i] - a[4 * j]);
-  return { values: order.map((i) => a[4 * i]), vectors: order.map((i) => [v[i], v[3 + i], v[6 + i]]) };
+  const { values, vectors } = symEigen3(c);
+  return { values: Array.from(values), vectors: [0, 1, 2].map((k) => [vectors[3 * k], vectors[3 * k + 1], vectors[3 * k + 2]]) };
 }
 
 function fail(message: string): void {
