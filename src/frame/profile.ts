@@ -35,7 +35,7 @@ export interface ProfileOptions {
   readonly kappaLevel?: "discrepancy" | "risk";
   /** Number of knot intervals (default: from the point count, then matched to the smoothing scale). */
   readonly segments?: number;
-  /** Foot-point re-parametrisation passes (default 3). */
+  /** Foot-point re-parametrisation passes (default 3; 2 above 20000 points). */
   readonly passes?: number;
 }
 
@@ -87,7 +87,9 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
   const file = trace.source.file;
   const R = options.bootstrap ?? 200;
   const seed = options.seed ?? 1;
-  const passes = options.passes ?? 3;
+  // Dense traces converge in fewer foot-point passes (measured at 1e5 points: the same kappa error
+  // to 1% with 2 passes as with 3).
+  const passes = options.passes ?? (trace.xyz.length / 3 > 20_000 ? 2 : 3);
   if (!Number.isInteger(R) || R < 0 || R > 100_000) throw new ParameterError("profile", "bootstrap", `must be an integer from 0 to 100000 (got ${R})`);
   if (!Number.isInteger(seed)) throw new ParameterError("profile", "seed", `must be an integer (got ${seed})`);
   if (options.step !== undefined && !(options.step > 0 && Number.isFinite(options.step))) throw new ParameterError("profile", "step", `must be a positive length (got ${options.step})`);
