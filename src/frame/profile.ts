@@ -438,7 +438,7 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
     length: length * L0, closed,
     resolution: resolutionInternal * L0,
     sigma: sel.sigma * L0,
-    lambda: fit.lambda,
+    lambda: kFit.lambda,
     lambdaTorsion: tauFit.lambda,
     segments: basis.nseg,
     edf: sel.edf,
