@@ -1,4 +1,5 @@
 import type { Profile, Segment } from "../types.js";
+import { mulberry32 } from "../frame/mulberry32.js";
 import { anisotropyTensor } from "./anisotropyTensor.js";
 import { gapProfile } from "./gapProfile.js";
 import { homogeneousState } from "./homogeneousState.js";
@@ -27,17 +28,6 @@ export interface WireModelOptions {
   readonly pinning?: false | (PinningOptions & { readonly coarse?: number; readonly fine?: number });
   /** Stretches shorter than this many magnetic lengths are flagged (default 3). */
   readonly shortStretch?: number;
-}
-
-function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
 }
 
 /**
