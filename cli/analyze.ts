@@ -9,11 +9,11 @@ import { MESH_FORMATS, type MeshFormat } from "../src/export/meshToBytes.js";
 import { stageOutputDir } from "../src/export/stageOutputDir.js";
 import type { Material } from "../src/physics/types.js";
 import { viewerScript } from "../src/report/viewerScript.js";
-import { PER_METRE, type LengthUnit } from "../src/types.js";
+import { PER_METRE } from "../src/types.js";
 import type { Io } from "./io.js";
 import { brief, parseChoiceOption, parseCountOption, parseLengthOption, parseLengthUnitOption, parseSeedOption } from "./options.js";
 import { checkInputFlags, DEFAULT_BOOTSTRAP, DEFAULT_SEED, HELP, INPUT_HELP, readOptionsOf, type InputFlags, type InputRequest } from "./profile.js";
-import { readMaterialFile, runWireJob, type WireJob, type WireJobResult } from "./wireJob.js";
+import { readMaterialFile, runWireJob, type PipelineSettings, type WireJob, type WireJobResult } from "./wireJob.js";
 
 const WHERE = "analyze";
 
@@ -37,17 +37,8 @@ export interface PipelineFlags extends InputFlags {
 }
 
 /** Checked pipeline options; lengths in metres. */
-export interface PipelineRequest {
+export interface PipelineRequest extends PipelineSettings {
   readonly inputs: InputRequest;
-  readonly materialFile: string | null;
-  readonly closed?: boolean;
-  readonly bootstrap: number;
-  readonly seed: number;
-  readonly step?: number;
-  readonly outUnit?: LengthUnit;
-  readonly spacing?: number;
-  readonly mesh: MeshFormat;
-  readonly radius?: number;
   readonly force: boolean;
   readonly quiet: boolean;
 }

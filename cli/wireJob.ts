@@ -14,13 +14,8 @@ import type { LengthUnit, Trace } from "../src/types.js";
 import { jsonErrorAt } from "./jsonErrorAt.js";
 
 /** Everything needed to analyse one wire into a folder (plain data: it crosses to worker threads). */
-export interface WireJob {
-  /** Input file as given ("-" for standard input, read by the caller's `readOptions.io`). */
-  readonly input: string;
-  /** A trace already read (batch: one wire of a multi-wire file); else `input` is read. */
-  readonly trace?: Trace;
-  readonly readOptions: ReadOneTraceOptions;
-  readonly material: Material | null;
+/** Fit and output settings shared by the analyze command's request and a wire job; lengths in metres. */
+export interface PipelineSettings {
   readonly materialFile: string | null;
   readonly closed?: boolean;
   readonly bootstrap: number;
@@ -30,6 +25,15 @@ export interface WireJob {
   readonly spacing?: number;
   readonly mesh: MeshFormat;
   readonly radius?: number;
+}
+
+export interface WireJob extends PipelineSettings {
+  /** Input file as given ("-" for standard input, read by the caller's `readOptions.io`). */
+  readonly input: string;
+  /** A trace already read (batch: one wire of a multi-wire file); else `input` is read. */
+  readonly trace?: Trace;
+  readonly readOptions: ReadOneTraceOptions;
+  readonly material: Material | null;
   /** Existing folder to write the files into. */
   readonly dir: string;
 }
