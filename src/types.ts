@@ -40,6 +40,12 @@ export interface Trace {
   readonly radiusSpread?: Float64Array;
   /** Everything repaired or dropped at import (one human-readable line each). */
   readonly diagnostics: readonly string[];
+  /**
+   * Input row of each point: the 1-based line of a text file, or the 1-based point number of a
+   * JSON polyline, so results can be traced back to the file. Absent for derived traces (mesh
+   * centre lines): then points are named by their 1-based position in the trace.
+   */
+  readonly rows?: Int32Array;
 }
 
 /** Per-sample flag bits of a Profile (`flags[i] & FLAG_...`). */
@@ -90,8 +96,14 @@ export interface Profile {
   readonly edf: number;
   /** Bootstrap replicates used for the bands (0 when none). */
   readonly replicates: number;
-  /** Input points given weight below 0.5 by the robust fit (indices into the input trace). */
+  /** Input points left out or given weight below 0.5 by the robust fit (indices into the trace, from 0). */
   readonly outliers: readonly number[];
+  /** Input row (Trace.rows, else 1-based trace position) of each sample; -1 for resampled samples. */
+  readonly inputRow?: Int32Array;
+  /** Input rows left out before the fit as gross outliers. */
+  readonly droppedRows?: readonly number[];
+  /** Input rows down-weighted (weight < 0.5) by the robust fit. */
+  readonly downweightedRows?: readonly number[];
   readonly source: Source;
   readonly planarProjection: boolean;
   readonly diagnostics: readonly string[];

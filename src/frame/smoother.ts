@@ -84,34 +84,41 @@ export function edfOf(sm: Smoother, fit: SmoothFit): number {
 export interface Selection {
   readonly fit: SmoothFit;
   readonly edf: number;
-  /** Noise standard deviation per normal direction, from the GCV fit. */
+  /** Noise standard deviation per normal direction used for the level and the bands. */
   readonly sigma: number;
+  /** Where sigma came from. */
+  readonly sigmaFrom: "gcv" | "floor" | "given" | "fixed" | "unknown";
   readonly lambdaGcv: number;
   readonly edfGcv: number;
-  readonly rule: "discrepancy" | "gcv-x3";
+  readonly rule: "discrepancy" | "gcv-x3" | "fixed";
   /** Knot intervals of the basis the levels refer to. */
   readonly basisSegments: number;
 }
 
-/**
- * Automatic smoothing aimed at the derivatives (NUMERICS.md step 5):
- * 1. lambda_GCV minimises GCV(lambda) = n RSS / (n - edf)^2 (Craven & Wahba 1979, Numer. Math. 31:377),
- *    searched on a log grid and refined by golden section;
- * 2. noise sigma^2 = RSS_GCV / (d (n - edf_GCV)), d = number of normal directions (2 in 3D, 1 in a plane),
- *    since foot-point parameters leave no tangential residual;
- * 3. the final lambda is the largest with RSS(lambda) <= d n sigma^2 (the discrepancy principle,
- *    Reinsch 1967, Numer. Math. 10:177): it smooths more than GCV, which derivatives want.
- * Falls back to 3 lambda_GCV when the discrepancy search fails to bracket.
- */
-export function selectSmoothing(sm: Smoother, normalDims: number, fixedLambda?: number, hintLogGcv?: number): Selection {
+/** Options of {@link selectSmoothing}. */
+export interface SelectOptions {
+  /** Use this level (no search). */
+  readonly fixedLambda?: number;
+  /** log10 of the previous pass's GCV level (same knots): search four decades around it first. */
+  readonly hintLogGcv?: number;
+  /** Lower bound of the noise standard deviation (rounding, tessellation). */
+  readonly sigmaFloor?: number;
+  /** The noise standard deviation is known (a coordinate error given by the user): no estimate. */
+  readonly sigmaKnown?: number;
+  /** Smallest level allowed (e.g. near-interpolation of a sparse trace). */
+  readonly minLambda?: number;
+}
+
+/** The GCV minimum: lambda_GCV minimises GCV(lambda) = n RSS / (n - edf)^2 (Craven & Wahba 1979,
+ * Numer. Math. 31:377), on a log grid then refined by golden section. */
+export function gcvLevel(sm: Smoother, hintLogGcv?: number): { fit: SmoothFit; edf: number; logLambda: number } {
   const n = sm.normal.wSum;
   const cache = new Map<number, { fit: SmoothFit; edf: number }>();
   const evalGcv = (logL: number) => {
     const hit = cache.get(logL);
     if (hit) return hit;
     const fit = solveAt(sm, Math.pow(10, logL));
-    const edf = edfOf(sm, fit);
-    const v = { fit, edf };
+    const v = { fit, edf: edfOf(sm, fit) };
     cache.set(logL, v);
     return v;
   };
@@ -120,14 +127,6 @@ export function selectSmoothing(sm: Smoother, normalDims: number, fixedLambda?: 
     const dof = Math.max(n - edf, 1e-9);
     return (n * fit.rss) / (dof * dof);
   };
-  if (fixedLambda !== undefined) {
-    const fit = solveAt(sm, fixedLambda);
-    const edf = edfOf(sm, fit);
-    const sigma = Math.sqrt(fit.rss / (normalDims * Math.max(n - edf, 1)));
-    return { fit, edf, sigma, lambdaGcv: fixedLambda, edfGcv: edf, rule: "discrepancy", basisSegments: sm.basis.nseg };
-  }
-  // Coarse grid over 20 decades relative to the balance point, then golden section.
-  // With a hint (the previous pass's GCV level), search four decades around it.
   const [lo0, hi0] = sm.logLambdaRange;
   const lo = hintLogGcv === undefined ? lo0 : Math.max(lo0, hintLogGcv - 3);
   const hi = hintLogGcv === undefined ? hi0 : Math.min(hi0, hintLogGcv + 3);
@@ -140,9 +139,7 @@ export function selectSmoothing(sm: Smoother, normalDims: number, fixedLambda?: 
     if (v < bestV) { bestV = v; best = x; }
   }
   // A minimum on the edge of a hinted window means the hint was off: search the whole range.
-  if (hintLogGcv !== undefined && (best <= lo + 1e-9 || best >= hi - 1e-9) && (lo > lo0 || hi < hi0)) {
-    return selectSmoothing(sm, normalDims, undefined, undefined);
-  }
+  if (hintLogGcv !== undefined && (best <= lo + 1e-9 || best >= hi - 1e-9) && (lo > lo0 || hi < hi0)) return gcvLevel(sm);
   const dx = (hi - lo) / (steps - 1);
   let a = Math.max(lo, best - dx), b = Math.min(hi, best + dx);
   const g = (Math.sqrt(5) - 1) / 2;
@@ -153,28 +150,66 @@ export function selectSmoothing(sm: Smoother, normalDims: number, fixedLambda?: 
     else { a = c; c = d; fc = fd; d = a + g * (b - a); fd = gcv(d); }
   }
   const xg = fc < fd ? c : d;
-  const gFit = evalGcv(xg);
-  const sigma2 = gFit.fit.rss / (normalDims * Math.max(n - gFit.edf, 1));
-  const target = normalDims * n * sigma2;
-  // RSS grows with lambda: bisect log lambda on [xg, hi] for RSS = target.
-  let left = xg, right = xg;
-  let rssRight = gFit.fit.rss;
-  while (rssRight < target && right < hi) {
+  const r = evalGcv(xg);
+  return { fit: r.fit, edf: r.edf, logLambda: xg };
+}
+
+/**
+ * The discrepancy level: the largest lambda >= 10^fromLog with RSS(lambda) <= d n sigma^2 (the
+ * discrepancy principle, Reinsch 1967, Numer. Math. 10:177): it smooths more than GCV, which
+ * derivatives want. null when RSS stays below the target up to the top of the range.
+ */
+export function discrepancyLevel(sm: Smoother, sigma: number, normalDims: number, fromLog: number): SmoothFit | null {
+  const n = sm.normal.wSum;
+  const target = normalDims * n * sigma * sigma;
+  const hi = sm.logLambdaRange[1];
+  let left = fromLog, right = fromLog;
+  let fitRight = solveAt(sm, Math.pow(10, right));
+  if (fitRight.rss > target) return fitRight;
+  while (fitRight.rss < target && right < hi) {
+    left = right;
     right = Math.min(hi, right + 1);
-    rssRight = solveAt(sm, Math.pow(10, right)).rss;
+    fitRight = solveAt(sm, Math.pow(10, right));
   }
-  let fit: SmoothFit;
+  if (fitRight.rss < target) return null;
+  for (let it = 0; it < 40 && right - left > 1e-3; ++it) {
+    const mid = 0.5 * (left + right);
+    if (solveAt(sm, Math.pow(10, mid)).rss <= target) left = mid;
+    else right = mid;
+  }
+  return solveAt(sm, Math.pow(10, left));
+}
+
+/**
+ * Automatic smoothing aimed at the derivatives (NUMERICS.md step 5):
+ * 1. lambda_GCV (see {@link gcvLevel});
+ * 2. noise sigma^2 = RSS_GCV / (d (n - edf_GCV)), d = number of normal directions (2 in 3D, 1 in a
+ *    plane), since foot-point parameters leave no tangential residual; raised to `sigmaFloor`;
+ *    replaced by `sigmaKnown` when the user gave it;
+ * 3. the discrepancy level for that sigma (see {@link discrepancyLevel}), at least `minLambda`.
+ * Falls back to 3 lambda_GCV when the discrepancy search fails to bracket.
+ */
+export function selectSmoothing(sm: Smoother, normalDims: number, options: SelectOptions = {}): Selection {
+  const n = sm.normal.wSum;
+  const basisSegments = sm.basis.nseg;
+  if (options.fixedLambda !== undefined) {
+    const fit = solveAt(sm, options.fixedLambda);
+    const edf = edfOf(sm, fit);
+    const est = Math.sqrt(fit.rss / (normalDims * Math.max(n - edf, 1)));
+    const sigma = options.sigmaKnown ?? Math.max(est, options.sigmaFloor ?? 0);
+    return { fit, edf, sigma, sigmaFrom: options.sigmaKnown !== undefined ? "given" : "fixed", lambdaGcv: options.fixedLambda, edfGcv: edf, rule: "fixed", basisSegments };
+  }
+  const g = gcvLevel(sm, options.hintLogGcv);
+  const est = Math.sqrt(g.fit.rss / (normalDims * Math.max(n - g.edf, 1)));
+  let sigma = est, sigmaFrom: Selection["sigmaFrom"] = "gcv";
+  if (options.sigmaKnown !== undefined) { sigma = options.sigmaKnown; sigmaFrom = "given"; }
+  else if (options.sigmaFloor !== undefined && !(est >= options.sigmaFloor)) { sigma = options.sigmaFloor; sigmaFrom = "floor"; }
+  const fromLog = Math.max(g.logLambda, options.minLambda !== undefined ? Math.log10(options.minLambda) : -Infinity);
+  let fit = sigma > 0 ? discrepancyLevel(sm, sigma, normalDims, fromLog) : null;
   let rule: Selection["rule"] = "discrepancy";
-  if (rssRight < target || !(sigma2 > 0)) {
+  if (!fit) {
     rule = "gcv-x3";
-    fit = solveAt(sm, 3 * Math.pow(10, xg));
-  } else {
-    for (let it = 0; it < 40 && right - left > 1e-3; ++it) {
-      const mid = 0.5 * (left + right);
-      if (solveAt(sm, Math.pow(10, mid)).rss <= target) left = mid;
-      else right = mid;
-    }
-    fit = solveAt(sm, Math.pow(10, left));
+    fit = solveAt(sm, Math.max(3 * Math.pow(10, g.logLambda), options.minLambda ?? 0));
   }
-  return { fit, edf: edfOf(sm, fit), sigma: Math.sqrt(sigma2), lambdaGcv: Math.pow(10, xg), edfGcv: gFit.edf, rule, basisSegments: sm.basis.nseg };
+  return { fit, edf: edfOf(sm, fit), sigma, sigmaFrom, lambdaGcv: Math.pow(10, g.logLambda), edfGcv: g.edf, rule, basisSegments };
 }

@@ -194,6 +194,8 @@ export function buildTrace(raw: RawTrace, file: string, options: TraceReadOption
   }
 
   let out = xyz;
+  const rows = new Int32Array(kept);
+  for (let i = 0, r = 0; i < n; ++i) if (keep[i]) rows[r++] = raw.lines ? raw.lines[i] : i + 1;
   if (kept < n) {
     out = new Float64Array(3 * kept);
     let o = 0;
@@ -208,8 +210,8 @@ export function buildTrace(raw: RawTrace, file: string, options: TraceReadOption
   const source: Source = unit === "px" ? { file, unit, pixelSize: pixelSize as number } : { file, unit };
   const trace: {
     xyz: Float64Array; dims: 2 | 3; source: Source; diagnostics: readonly string[];
-    closed?: boolean; planarProjection?: boolean;
-  } = { xyz: out, dims: raw.dims, source, diagnostics };
+    closed?: boolean; planarProjection?: boolean; rows: Int32Array;
+  } = { xyz: out, dims: raw.dims, source, diagnostics, rows };
   if (closed !== undefined) trace.closed = closed;
   if (raw.declared.planarProjection !== undefined) trace.planarProjection = raw.declared.planarProjection;
   return trace;

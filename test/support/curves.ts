@@ -204,3 +204,36 @@ export function rigidMotion(xyz: Float64Array, q: [number, number, number, numbe
   }
   return out;
 }
+
+/** A 3D coil whose radius and pitch both vary along it: curvature and torsion change continuously. */
+export function wavyCoilCurve(a: number, turns: number): TestCurve {
+  const T = 2 * Math.PI * turns;
+  return {
+    name: "wavy-coil",
+    r: (t) => {
+      const rr = a * (1 + 0.35 * Math.sin(t / 2.3)), c = a * (0.25 + 0.15 * Math.cos(t / 3.1));
+      return [rr * Math.cos(t), rr * Math.sin(t), c * t];
+    },
+    t0: 0, t1: T, closed: false, radius: 0.5 * a,
+  };
+}
+
+/**
+ * n points whose density along the parameter varies `ratio`:1 (a smooth, seeded warp of a uniform
+ * grid, two density cycles along the wire), with isotropic Gaussian noise `noise` per coordinate.
+ */
+export function sampleCurveUneven(curve: TestCurve, n: number, noise: number, seed: number, ratio = 3): { xyz: Float64Array; t: Float64Array } {
+  const g = normalStream(seed);
+  const xyz = new Float64Array(3 * n), t = new Float64Array(n);
+  const span = curve.t1 - curve.t0;
+  // Warp x -> x + A sin(2 pi k x + phase) / (2 pi k): derivative 1 + A cos(...), ratio (1 + A) / (1 - A).
+  const A = (ratio - 1) / (ratio + 1), k = 2, phase = (seed % 7) * 0.9;
+  const warp = (x: number) => x + (A * (Math.sin(2 * Math.PI * k * x + phase) - Math.sin(phase))) / (2 * Math.PI * k);
+  for (let i = 0; i < n; ++i) {
+    const x = i / (curve.closed ? n : n - 1);
+    t[i] = curve.t0 + span * (curve.closed ? x + (A * (Math.sin(2 * Math.PI * k * x + phase) - Math.sin(phase))) / (2 * Math.PI * k) : warp(x) / warp(1));
+    const p = curve.r(t[i]);
+    for (let c = 0; c < 3; ++c) xyz[3 * i + c] = p[c] + noise * g();
+  }
+  return { xyz, t };
+}

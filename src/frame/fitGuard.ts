@@ -1,0 +1,83 @@
+/**
+ * The divergence guard of the geometry core: checks after every pass and on the final profile, so a
+ * fit that went wrong stops with one line saying what and where instead of returning numbers
+ * (NUMERICS.md sec. 7 item 2). Pure functions; they throw `InputError`.
+ */
+import { InputError } from "../errors.js";
+import { PER_METRE, type Source } from "../types.js";
+import { medianOf } from "./robustStart.js";
+
+/** A length in metres written in the unit of the source file (pixels: in pixels). */
+export function describeLength(metres: number, source: Source): string {
+  const [value, unit] = source.unit === "px"
+    ? [metres / (source.pixelSize ?? 1), "px"]
+    : [metres * PER_METRE[source.unit], source.unit];
+  return `${Number(value.toPrecision(3))} ${unit}`;
+}
+
+/**
+ * A wire declared closed must have ends that meet: the gap between the last and first kept points
+ * may be at most 5 median steps or 2% of the polyline length. Refuses otherwise, naming the gap.
+ * `say` turns a canonical length into words.
+ */
+export function checkClosable(y: Float64Array, medianStep: number, file: string, say: (d: number) => string): void {
+  const n = y.length / 3;
+  const gap = Math.hypot(y[3 * n - 3] - y[0], y[3 * n - 2] - y[1], y[3 * n - 1] - y[2]);
+  let total = 0;
+  for (let i = 1; i < n; ++i) total += Math.hypot(y[3 * i] - y[3 * i - 3], y[3 * i + 1] - y[3 * i - 2], y[3 * i + 2] - y[3 * i - 1]);
+  if (gap <= Math.max(5 * medianStep, 0.02 * total)) return;
+  throw new InputError(file, null, "closed",
+    `the wire was declared closed but its ends are ${say(gap)} apart (${(gap / medianStep).toFixed(0)} sample steps, ${((100 * gap) / total).toFixed(0)}% of its length): fit it open (--open), or give a trace whose ends meet`);
+}
+
+/** What one pass produced, as the guard needs it (canonical units). */
+export interface PassState {
+  /** Fitted curve length. */
+  readonly length: number;
+  /** Parameter of each kept point (arc length of the fit). */
+  readonly u: Float64Array;
+  /** Distance of each kept point to the curve. */
+  readonly resid: Float64Array;
+  readonly sigma: number;
+  readonly closed: boolean;
+  readonly knotInterval: number;
+}
+
+/** Largest length ratio between the fit and the robust polyline before the fit counts as diverged. */
+export const LENGTH_RATIO_LIMIT = 3;
+/** Largest parameter gap, in median gaps, before the trace counts as broken. */
+export const GAP_LIMIT = 25;
+
+/**
+ * Checks one pass: finite noise and length, fitted length within a factor 3 of the robust polyline
+ * length, and no parameter gap longer than 25 median gaps (a stretch with no data the fit would
+ * invent). `name(i)` names kept point i for the message ("row 12"). Throws on the first failure.
+ */
+export function checkPass(state: PassState, referenceLength: number, file: string, name: (i: number) => string, say: (d: number) => string): void {
+  const { u, resid } = state;
+  const n = u.length;
+  const worst = () => {
+    const idx = Array.from({ length: n }, (_, i) => i).sort((a, b) => resid[b] - resid[a]).slice(0, 3);
+    return idx.map(name).join(", ");
+  };
+  if (!Number.isFinite(state.length) || !Number.isFinite(state.sigma) || !(state.length > 0)) {
+    throw new InputError(file, null, "points", `the fit diverged (non-finite length or noise); the points farthest from it are ${worst()}`);
+  }
+  const ratio = state.length / referenceLength;
+  if (ratio > LENGTH_RATIO_LIMIT || ratio < 1 / LENGTH_RATIO_LIMIT) {
+    throw new InputError(file, null, "points",
+      `the fit diverged: its length is ${ratio.toPrecision(2)}x a robust polyline length of the trace (${say(referenceLength)}); the points farthest from it are ${worst()}: check for stray points, or for unordered points use --format cloud`);
+  }
+  const order = Array.from({ length: n }, (_, i) => i).sort((a, b) => u[a] - u[b]);
+  const gaps = new Float64Array(state.closed ? n : n - 1);
+  for (let k = 1; k < n; ++k) gaps[k - 1] = u[order[k]] - u[order[k - 1]];
+  if (state.closed) gaps[n - 1] = state.length - u[order[n - 1]] + u[order[0]];
+  const med = medianOf(gaps.filter((g) => g > 0));
+  let big = 0;
+  for (let k = 1; k < gaps.length; ++k) if (gaps[k] > gaps[big]) big = k;
+  if (med > 0 && gaps[big] > GAP_LIMIT * med && gaps[big] > 2 * state.knotInterval) {
+    const a = order[big], b = order[(big + 1) % n];
+    throw new InputError(file, null, "points",
+      `no points over ${say(gaps[big])} of the wire between ${name(a)} and ${name(b)} (${(gaps[big] / med).toFixed(0)}x the median spacing): the fit would invent the wire there; trace it more evenly or split it at the gap`);
+  }
+}

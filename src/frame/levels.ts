@@ -1,0 +1,126 @@
+/**
+ * Stage 3 of the geometry core: the curvature and torsion levels, and what the bands need (the law
+ * of the right-hand-side noise, the evaluation grid, the resolution length).
+ */
+import { InputError } from "../errors.js";
+import type { Trace } from "../types.js";
+import { gridBasis, rhsNoiseFactor, type GridBasis } from "./bootstrap.js";
+import type { SplineBasis } from "./bspline.js";
+import { arcAt, evalCurve, kappaTau } from "./curve.js";
+import { describeLength } from "./fitGuard.js";
+import type { PassesResult } from "./passes.js";
+import type { Samples, Start } from "./profile.js";
+import { wavelengthForLambda, type SmoothFit } from "./smoother.js";
+import type { Skyline } from "./skyline.js";
+import { symEigen3 } from "./symEigen3.js";
+import { balancedLevel } from "./torsionLevel.js";
+
+export interface Levels {
+  readonly kappaFit: SmoothFit;
+  readonly tauFit: SmoothFit;
+  /** Torsion level over curvature level. */
+  readonly tauFactor: number;
+  readonly planarWithinNoise: boolean;
+  /** Shortest length the curvature fit resolves (canonical units). */
+  readonly resolution: number;
+  /** Factorised law of B^T W dy (normal-plane noise at the estimated level). */
+  readonly C: Skyline;
+  readonly grid: GridBasis;
+  readonly gridU: Float64Array;
+  /** Arc length of each grid point from the domain start. */
+  readonly gridS: Float64Array;
+}
+
+/**
+ * Curvature level: the passes' level (discrepancy rule; near-interpolation for sparse traces).
+ * Torsion level: the balancing rule (`balancedLevel`) on the interior grid, unless the wire is
+ * planar (tau = 0 with its noise band) or the level was fixed by the user.
+ * Refuses a fit whose resolution length exceeds the wire's length (it resolves nothing) unless the
+ * fit is straight (turns by less than 0.1 rad in all: a straight wire has nothing to resolve).
+ */
+export function chooseLevels(
+  trace: Trace, start: Start, fit: PassesResult, samples: Samples,
+  set: { readonly lambda?: number; readonly seed: number; readonly torsionBalance: number }, diagnostics: string[],
+): Levels {
+  const { basis, smoother, sel, table, u, w } = fit;
+  const closed = start.closed;
+  const length = table.length;
+  const y = start.canon.y;
+  const n = u.length;
+  const normalDims: 1 | 2 = trace.dims === 2 ? 1 : 2;
+  const rho = smoother.normal.wSum / length;
+  const kappaFit = sel.fit;
+  // Resolution length: half-power wavelength of the smoother's transfer function
+  // 1 / (1 + (lambda h^7 / rho) omega^8), bounded below by the knot spacing and the sampling.
+  const resolution = Math.max(wavelengthForLambda(kappaFit.lambda, rho, basis.h), 2 * basis.h, 2 / rho);
+  if (resolution > length && (closed || totalTurning(basis, kappaFit.coef, table.length) > 0.1)) {
+    throw new InputError(trace.source.file, null, "points",
+      `the fit resolves nothing: its resolution length (${describeLength(resolution * start.canon.scale, trace.source)}) exceeds the wire's length (${describeLength(length * start.canon.scale, trace.source)}); too few points or too much noise for this wire`);
+  }
+  const d12 = new Float64Array(12), st = new Float64Array(1), sb = new Float64Array(24);
+  const tangent = new Float64Array(3 * n);
+  for (let i = 0; i < n; ++i) {
+    evalCurve(basis, kappaFit.coef, u[i], 1, d12, st, sb);
+    const sp = Math.hypot(d12[3], d12[4], d12[5]);
+    tangent[3 * i] = d12[3] / sp; tangent[3 * i + 1] = d12[4] / sp; tangent[3 * i + 2] = d12[5] / sp;
+  }
+  const unknownNoise = sel.sigmaFrom === "unknown";
+  const C = rhsNoiseFactor(basis, u, w, tangent, unknownNoise ? start.sigmaFloor || 1e-9 : sel.sigma, normalDims);
+  // The bands vary on the resolution scale: 10 grid points per resolution length suffice.
+  const gridCount = Math.min(4 * basis.nseg, Math.max(256, Math.ceil((10 * length) / resolution)));
+  const gridU = samples.u.length <= gridCount ? samples.u : uniformGrid(basis, gridCount, closed);
+  const grid = gridBasis(basis, gridU);
+  const gridS = new Float64Array(grid.m);
+  for (let j = 0; j < grid.m; ++j) gridS[j] = arcAt(table, gridU[j], closed);
+  const planarWithinNoise = trace.dims === 3 && !trace.planarProjection && outOfPlaneVariance(y, w) <= sel.sigma * sel.sigma * (1 + 4 * Math.sqrt(2 / n));
+  if (planarWithinNoise) diagnostics.push("planar within the noise (out-of-plane spread not above the noise): torsion reported as 0 with its noise band");
+  let tauFit = kappaFit, tauFactor = 1;
+  if (set.lambda === undefined && trace.dims === 3 && !trace.planarProjection && !planarWithinNoise && !unknownNoise) {
+    // Score the interior only (one resolution length from an open end), on at most ~600 points.
+    const stride = Math.max(1, Math.ceil(grid.m / 600));
+    const at: number[] = [];
+    for (let j = 0; j < grid.m; j += stride) at.push(j);
+    const sub = stride === 1 ? grid : gridBasis(basis, Float64Array.from(at, (j) => gridU[j]));
+    const interior = Uint8Array.from(at, (j) => (closed || (gridS[j] > resolution && gridS[j] < length - resolution) ? 1 : 0));
+    const b = balancedLevel(smoother, kappaFit, C, sub, interior, set.seed, { c: set.torsionBalance });
+    tauFit = b.fit;
+    tauFactor = b.factorOfPilot;
+    if (tauFactor !== 1) diagnostics.push(`torsion: smoothing level ${tauFactor.toPrecision(3)}x the curvature level (balancing rule: the largest level whose torsion stays within the noise of every less-smoothed one)`);
+    if (b.atTop) diagnostics.push("torsion: the balancing rule reached the top of its scan (torsion nearly constant along the wire)");
+  }
+  return { kappaFit, tauFit, tauFactor, planarWithinNoise, resolution, C, grid, gridU, gridS };
+}
+
+/** Total turning angle of the fitted curve, the integral of kappa ds (200-point midpoint rule). */
+function totalTurning(basis: SplineBasis, coef: Float64Array, length: number): number {
+  const d12 = new Float64Array(12), kt = new Float64Array(5), st = new Float64Array(1), sb = new Float64Array(24);
+  const span = basis.nseg * basis.h;
+  let sum = 0;
+  for (let k = 0; k < 200; ++k) {
+    evalCurve(basis, coef, basis.u0 + ((k + 0.5) * span) / 200, 3, d12, st, sb);
+    sum += kappaTau(d12, kt)[0];
+  }
+  return (sum * length) / 200;
+}
+
+function uniformGrid(basis: SplineBasis, count: number, closed: boolean): Float64Array {
+  const span = basis.nseg * basis.h;
+  const g = new Float64Array(closed ? count : count + 1);
+  for (let k = 0; k < g.length; ++k) g[k] = basis.u0 + (span * k) / count;
+  return g;
+}
+
+/** Smallest principal variance of the weighted points (variance off their best plane). */
+export function outOfPlaneVariance(y: Float64Array, w: Float64Array): number {
+  const n = w.length;
+  let sw = 0, mx = 0, my = 0, mz = 0;
+  for (let i = 0; i < n; ++i) { sw += w[i]; mx += w[i] * y[3 * i]; my += w[i] * y[3 * i + 1]; mz += w[i] * y[3 * i + 2]; }
+  mx /= sw; my /= sw; mz /= sw;
+  const c = [0, 0, 0, 0, 0, 0];
+  for (let i = 0; i < n; ++i) {
+    const dx = y[3 * i] - mx, dy = y[3 * i + 1] - my, dz = y[3 * i + 2] - mz, wi = w[i];
+    c[0] += wi * dx * dx; c[1] += wi * dx * dy; c[2] += wi * dx * dz; c[3] += wi * dy * dy; c[4] += wi * dy * dz; c[5] += wi * dz * dz;
+  }
+  for (let k = 0; k < 6; ++k) c[k] /= sw;
+  return symEigen3([c[0], c[1], c[2], c[1], c[3], c[4], c[2], c[4], c[5]]).values[0];
+}

@@ -1,0 +1,201 @@
+/**
+ * Stage 2 of the geometry core: the foot-point passes. Each pass fits the penalised spline at the
+ * automatic level, projects every point on the curve (Newton foot points), maps parameters to the
+ * fit's arc length, updates the robust weights, and matches the knots to the smoothing scale; the
+ * divergence guard checks every pass.
+ */
+import type { Trace } from "../types.js";
+import { makeBasis, type SplineBasis } from "./bspline.js";
+import { arcAt, arcTable, evalCurve, kappaTau, type ArcTable } from "./curve.js";
+import { checkPass, describeLength } from "./fitGuard.js";
+import { medianOf } from "./robustStart.js";
+import { lambdaForWavelength, makeSmoother, selectSmoothing, wavelengthForLambda, type Selection, type Smoother } from "./smoother.js";
+import type { Start } from "./profile.js";
+
+const MAX_SEGMENTS = 5_000;
+const KNOTS_PER_WAVELENGTH = 12;
+const INITIAL_SEGMENTS_CAP = 1500;
+/** Median turning angle between samples (rad) above which a trace counts as sparse. */
+export const SPARSE_TURN = 0.35;
+/** Fewest residual degrees of freedom (over the normal directions) a noise estimate may rest on. */
+export const MIN_NOISE_DOF = 20;
+/** Fewest residual degrees of freedom for the noise of a sparse trace (its shape uses most of them). */
+export const MIN_SPARSE_DOF = 10;
+
+/** Number of knot intervals: rich enough for sparse traces, capped for long ones. */
+export function segmentCount(n: number, closed: boolean): number {
+  const target = n <= 400 ? n : Math.max(400, Math.round(n / 4));
+  return Math.min(MAX_SEGMENTS, Math.max(closed ? 12 : 8, target));
+}
+
+/** Hampel-style redescending weight of a normal-plane residual e with robust scale sc. */
+export function robustWeight(e: number, sc: number): number {
+  const r = e / sc;
+  if (r <= 4) return 1;
+  if (r >= 8) return 0;
+  const q = (r - 4) / 4;
+  return (1 - q * q) * (1 - q * q);
+}
+
+/** The settings the passes read. */
+export interface PassSettings {
+  readonly passes: number;
+  readonly segments?: number;
+  readonly lambda?: number;
+  readonly coordinateError?: number;
+}
+
+/** What the passes leave for the later stages (canonical units). */
+export interface PassesResult {
+  readonly basis: SplineBasis;
+  readonly smoother: Smoother;
+  readonly sel: Selection;
+  readonly coef: Float64Array;
+  readonly table: ArcTable;
+  /** Parameter (arc length of the final fit) of each kept point. */
+  readonly u: Float64Array;
+  /** Robust weight of each kept point. */
+  readonly w: Float64Array;
+  readonly sparse: boolean;
+  /** Level whose half-power wavelength is one knot interval (sparse traces use it). */
+  readonly nearInterpolation: number;
+}
+
+/**
+ * Runs the passes on the kept points of `start`. Sparse traces (the fit turns by more than 0.35 rad
+ * between samples at the median: a few points per turn, e.g. a molecule's atoms) get four knot
+ * intervals per point and are near-interpolated (the level whose half-power wavelength is one knot
+ * interval), unless the user gave the coordinate error; the noise is never estimated from fewer than
+ * 20 residual degrees of freedom (then the difference-based estimate stands in: an upper bound).
+ */
+export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnostics: string[]): PassesResult {
+  const file = trace.source.file;
+  const y = start.canon.y;
+  const n = y.length / 3;
+  const closed = start.closed;
+  const normalDims: 1 | 2 = trace.dims === 2 ? 1 : 2;
+  const scale = start.canon.scale;
+  const say = (d: number) => describeLength(d * scale, trace.source);
+  const name = (i: number) => (trace.rows ? `row ${trace.rows[start.kept[i]]}` : `point ${start.kept[i] + 1}`);
+  const u = start.u.slice();
+  let span = start.span;
+  const w = new Float64Array(n).fill(1);
+  const fullSegments = segmentCount(n, closed);
+  let nseg = set.segments ?? Math.min(fullSegments, INITIAL_SEGMENTS_CAP);
+  let basis: SplineBasis = makeBasis(0, span, nseg, closed);
+  let sparse = false;
+  let sel: Selection | undefined;
+  let sm: Smoother | undefined;
+  let nearInterpolation = NaN;
+  const sigmaKnown = set.coordinateError !== undefined ? set.coordinateError / scale : undefined;
+  const d12 = new Float64Array(12), st = new Float64Array(1), sb = new Float64Array(24), kt = new Float64Array(5);
+  const resid = new Float64Array(n);
+  for (let pass = 0; pass <= set.passes; ++pass) {
+    sm = makeSmoother(basis, u, y, w);
+    const rho = sm.normal.wSum / (basis.nseg * basis.h);
+    nearInterpolation = lambdaForWavelength(basis.h, rho, basis.h);
+    const hint = sel && sel.basisSegments === nseg && sel.rule !== "fixed" ? Math.log10(sel.lambdaGcv) : undefined;
+    sel = selectLevel(sm, normalDims, { sparse, nearInterpolation, start, ...(set.lambda !== undefined ? { fixedLambda: set.lambda } : {}), ...(sigmaKnown !== undefined ? { sigmaKnown } : {}), ...(hint !== undefined ? { hint } : {}) });
+    if (pass === set.passes) break;
+    // Foot-point projection: Newton on |r(u) - p|^2, steps limited to one knot interval.
+    const coef = sel.fit.coef;
+    const turns = new Float64Array(n);
+    for (let i = 0; i < n; ++i) {
+      let ui = u[i];
+      for (let it = 0; it < 4; ++it) {
+        evalCurve(basis, coef, ui, 2, d12, st, sb);
+        const ex = d12[0] - y[3 * i], ey = d12[1] - y[3 * i + 1], ez = d12[2] - y[3 * i + 2];
+        const g = ex * d12[3] + ey * d12[4] + ez * d12[5];
+        const sp2 = d12[3] * d12[3] + d12[4] * d12[4] + d12[5] * d12[5];
+        const hss = sp2 + ex * d12[6] + ey * d12[7] + ez * d12[8];
+        let du = -g / (hss > 0.1 * sp2 ? hss : sp2);
+        if (du > basis.h) du = basis.h;
+        else if (du < -basis.h) du = -basis.h;
+        ui += du;
+        if (!closed) ui = Math.min(Math.max(ui, basis.u0), basis.u0 + basis.nseg * basis.h);
+        if (Math.abs(du) < 1e-7 * basis.h) break;
+      }
+      u[i] = ui;
+      evalCurve(basis, coef, ui, 3, d12, st, sb);
+      resid[i] = Math.hypot(d12[0] - y[3 * i], d12[1] - y[3 * i + 1], d12[2] - y[3 * i + 2]);
+      turns[i] = kappaTau(d12, kt)[0] * start.medianStep;
+    }
+    // Robust weights from the residual norms (Rayleigh median in 3D: 1.1774 sigma; half-normal in
+    // 2D: 0.6745 sigma), the scale floored at 10% of the median step so clean points where the fit
+    // is biased (a tight bend, a clamped end) keep their weight (NUMERICS.md sec. 7 item 5).
+    const sc = Math.max(medianOf(resid) / (normalDims === 2 ? 1.1774 : 0.6745), 0.1 * start.medianStep);
+    if (sc > 0) for (let i = 0; i < n; ++i) w[i] = robustWeight(resid[i], sc);
+    // Map parameters to the arc length of the current fit; pin an open wire's end points to the
+    // ends of the domain (else the open ends drift from pass to pass).
+    const table = arcTable(basis, coef);
+    for (let i = 0; i < n; ++i) u[i] = arcAt(table, u[i], closed);
+    if (closed) {
+      for (let i = 0; i < n; ++i) u[i] -= Math.floor(u[i] / table.length) * table.length;
+      span = table.length;
+    } else {
+      // The domain of the next pass runs from the first point's foot point to the last one's.
+      const a0 = u[0], a1 = u[n - 1];
+      span = a1 - a0;
+      if (!(span > 0)) span = NaN;
+      for (let i = 0; i < n; ++i) u[i] = Math.min(Math.max(u[i] - a0, 0), span);
+      u[0] = 0; u[n - 1] = span;
+    }
+    checkPass({ length: span, u, resid, sigma: sel.sigmaFrom === "unknown" ? 0 : sel.sigma, closed, knotInterval: span / basis.nseg }, start.referenceLength, file, name, say);
+    const wl = wavelengthForLambda(sel.fit.lambda, sm.normal.wSum / (basis.nseg * basis.h), basis.h);
+    if (pass === 0 && !sparse && n <= 2000 && set.segments === undefined) {
+      const turn = medianOf(turns);
+      if (turn > SPARSE_TURN) {
+        sparse = true;
+        nseg = Math.min(MAX_SEGMENTS, 4 * n);
+        diagnostics.push(`sparse trace: the curve turns by ${turn.toFixed(2)} rad between samples (median); fitted with ${nseg} knot intervals, near-interpolating the points${sigmaKnown === undefined ? " (give the coordinate error to smooth them)" : ""}`);
+      }
+    }
+    if (set.lambda === undefined && set.segments === undefined && !sparse) {
+      const want = Math.ceil((KNOTS_PER_WAVELENGTH * span) / wl);
+      // Shrink when the basis is much richer than the smoothing scale; grow back (up to the
+      // point-count rule) when the basis is too coarse, but not after the first pass, whose
+      // parameters are still noisy and whose level is too low.
+      if (wl > 2 * KNOTS_PER_WAVELENGTH * basis.h) nseg = Math.max(closed ? 12 : 8, want);
+      else if (pass > 0 && wl < (KNOTS_PER_WAVELENGTH * basis.h) / 2) nseg = Math.min(fullSegments, Math.max(nseg, want));
+    }
+    basis = makeBasis(0, span, nseg, closed);
+  }
+  if (!sel || !sm) throw new Error("unreachable: no pass ran");
+  const coef = sel.fit.coef;
+  const table = arcTable(basis, coef);
+  if (sel.rule === "gcv-x3") diagnostics.push("smoothing: the discrepancy level could not be bracketed (noise-free data?); used 3x the GCV level");
+  return { basis, smoother: sm, sel, coef, table, u, w, sparse, nearInterpolation };
+}
+
+/**
+ * The level of one pass: near-interpolation for a sparse trace (or the discrepancy level of the
+ * user's coordinate error, not below near-interpolation), else GCV -> noise -> discrepancy with
+ * the noise floor. The noise comes from the GCV residuals only with at least 20 residual degrees of
+ * freedom; otherwise from the difference-based estimate (an upper bound: shape misfit counts).
+ */
+function selectLevel(
+  sm: Smoother, normalDims: 1 | 2,
+  o: { sparse: boolean; nearInterpolation: number; start: Start; fixedLambda?: number; sigmaKnown?: number; hint?: number },
+): Selection {
+  const { start } = o;
+  const floor = start.sigmaFloor;
+  if (o.fixedLambda !== undefined) return selectSmoothing(sm, normalDims, { fixedLambda: o.fixedLambda, sigmaFloor: floor, ...(o.sigmaKnown !== undefined ? { sigmaKnown: o.sigmaKnown } : {}) });
+  if (o.sparse) {
+    if (o.sigmaKnown !== undefined) return selectSmoothing(sm, normalDims, { sigmaKnown: o.sigmaKnown, minLambda: o.nearInterpolation });
+    // Noise of a sparse trace: residuals of the fit whose half-power wavelength is two sample
+    // spacings (it passes the shape, a few samples per turn, and halves the point-to-point noise),
+    // only with at least MIN_SPARSE_DOF residual degrees of freedom; otherwise unknown (no bands).
+    const s = selectSmoothing(sm, normalDims, { fixedLambda: o.nearInterpolation });
+    const span = sm.basis.nseg * sm.basis.h, nPts = sm.normal.wSum;
+    const probe = selectSmoothing(sm, normalDims, { fixedLambda: lambdaForWavelength((2 * span) / nPts, nPts / span, sm.basis.h) });
+    const dof = normalDims * (nPts - probe.edf);
+    const known = dof >= MIN_SPARSE_DOF;
+    return { ...s, sigma: known ? Math.max(Math.sqrt(probe.fit.rss / dof), floor) : NaN, sigmaFrom: known ? "gcv" : "unknown", lambdaGcv: probe.fit.lambda, edfGcv: probe.edf };
+  }
+  const sel = selectSmoothing(sm, normalDims, { sigmaFloor: floor, ...(o.sigmaKnown !== undefined ? { sigmaKnown: o.sigmaKnown } : {}), ...(o.hint !== undefined ? { hintLogGcv: o.hint } : {}) });
+  const dof = normalDims * (sm.normal.wSum - sel.edfGcv);
+  if (o.sigmaKnown === undefined && dof < MIN_NOISE_DOF && Number.isFinite(start.sigmaDiff)) {
+    return selectSmoothing(sm, normalDims, { sigmaKnown: Math.max(start.sigmaDiff, floor), ...(o.hint !== undefined ? { hintLogGcv: o.hint } : {}) });
+  }
+  return sel;
+}

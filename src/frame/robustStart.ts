@@ -1,0 +1,219 @@
+/**
+ * The robust start of the geometry core (NUMERICS.md sec. 7, items 2 and 5): everything decided
+ * before the first spline fit, from order statistics only, so one wild point cannot steer it.
+ * Pure functions over interleaved xyz (any unit: every result is a ratio or in the input's unit).
+ */
+import { canonicalFrame } from "./canonicalFrame.js";
+
+/** Median of the first `count` values (a copy is sorted; NaN for none). */
+export function medianOf(values: ArrayLike<number>, count = values.length): number {
+  if (count === 0) return NaN;
+  const v = Float64Array.from({ length: count }, (_, i) => values[i]).sort();
+  return count % 2 ? v[(count - 1) >> 1] : 0.5 * (v[count / 2 - 1] + v[count / 2]);
+}
+
+/** Distances between consecutive points (n - 1 values). */
+export function stepLengths(y: Float64Array): Float64Array {
+  const n = y.length / 3;
+  const st = new Float64Array(Math.max(n - 1, 0));
+  for (let i = 1; i < n; ++i) st[i - 1] = Math.hypot(y[3 * i] - y[3 * i - 3], y[3 * i + 1] - y[3 * i - 2], y[3 * i + 2] - y[3 * i - 1]);
+  return st;
+}
+
+/** A trace moved to a canonical frame: centroid at 0, total chord length 1, principal axes. */
+export interface CanonicalTrace {
+  /** Points in the canonical frame (interleaved). */
+  readonly y: Float64Array;
+  /** Row-major rotation: canonical = Q (lab - centre) / scale. */
+  readonly Q: Float64Array;
+  readonly centre: readonly [number, number, number];
+  /** Total chord length of the input (its unit), the length scale of the canonical frame. */
+  readonly scale: number;
+}
+
+/**
+ * Centres the points, scales them by the chord length and rotates them to principal axes (3D
+ * only: planar traces keep their xy plane). Every later step is then equivariant under rigid
+ * motions and independent of the input unit. Cost O(n).
+ * Returns null when all points coincide (zero chord length).
+ */
+export function toCanonical(xyz: Float64Array, planar: boolean): CanonicalTrace | null {
+  const n = xyz.length / 3;
+  let cx = 0, cy = 0, cz = 0;
+  for (let i = 0; i < n; ++i) { cx += xyz[3 * i]; cy += xyz[3 * i + 1]; cz += xyz[3 * i + 2]; }
+  cx /= n; cy /= n; cz /= n;
+  let chord = 0;
+  for (let i = 1; i < n; ++i) chord += Math.hypot(xyz[3 * i] - xyz[3 * i - 3], xyz[3 * i + 1] - xyz[3 * i - 2], xyz[3 * i + 2] - xyz[3 * i - 1]);
+  if (!(chord > 0) || !Number.isFinite(chord)) return null;
+  const y = new Float64Array(3 * n);
+  for (let i = 0; i < n; ++i) {
+    y[3 * i] = (xyz[3 * i] - cx) / chord;
+    y[3 * i + 1] = (xyz[3 * i + 1] - cy) / chord;
+    y[3 * i + 2] = (xyz[3 * i + 2] - cz) / chord;
+  }
+  const Q = planar ? Float64Array.of(1, 0, 0, 0, 1, 0, 0, 0, 1) : canonicalFrame(y);
+  for (let i = 0; i < n; ++i) {
+    const a = y[3 * i], b = y[3 * i + 1], c = y[3 * i + 2];
+    y[3 * i] = Q[0] * a + Q[1] * b + Q[2] * c;
+    y[3 * i + 1] = Q[3] * a + Q[4] * b + Q[5] * c;
+    y[3 * i + 2] = Q[6] * a + Q[7] * b + Q[8] * c;
+  }
+  return { y, Q, centre: [cx, cy, cz], scale: chord };
+}
+
+/** Half-width of the neighbourhood used to judge each point. */
+const OUTLIER_HALF = 4;
+/** A point farther than this many robust scales from its neighbourhood's median is a gross outlier. */
+const OUTLIER_CUT = 5;
+/** Floor of the robust scale, as a fraction of the median step (NUMERICS.md sec. 7 item 2: 0.375). */
+const OUTLIER_SCALE_FLOOR = 0.375;
+
+/**
+ * Gross outliers of an ordered trace, flagged before any parametrisation: the distance of each
+ * point to the coordinate-wise median of its symmetric +-4 neighbours (truncated symmetrically at
+ * open ends; the end points themselves are judged against the straight extrapolation of their two
+ * neighbours), against a robust scale max(median distance, 0.375 x median step) (a Hampel-type
+ * identifier: Hampel 1974, JASA 69:383; the running-median idea: Tukey 1977, "Exploratory Data
+ * Analysis"). Returns 1 for a kept point, 0 for a gross outlier. Cost O(n).
+ */
+export function grossOutliers(y: Float64Array, closed: boolean): Uint8Array {
+  const n = y.length / 3;
+  const keep = new Uint8Array(n).fill(1);
+  if (n < 7) return keep;
+  const d = new Float64Array(n);
+  const bx = new Float64Array(2 * OUTLIER_HALF), by = new Float64Array(2 * OUTLIER_HALF), bz = new Float64Array(2 * OUTLIER_HALF);
+  for (let i = 0; i < n; ++i) {
+    const half = closed ? Math.min(OUTLIER_HALF, (n - 1) >> 1) : Math.min(OUTLIER_HALF, i, n - 1 - i);
+    let px: number, py: number, pz: number;
+    if (half === 0) {
+      const a = i === 0 ? 1 : n - 2, b = i === 0 ? 2 : n - 3;
+      px = 2 * y[3 * a] - y[3 * b]; py = 2 * y[3 * a + 1] - y[3 * b + 1]; pz = 2 * y[3 * a + 2] - y[3 * b + 2];
+    } else {
+      let c = 0;
+      for (let k = 1; k <= half; ++k) {
+        for (const j0 of [i - k, i + k]) {
+          const j = closed ? (j0 + n) % n : j0;
+          bx[c] = y[3 * j]; by[c] = y[3 * j + 1]; bz[c] = y[3 * j + 2]; ++c;
+        }
+      }
+      px = medianOf(bx, c); py = medianOf(by, c); pz = medianOf(bz, c);
+    }
+    d[i] = Math.hypot(y[3 * i] - px, y[3 * i + 1] - py, y[3 * i + 2] - pz);
+  }
+  const scale = Math.max(medianOf(d), OUTLIER_SCALE_FLOOR * medianOf(stepLengths(y)));
+  if (!(scale > 0)) return keep;
+  for (let i = 0; i < n; ++i) if (d[i] > OUTLIER_CUT * scale) keep[i] = 0;
+  return keep;
+}
+
+/**
+ * Running coordinate-wise median of +-half neighbours (truncated at open ends, wrapped on rings).
+ * Cost O(n half log half).
+ */
+export function runningMedian(y: Float64Array, half: number, closed: boolean): Float64Array {
+  const n = y.length / 3;
+  if (half === 0) return y.slice();
+  const out = new Float64Array(3 * n);
+  const buf = new Float64Array(2 * half + 1);
+  for (let i = 0; i < n; ++i) {
+    const h = closed ? Math.min(half, (n - 1) >> 1) : Math.min(half, i, n - 1 - i);
+    for (let c = 0; c < 3; ++c) {
+      let m = 0;
+      for (let k = -h; k <= h; ++k) {
+        const j = closed ? (i + k + n) % n : i + k;
+        buf[m++] = y[3 * j + c];
+      }
+      out[3 * i + c] = medianOf(buf, m);
+    }
+  }
+  return out;
+}
+
+/**
+ * Start parameter: cumulative chord length of the running median (+-2 points for 60 points or
+ * more; raw points below, where a window would cut across the turns of a sparse trace). Chord
+ * lengths of raw noisy points are mostly noise when the spacing is below the noise; a median,
+ * unlike a mean, is not dragged by a wild point. Returns the parameters and the span (the ring's
+ * closing chord included). Cost O(n).
+ */
+export function startParameter(y: Float64Array, closed: boolean): { u: Float64Array; span: number } {
+  const n = y.length / 3;
+  const sm = runningMedian(y, n >= 60 ? 2 : 0, closed);
+  const u = new Float64Array(n);
+  for (let i = 1; i < n; ++i) u[i] = u[i - 1] + Math.hypot(sm[3 * i] - sm[3 * i - 3], sm[3 * i + 1] - sm[3 * i - 2], sm[3 * i + 2] - sm[3 * i - 1]);
+  const span = closed ? u[n - 1] + Math.hypot(sm[0] - sm[3 * n - 3], sm[1] - sm[3 * n - 2], sm[2] - sm[3 * n - 1]) : u[n - 1];
+  return { u, span };
+}
+
+/**
+ * A robust length of the wire for the divergence guard: the polyline through coordinate-wise
+ * medians of consecutive blocks of b = max(1, floor(n / 100)) points (the block median averages
+ * the noise away, the 100 blocks follow the shape). Cost O(n log b).
+ */
+export function referenceLength(y: Float64Array, closed: boolean): number {
+  const n = y.length / 3;
+  const b = Math.max(1, Math.floor(n / 100));
+  const blocks = Math.floor(n / b);
+  const pts = new Float64Array(3 * blocks);
+  const buf = new Float64Array(b);
+  for (let k = 0; k < blocks; ++k) {
+    const end = k === blocks - 1 ? n : (k + 1) * b;
+    for (let c = 0; c < 3; ++c) {
+      let m = 0;
+      const tmp = end - k * b > b ? new Float64Array(end - k * b) : buf;
+      for (let i = k * b; i < end; ++i) tmp[m++] = y[3 * i + c];
+      pts[3 * k + c] = medianOf(tmp, m);
+    }
+  }
+  let len = 0;
+  for (let k = 1; k < blocks; ++k) len += Math.hypot(pts[3 * k] - pts[3 * k - 3], pts[3 * k + 1] - pts[3 * k - 2], pts[3 * k + 2] - pts[3 * k - 1]);
+  if (closed && blocks > 1) len += Math.hypot(pts[0] - pts[3 * blocks - 3], pts[1] - pts[3 * blocks - 2], pts[2] - pts[3 * blocks - 1]);
+  return len;
+}
+
+/**
+ * Noise level of an ordered trace without a fit: pseudo-residuals of a local cubic through the two
+ * neighbours on each side, at parameters `u` (arc length: sampling-independent, uneven steps
+ * allowed), projected on the plane normal to the local chord (the tangential part is absorbed by
+ * the parametrisation), normalised by their variance factor 1 + sum w_k^2, and summarised by the
+ * median of their squared norms (chi-square median: 1.386 for 2 normal directions, 0.455 for 1).
+ * Difference-based noise estimation: Gasser, Sroka & Jennen-Steinmetz 1986, Biometrika 73:625;
+ * Hall, Kay & Titterington 1990, Biometrika 77:521 (from memory). The cubic's bias is O(h^4 r'''')
+ * (small unless the trace is sparse, where the shape misfit is counted as noise: an upper bound).
+ * Returns sigma per coordinate, in the unit of y. Cost O(n).
+ */
+export function differenceNoise(y: Float64Array, u: Float64Array, normalDims: 1 | 2): number {
+  const n = y.length / 3;
+  if (n < 7) return NaN;
+  const r2 = new Float64Array(n);
+  let m = 0;
+  const e = [0, 0, 0];
+  for (let i = 2; i < n - 2; ++i) {
+    const t = [u[i - 2], u[i - 1], u[i + 1], u[i + 2]], x = u[i];
+    if (!(t[0] < t[1] && t[1] < x && x < t[2] && t[2] < t[3])) continue;
+    // Lagrange weights of the cubic through the four neighbours, evaluated at u_i.
+    const w = [0, 0, 0, 0];
+    for (let a = 0; a < 4; ++a) {
+      let p = 1;
+      for (let b = 0; b < 4; ++b) if (b !== a) p *= (x - t[b]) / (t[a] - t[b]);
+      w[a] = p;
+    }
+    const idx = [i - 2, i - 1, i + 1, i + 2];
+    for (let c = 0; c < 3; ++c) {
+      let acc = -y[3 * i + c];
+      for (let a = 0; a < 4; ++a) acc += w[a] * y[3 * idx[a] + c];
+      e[c] = acc;
+    }
+    // Normal-plane part: remove the component along the chord through the neighbours.
+    let tx = y[3 * (i + 1)] - y[3 * (i - 1)], ty = y[3 * (i + 1) + 1] - y[3 * (i - 1) + 1], tz = y[3 * (i + 1) + 2] - y[3 * (i - 1) + 2];
+    const tl = Math.hypot(tx, ty, tz);
+    if (!(tl > 0)) continue;
+    tx /= tl; ty /= tl; tz /= tl;
+    const along = e[0] * tx + e[1] * ty + e[2] * tz;
+    const f = 1 + w[0] * w[0] + w[1] * w[1] + w[2] * w[2] + w[3] * w[3];
+    const q = (e[0] * e[0] + e[1] * e[1] + e[2] * e[2] - along * along) / f;
+    r2[m++] = q;
+  }
+  if (m < 5) return NaN;
+  return Math.sqrt(medianOf(r2, m) / (normalDims === 2 ? 1.3863 : 0.4549));
+}
