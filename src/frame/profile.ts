@@ -2,7 +2,7 @@ import { ParameterError, InputError } from "../errors.js";
 import type { Profile, Trace } from "../types.js";
 import { fitBands } from "./bands.js";
 import { arcAt, uAtArc } from "./curve.js";
-import { checkClosable, describeLength } from "./fitGuard.js";
+import { checkClosable, describeLength, GAP_LIMIT } from "./fitGuard.js";
 import { detectClosed } from "./detectClosed.js";
 import { runPasses, type PassesResult } from "./passes.js";
 export { segmentCount } from "./passes.js";
@@ -127,6 +127,12 @@ export function robustStart(trace: Trace, options: ProfileOptions, diagnostics: 
   const y = canon.y;
   const steps = stepLengths(y);
   const medianStep = medianOf(steps);
+  let longest = 0;
+  for (let k = 1; k < steps.length; ++k) if (steps[k] > steps[longest]) longest = k;
+  if (steps[longest] > GAP_LIMIT * medianStep) {
+    throw new InputError(file, null, "points",
+      `no points over ${describeLength(steps[longest] * canon.scale, trace.source)} of the wire between ${rowName(trace, kept[longest])} and ${rowName(trace, kept[longest + 1])} (${(steps[longest] / medianStep).toFixed(0)}x the median step): the fit would invent the wire there; trace it more evenly or split it at the gap`);
+  }
   let closed: boolean;
   if (declaredClosed === undefined) closed = detectClosed(y, diagnostics);
   else {

@@ -74,7 +74,9 @@ const OUTLIER_SCALE_FLOOR = 0.375;
  * open ends; the end points themselves are judged against the straight extrapolation of their two
  * neighbours), against a robust scale max(median distance, 0.375 x median step) (a Hampel-type
  * identifier: Hampel 1974, JASA 69:383; the running-median idea: Tukey 1977, "Exploratory Data
- * Analysis"). Returns 1 for a kept point, 0 for a gross outlier. Cost O(n).
+ * Analysis"). A point is flagged only when the detour it forces on the path agrees (see below), so
+ * a long straight segment between exact points is not taken for outliers. Returns 1 for a kept
+ * point, 0 for a gross outlier. Cost O(n).
  */
 export function grossOutliers(y: Float64Array, closed: boolean): Uint8Array {
   const n = y.length / 3;
@@ -100,9 +102,36 @@ export function grossOutliers(y: Float64Array, closed: boolean): Uint8Array {
     }
     d[i] = Math.hypot(y[3 * i] - px, y[3 * i + 1] - py, y[3 * i + 2] - pz);
   }
-  const scale = Math.max(medianOf(d), OUTLIER_SCALE_FLOOR * medianOf(stepLengths(y)));
+  const medStep = medianOf(stepLengths(y));
+  const scale = Math.max(medianOf(d), OUTLIER_SCALE_FLOOR * medStep);
   if (!(scale > 0)) return keep;
-  for (let i = 0; i < n; ++i) if (d[i] > OUTLIER_CUT * scale) keep[i] = 0;
+  // Second opinion, from the path itself: the detour a point forces, |p_a p_i| + |p_i p_b| - |p_a p_b|
+  // with a, b its neighbours (the smaller over +-1 and +-2); an end point's distance off the line
+  // through its two neighbours. A point on the way (the start of a long straight segment, the far
+  // end of one) forces no detour and is kept even where its neighbourhood median is far.
+  const dist = (a: number, b: number) => Math.hypot(y[3 * a] - y[3 * b], y[3 * a + 1] - y[3 * b + 1], y[3 * a + 2] - y[3 * b + 2]);
+  const idx = (j: number) => (closed ? (j + n) % n : j);
+  const detour = new Float64Array(n);
+  for (let i = 0; i < n; ++i) {
+    let best = Infinity;
+    for (const k of [1, 2]) {
+      const a = idx(i - k), b = idx(i + k);
+      if (a < 0 || b >= n) continue;
+      best = Math.min(best, dist(a, i) + dist(i, b) - dist(a, b));
+    }
+    if (best === Infinity) {
+      const a = i === 0 ? 1 : n - 2, b = i === 0 ? 2 : n - 3;
+      const ux = y[3 * a] - y[3 * b], uy = y[3 * a + 1] - y[3 * b + 1], uz = y[3 * a + 2] - y[3 * b + 2];
+      const ul = Math.hypot(ux, uy, uz) || 1;
+      const vx = y[3 * i] - y[3 * a], vy = y[3 * i + 1] - y[3 * a + 1], vz = y[3 * i + 2] - y[3 * a + 2];
+      const perp = Math.hypot(vy * uz - vz * uy, vz * ux - vx * uz, vx * uy - vy * ux) / ul;
+      // Along the line (within 0.5 rad) the end point continues the wire, however far it is.
+      best = perp > Math.sin(0.5) * Math.hypot(vx, vy, vz) ? perp : 0;
+    }
+    detour[i] = best;
+  }
+  const detourScale = Math.max(medianOf(detour), OUTLIER_SCALE_FLOOR * medStep);
+  for (let i = 0; i < n; ++i) if (d[i] > OUTLIER_CUT * scale && detour[i] > OUTLIER_CUT * detourScale) keep[i] = 0;
   return keep;
 }
 

@@ -5,6 +5,8 @@
 import { InputError } from "../errors.js";
 import { PER_METRE, type InputUnit, type Source, type Trace } from "../types.js";
 import { DEFAULT_INPUT_UNIT, type TraceReadOptions } from "./types.js";
+import { orderCloud } from "./cloud/orderCloud.js";
+import { orderStats, outOfOrder } from "./orderCheck.js";
 
 /** Fewest distinct points a trace may have (a quintic fit needs a few more; it says so itself). */
 export const MIN_TRACE_POINTS = 4;
@@ -214,5 +216,39 @@ export function buildTrace(raw: RawTrace, file: string, options: TraceReadOption
   } = { xyz: out, dims: raw.dims, source, diagnostics, rows };
   if (closed !== undefined) trace.closed = closed;
   if (raw.declared.planarProjection !== undefined) trace.planarProjection = raw.declared.planarProjection;
-  return trace;
+  return kept >= 6 ? checkOrder(trace, file, unit, pixelSize) : trace;
+}
+
+/**
+ * An ordered trace whose points are not in order (see `orderStats`) is reordered by the cloud
+ * orderer when that ordering is unambiguous (no self-crossing or branch, few outliers, and the
+ * result passes the same order test), with a diagnostic that says so; otherwise refused with the
+ * measured ratios. Rows follow their points, so results still name the file's lines.
+ */
+function checkOrder(
+  trace: { xyz: Float64Array; dims: 2 | 3; source: Source; diagnostics: readonly string[]; closed?: boolean; planarProjection?: boolean; rows: Int32Array },
+  file: string, unit: InputUnit, pixelSize: number | undefined,
+): Trace {
+  const stats = orderStats(trace.xyz);
+  if (!outOfOrder(stats)) return trace;
+  const measured = `polyline ${stats.polylineOverTree.toFixed(0)}x its minimum spanning tree, median step ${stats.stepOverNeighbour.toFixed(0)}x the median nearest-neighbour distance; ordered traces stay below ${stats.limit.toFixed(1)}`;
+  let why: string;
+  try {
+    const r = orderCloud(trace.xyz, file, { unit, ...(pixelSize !== undefined ? { pixelSize } : {}), ...(trace.closed !== undefined ? { closed: trace.closed } : {}), dims: trace.dims });
+    const after = orderStats(r.trace.xyz);
+    if (r.outliers <= Math.max(1, 0.01 * (trace.xyz.length / 3)) && !outOfOrder(after) && after.polylineOverTree < 3) {
+      const rows = Int32Array.from(r.order, (i) => trace.rows[i]);
+      const note = `the points were not in order along the wire (${measured}): reordered them as an unordered cloud along ${r.closed ? "a closed" : "an open"} curve${r.outliers > 0 ? `, leaving out ${r.outliers} outlier(s)` : ""}; check the result, or read the file with --format cloud`;
+      const out: { xyz: Float64Array; dims: 2 | 3; source: Source; diagnostics: readonly string[]; closed?: boolean; planarProjection?: boolean; rows: Int32Array } = {
+        xyz: r.trace.xyz, dims: trace.dims, source: trace.source, diagnostics: [note, ...trace.diagnostics], rows, closed: r.closed,
+      };
+      if (trace.planarProjection !== undefined) out.planarProjection = trace.planarProjection;
+      return out;
+    }
+    why = r.outliers > 0.01 * (trace.xyz.length / 3) ? `${r.outliers} points left out as outliers` : "the ordered result still jumps along the wire";
+  } catch (e) {
+    if (!(e instanceof InputError)) throw e;
+    why = e.problem;
+  }
+  throw new InputError(file, null, "points", `the points are not in order along the wire (${measured}) and do not order unambiguously as a cloud (${why}); read them as an unordered cloud with --format cloud, or fix the order`);
 }

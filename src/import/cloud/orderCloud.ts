@@ -130,6 +130,11 @@ export function orderCloud(xyz: Readonly<Float64Array>, file: string, options: C
   diagnostics.push(
     `ordered ${r.order.length} points along ${r.closed ? "a closed" : "an open"} curve of length ${fmtL(r.length)} (end gap ${fmtL(r.gap)}; ${k} neighbours, running mean over ${2 * r.half + 1} path points)`,
   );
+  if (sideBranches.length > 0 && !options.allowBranches) {
+    const b = sideBranches[0];
+    throw new InputError(file, null, "points",
+      `the cloud crosses itself or branches near ${fmtP(b.x, b.y, b.z)} (a side branch of ${b.points} points reaching ${fmtL(b.extent)} from the path${sideBranches.length > 1 ? `; ${sideBranches.length - 1} more such places` : ""}): the order along one wire is ambiguous there; trace the wire as an ordered polyline, or split it`);
+  }
   for (const b of sideBranches.slice(0, 5)) {
     diagnostics.push(`long side branch of ${b.points} points reaching ${fmtL(b.extent)} from the curve near ${fmtP(b.x, b.y, b.z)}: a self-crossing or a branch; the ordering may be wrong there`);
   }
@@ -145,6 +150,7 @@ export function orderCloud(xyz: Readonly<Float64Array>, file: string, options: C
       dims: options.dims ?? (allZero ? 2 : 3),
       source: makeSource(file, options.unit, options.pixelSize),
       diagnostics,
+      rows: Int32Array.from(r.order, (i) => i + 1),
     },
     outliers: outlierIndices.length,
     outlierIndices: Uint32Array.from(outlierIndices),

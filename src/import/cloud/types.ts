@@ -19,6 +19,11 @@ export interface CloudOptions {
    * median distance (and 3 median neighbour spacings) in a small side branch [6].
    */
   readonly outlierFactor?: number;
+  /**
+   * Return a path even where the cloud crosses itself or branches (long side branches, reported in
+   * `sideBranches`) [false: such a cloud is refused, naming where].
+   */
+  readonly allowBranches?: boolean;
   /** Dimensions of the result [2 when every z is 0, else 3]. */
   readonly dims?: 2 | 3;
 }

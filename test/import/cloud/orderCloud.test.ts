@@ -118,11 +118,14 @@ describe("orderCloud(xyz, file, options)", () => {
     expect(same).toBe(true);
   });
 
-  it("warns about a long side branch (a branched or self-crossing cloud) and names where", () => {
+  it("refuses a branched or self-crossing cloud, naming where; with allowBranches it warns instead", () => {
     const pts: number[] = [];
     for (let i = 0; i <= 300; i++) pts.push((i - 150) * NM, 0, 0); // bar along x
     for (let i = 1; i <= 80; i++) pts.push(0, i * NM, 0); // a branch along y from the middle
-    const r = orderCloud(Float64Array.from(pts), "t.xyz", { unit: "nm" });
+    expect(() => orderCloud(Float64Array.from(pts), "t.xyz", { unit: "nm" })).toThrow(
+      /^t\.xyz: points: the cloud crosses itself or branches near \(.*\) nm \(a side branch of \d+ points reaching [\d.]+ nm from the path\): the order along one wire is ambiguous there; trace the wire as an ordered polyline, or split it$/,
+    );
+    const r = orderCloud(Float64Array.from(pts), "t.xyz", { unit: "nm", allowBranches: true });
     expect(r.sideBranches).toHaveLength(1);
     const d = r.trace.diagnostics.find((x) => x.startsWith("long side branch"));
     expect(d).toMatch(/^long side branch of \d+ points reaching [\d.]+ nm from the curve near \(.*\) nm: a self-crossing or a branch; the ordering may be wrong there$/);
