@@ -1,0 +1,178 @@
+/**
+ * Never a silent wrong answer: the robust start, the divergence guard and the refusals of the
+ * geometry core, each refusal with its full message. Reference values: helix kappa = R/(R^2+c^2),
+ * tau = c/(R^2+c^2) (https://en.wikipedia.org/wiki/Helix); everything else is a property of the
+ * input (a straight line has kappa = 0 and no torsion: common practice).
+ */
+import { describe, expect, it } from "vitest";
+import { fitProfile } from "../../src/frame/profile.js";
+import { grossOutliers, differenceNoise, referenceLength } from "../../src/frame/robustStart.js";
+import { FLAG_END, FLAG_TORSION_UNDEFINED, type Profile, type Trace } from "../../src/types.js";
+import { circleCurve, helixCurve, sampleCurve, sampleCurveUneven } from "../support/curves.js";
+import { mulberry32, normalStream } from "../support/rng.js";
+
+const trace = (xyz: Float64Array, extra: Partial<Trace> = {}): Trace => ({
+  xyz, dims: 3, source: { file: "w.csv", unit: "nm" }, diagnostics: [], rows: Int32Array.from({ length: xyz.length / 3 }, (_, i) => i + 2), ...extra,
+});
+const interiorMedian = (p: Profile, key: "kappa" | "tau") => {
+  const v = Array.from(p[key]).filter((x, j) => Number.isFinite(x) && !(p.flags[j] & FLAG_END)).sort((a, b) => a - b);
+  return v[v.length >> 1];
+};
+
+// A 780 nm helix: radius 60 nm, pitch 2 pi 25 nm = 157 nm (invented test geometry).
+const R = 60e-9, c = 25e-9;
+const k0 = R / (R * R + c * c), t0 = c / (R * R + c * c);
+const helix = helixCurve(R, c, 780e-9 / (2 * Math.PI * Math.hypot(R, c)));
+const clean = sampleCurve(helix, 400, 1e-9, 3).xyz;
+
+describe("robust start", () => {
+  it("flags no point of clean traces (uneven sampling, 0.2-3% noise, 10 seeds) and every wild point", () => {
+    let falseFlags = 0;
+    for (let seed = 1; seed <= 10; ++seed) {
+      for (const noise of [0.002, 0.01, 0.03]) {
+        const { xyz } = sampleCurveUneven(helixCurve(1, 0.4, 3), 300, noise, seed);
+        falseFlags += grossOutliers(xyz, false).reduce((a, v) => a + (v ? 0 : 1), 0);
+      }
+    }
+    expect(falseFlags).toBe(0);
+    const x = clean.slice();
+    const r = mulberry32(9);
+    const wild = [17, 140, 141, 300, 399];
+    for (const i of wild) { x[3 * i] += (r() < 0.5 ? -1 : 1) * 400e-9; x[3 * i + 2] += 300e-9 * r(); }
+    const keep = grossOutliers(x, false);
+    expect(wild.filter((i) => keep[i] === 0)).toEqual(wild);
+    expect(keep.reduce((a, v) => a + (v ? 0 : 1), 0)).toBe(wild.length);
+  });
+
+  it("keeps both ends of a long straight segment (on the way, no detour)", () => {
+    const pts: number[] = [];
+    for (let i = 0; i <= 50; ++i) pts.push(i * 1e-9, 0, 0);
+    pts.push(60e-9, 0, 0, 300e-9, 1e-9, 0);
+    expect(Array.from(grossOutliers(Float64Array.from(pts), false)).every((v) => v === 1)).toBe(true);
+  });
+
+  it("estimates the noise from arc-length neighbours whatever the sampling (within 10%)", () => {
+    // White noise of 0.01 per coordinate on a helix sampled 3:1 unevenly: the estimate is
+    // sampling-independent because the pseudo-residuals use the parameter spacing (Gasser et al. 1986).
+    const { xyz } = sampleCurveUneven(helixCurve(1, 0.4, 4), 2000, 0.01, 4);
+    // Parameters: the true arc length of each sample (helix speed sqrt(R^2 + c^2)).
+    const { t } = sampleCurveUneven(helixCurve(1, 0.4, 4), 2000, 0, 4);
+    const u = t.map((v) => v * Math.hypot(1, 0.4));
+    expect(differenceNoise(xyz, u, 2) / 0.01).toBeGreaterThan(0.9);
+    expect(differenceNoise(xyz, u, 2) / 0.01).toBeLessThan(1.1);
+  });
+
+  it("measures a robust length that ignores a wild point", () => {
+    const x = clean.slice();
+    x[600] += 5000e-9;
+    expect(referenceLength(x, false) / referenceLength(clean, false)).toBeCloseTo(1, 1);
+  });
+});
+
+describe("never a silent wrong answer", () => {
+  it("fits a helix with one stray point 100 nm to 5 um off like its clean twin, and names the row", () => {
+    const ref = fitProfile(trace(clean), { bootstrap: 0 });
+    for (const off of [100e-9, 1000e-9, 5000e-9]) {
+      const x = clean.slice();
+      x[3 * 200] += off;
+      const p = fitProfile(trace(x), { bootstrap: 0 });
+      expect(p.length / ref.length).toBeCloseTo(1, 3);
+      expect(interiorMedian(p, "kappa") / k0).toBeCloseTo(1, 2);
+      expect(interiorMedian(p, "tau") / t0).toBeCloseTo(1, 1);
+      expect(p.droppedRows).toEqual([202]);
+      expect(p.inputRow?.includes(202)).toBe(false);
+      expect(p.diagnostics).toContain("robust start: left out 1 gross outlier far off their neighbours (row 202)");
+    }
+  });
+
+  it("fits an ordered trace with 1% gross outliers within 1.5x the error of its clean twin", () => {
+    const g = normalStream(21);
+    const n = 1000, noisy = sampleCurve(helix, n, 1e-9, 21).xyz;
+    const x = noisy.slice();
+    const r = mulberry32(22);
+    for (let k = 0; k < 10; ++k) {
+      const i = 5 + Math.floor(r() * (n - 10));
+      // half near the wire (20-40 nm off), half anywhere in the bounding box
+      const far = k % 2 === 0;
+      for (let a = 0; a < 3; ++a) x[3 * i + a] = far ? (r() - 0.5) * 200e-9 : x[3 * i + a] + (20e-9 + 20e-9 * r()) * Math.sign(g());
+    }
+    const err = (p: Profile) => {
+      const js = Array.from({ length: p.n }, (_, j) => j).filter((j) => !(p.flags[j] & FLAG_END));
+      return Math.sqrt(js.reduce((a, j) => a + (p.kappa[j] / k0 - 1) ** 2, 0) / js.length);
+    };
+    const a = fitProfile(trace(noisy), { bootstrap: 0 }), b = fitProfile(trace(x), { bootstrap: 0 });
+    expect(err(b) / err(a)).toBeLessThan(1.5);
+    expect(b.outliers.length).toBeGreaterThanOrEqual(8);
+  });
+
+  it("refuses --closed on an open wire, naming the gap", () => {
+    expect(() => fitProfile(trace(clean), { closed: true })).toThrow(
+      "w.csv: closed: the wire was declared closed but its ends are 300 nm apart (108 sample steps, 26% of its length): fit it open (--open), or give a trace whose ends meet",
+    );
+  });
+
+  it("refuses a trace with a long stretch without points, naming the rows", () => {
+    const pts: number[] = [];
+    for (let i = 0; i <= 100; ++i) { const a = (i / 100) * Math.PI; pts.push(100e-9 * Math.cos(a), 100e-9 * Math.sin(a), 0); }
+    pts.push(-100e-9, -2000e-9, 0);
+    expect(() => fitProfile(trace(Float64Array.from(pts)))).toThrow(
+      "w.csv: points: no points over 2000 nm of the wire between row 102 and row 103 (637x the median step): the fit would invent the wire there; trace it more evenly or split it at the gap",
+    );
+  });
+
+  it("refuses a trace whose points are mostly wild", () => {
+    const r = mulberry32(4);
+    const x = clean.slice();
+    for (let i = 0; i < 400; i += 3) for (let a = 0; a < 3; ++a) x[3 * i + a] += (r() - 0.5) * 2e-6;
+    expect(() => fitProfile(trace(x))).toThrow(/^w\.csv: points: (\d+ of 400 points \(rows .* and \d+ more\) sit far off their neighbours: the points are not an ordered trace of one wire \(for unordered points use --format cloud\)|the fit diverged: its length is [\d.]+x a robust polyline length of the trace \([\d.]+ nm\); the points farthest from it are row \d+, row \d+, row \d+: check for stray points, or for unordered points use --format cloud)$/);
+  });
+
+  it("gives a straight line (exact, or with tiny noise) no torsion anywhere: NaN, flag 1", () => {
+    const r = mulberry32(3);
+    for (const eps of [0, 1e-15, 1e-12]) {
+      const n = 200, x = new Float64Array(3 * n);
+      for (let i = 0; i < n; ++i) { x[3 * i] = i * 1e-9 + eps * (r() - 0.5); x[3 * i + 1] = eps * (r() - 0.5); x[3 * i + 2] = eps * (r() - 0.5); }
+      const p = fitProfile(trace(x), { bootstrap: 50 });
+      expect(Array.from(p.tau).every(Number.isNaN)).toBe(true);
+      expect(Array.from(p.flags).every((f) => (f & FLAG_TORSION_UNDEFINED) !== 0)).toBe(true);
+      expect(Math.max(...p.kappa)).toBeLessThan(1e-3 / 199e-9); // total turning below 1 mrad
+    }
+  });
+
+  it("refuses a curved fit whose resolution exceeds the wire's length", () => {
+    const pts: number[] = [];
+    for (let i = 0; i < 30; ++i) { const a = (i / 29) * 2; pts.push(100e-9 * Math.cos(a), 100e-9 * Math.sin(a), 0); }
+    expect(() => fitProfile(trace(Float64Array.from(pts)), { lambda: 1e8 })).toThrow(/^w\.csv: points: the fit resolves nothing: its resolution length \([\d.e+]+ nm\) exceeds the wire's length \([\d.]+ nm\); too few points or too much noise for this wire$/);
+  });
+
+  it("keeps every band around its estimate and starts s at 0, open and closed", () => {
+    for (const curve of [helix, circleCurve(200e-9)]) {
+      const { xyz } = sampleCurveUneven(curve, 300, 0.01 * curve.radius, 5);
+      const p = fitProfile(trace(xyz, { closed: curve.closed }), { bootstrap: 60 });
+      expect(p.s[0]).toBe(0);
+      for (let j = 0; j < p.n; ++j) {
+        expect(p.kappaLo[j]).toBeLessThanOrEqual(p.kappa[j]);
+        expect(p.kappaHi[j]).toBeGreaterThanOrEqual(p.kappa[j]);
+        if (Number.isFinite(p.tau[j])) {
+          expect(p.tauLo[j]).toBeLessThanOrEqual(p.tau[j]);
+          expect(p.tauHi[j]).toBeGreaterThanOrEqual(p.tau[j]);
+        }
+      }
+      expect(p.inputRow?.length).toBe(p.n);
+    }
+  });
+});
+
+describe("unit independence of sparse traces", () => {
+  it("gives the same kappa x length for the same numbers read in angstrom and in metres", () => {
+    // Ideal alpha helix through 16 atoms (radius 2.3 A, rise 1.5 A, 100 degrees per residue;
+    // textbook values from memory), 0.1 A noise.
+    const g = normalStream(8), n = 16, c1 = 1.5 / ((100 * Math.PI) / 180);
+    const v = new Float64Array(3 * n);
+    for (let i = 0; i < n; ++i) { const t = (i * 100 * Math.PI) / 180; v[3 * i] = 2.3 * Math.cos(t) + 0.1 * g(); v[3 * i + 1] = 2.3 * Math.sin(t) + 0.1 * g(); v[3 * i + 2] = c1 * t + 0.1 * g(); }
+    const a = fitProfile(trace(v.map((x) => x * 1e-10), { source: { file: "h.xyz", unit: "A" } }), { bootstrap: 0 });
+    const b = fitProfile(trace(v.slice(), { source: { file: "h.xyz", unit: "m" } }), { bootstrap: 0 });
+    for (let j = 0; j < a.n; ++j) expect((a.kappa[j] * a.length) / (b.kappa[j] * b.length)).toBeCloseTo(1, 6); // measured 4e-8: rounding of the unit conversion
+    expect(a.diagnostics.some((d) => d.startsWith("sparse trace"))).toBe(true);
+  });
+});
