@@ -28,6 +28,7 @@ export interface PipelineFlags extends InputFlags {
   bootstrap?: string;
   seed?: string;
   step?: string;
+  coordinateError?: string;
   outUnit?: string;
   spacing?: string;
   mesh?: string;
@@ -59,6 +60,7 @@ export function checkPipelineFlags(where: string, input: string, flags: Pipeline
   if (flags.closed) req.closed = true;
   if (flags.open) req.closed = false;
   if (flags.step !== undefined) req.step = parseLengthOption(where, "--step", flags.step);
+  if (flags.coordinateError !== undefined) req.coordinateError = parseLengthOption(where, "--coordinate-error", flags.coordinateError);
   if (flags.outUnit !== undefined) req.outUnit = parseLengthUnitOption(where, "--out-unit", flags.outUnit);
   if (flags.spacing !== undefined) req.spacing = parseLengthOption(where, "--spacing", flags.spacing);
   if (flags.radius !== undefined) req.radius = parseLengthOption(where, "--radius", flags.radius);
@@ -79,6 +81,7 @@ export function jobOf(req: PipelineRequest, input: string, material: Material | 
     dir,
     ...(req.closed !== undefined ? { closed: req.closed } : {}),
     ...(req.step !== undefined ? { step: req.step } : {}),
+    ...(req.coordinateError !== undefined ? { coordinateError: req.coordinateError } : {}),
     ...(req.outUnit !== undefined ? { outUnit: req.outUnit } : {}),
     ...(req.spacing !== undefined ? { spacing: req.spacing } : {}),
     ...(req.radius !== undefined ? { radius: req.radius } : {}),
@@ -156,6 +159,7 @@ export function addAnalyzeCommand(program: Command, io: Io): void {
     .option("--bootstrap <n>", `bootstrap replicates for the 95% bands (default: ${DEFAULT_BOOTSTRAP})`)
     .option("--seed <n>", `seed of the bootstrap and the model's draws, 0 to 4294967295 (default: ${DEFAULT_SEED})`)
     .option("--step <length>", "profile sampling step, with its unit (default: one sample per input point)")
+    .option("--coordinate-error <length>", "the standard deviation of the coordinate error per coordinate, with its unit, e.g. 0.2A, when known: the noise is then not estimated (default: estimated from the trace)")
     .option("--out-unit <unit>", "length unit of every output, nm, um, m or A (default: the input unit; um for px)")
     .option("--format <format>", HELP.format)
     .option("--wire <n>", HELP.wire)

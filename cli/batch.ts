@@ -258,6 +258,7 @@ export function addBatchCommand(program: Command, io: Io): void {
     .option("--bootstrap <n>", `bootstrap replicates for the 95% bands (default: ${DEFAULT_BOOTSTRAP})`)
     .option("--seed <n>", `seed of the bootstrap and the model's draws (default: ${DEFAULT_SEED})`)
     .option("--step <length>", "profile sampling step, with its unit (default: one sample per input point)")
+    .option("--coordinate-error <length>", "the standard deviation of the coordinate error per coordinate, with its unit, e.g. 0.2A, when known: the noise is then not estimated (default: estimated from the trace)")
     .option("--out-unit <unit>", "length unit of every output (default: each input's unit; um for px)")
     .option("--format <format>", HELP.format)
     .option("--branches <policy>", HELP.branches)

@@ -38,6 +38,7 @@ export interface ProfileRequest {
   readonly bootstrap: number;
   readonly seed: number;
   readonly step?: number;
+  readonly coordinateError?: number;
   readonly outUnit?: LengthUnit;
   readonly format?: string;
   /** 1-based wire of a file that holds several (default 1). */
@@ -64,6 +65,7 @@ export interface ProfileFlags {
   bootstrap?: string;
   seed?: string;
   step?: string;
+  coordinateError?: string;
   outUnit?: string;
   format?: string;
   wire?: string;
@@ -156,6 +158,7 @@ export function checkProfileFlags(input: string, flags: ProfileFlags): ProfileRe
   if (flags.closed) req.closed = true;
   if (flags.open) req.closed = false;
   if (flags.step !== undefined) req.step = parseLengthOption(WHERE, "--step", flags.step);
+  if (flags.coordinateError !== undefined) req.coordinateError = parseLengthOption(WHERE, "--coordinate-error", flags.coordinateError);
   if (flags.outUnit !== undefined) req.outUnit = parseLengthUnitOption(WHERE, "--out-unit", flags.outUnit);
   if (inputs.format !== undefined) req.format = inputs.format;
   if (inputs.wire !== undefined) req.wire = inputs.wire;
@@ -217,6 +220,7 @@ export async function runProfile(req: ProfileRequest, io: Io, where = WHERE): Pr
   const fitOptions: { -readonly [K in keyof ProfileOptions]: ProfileOptions[K] } = { bootstrap: req.bootstrap, seed: req.seed };
   if (req.closed !== undefined) fitOptions.closed = req.closed;
   if (req.step !== undefined) fitOptions.step = req.step;
+  if (req.coordinateError !== undefined) fitOptions.coordinateError = req.coordinateError;
   const fitted = fitProfile(trace, fitOptions);
   const diagnostics = [...trace.diagnostics, ...fitted.diagnostics.filter((d) => !trace.diagnostics.includes(d))];
   const profile: Profile = { ...fitted, diagnostics };
@@ -279,6 +283,7 @@ export function addProfileCommand(program: Command, io: Io): void {
     .option("--bootstrap <n>", `bootstrap replicates for the 95% bands, 0 for none (default: ${DEFAULT_BOOTSTRAP})`)
     .option("--seed <n>", `seed of the bootstrap random stream, 0 to 4294967295 (default: ${DEFAULT_SEED})`)
     .option("--step <length>", "resample at this arc-length step, with its unit, e.g. 5nm (default: one sample per input point)")
+    .option("--coordinate-error <length>", "the standard deviation of the coordinate error per coordinate, with its unit, e.g. 0.2A, when known: the noise is then not estimated (default: estimated from the trace)")
     .option("--out-unit <unit>", "length unit of the output, nm, um, m or A; kappa and tau in 1/unit (default: the input unit; um for px)")
     .option("--format <format>", HELP.format)
     .option("--wire <n>", HELP.wire)

@@ -21,6 +21,7 @@ export interface PipelineSettings {
   readonly bootstrap: number;
   readonly seed: number;
   readonly step?: number;
+  readonly coordinateError?: number;
   readonly outUnit?: LengthUnit;
   readonly spacing?: number;
   readonly mesh: MeshFormat;
@@ -82,6 +83,7 @@ export async function runWireJob(job: WireJob, viewerJs: string): Promise<WireJo
     material: job.material,
     ...(job.closed !== undefined ? { closed: job.closed } : {}),
     ...(job.step !== undefined ? { step: job.step } : {}),
+    ...(job.coordinateError !== undefined ? { coordinateError: job.coordinateError } : {}),
   };
   const analysis = analyzeTrace(trace, options);
   const unit = job.outUnit ?? defaultOutputUnit(trace.source);

@@ -14,6 +14,8 @@ export interface AnalyzeOptions {
   readonly seed?: number;
   /** Profile sampling step (m); default one sample per input point. */
   readonly step?: number;
+  /** Known coordinate error (standard deviation per coordinate, m): the noise is then not estimated. */
+  readonly coordinateError?: number;
   /** A validated material (physics/parseMaterial); null or absent: geometry only. */
   readonly material?: Material | null;
   readonly segmentOptions?: SegmentOptions;
@@ -51,6 +53,7 @@ export function analyzeTrace(trace: Trace, options: AnalyzeOptions = {}): Analys
   const fitOptions: { -readonly [K in keyof ProfileOptions]: ProfileOptions[K] } = { bootstrap: options.bootstrap ?? 200, seed, keepSamples: true };
   if (options.closed !== undefined) fitOptions.closed = options.closed;
   if (options.step !== undefined) fitOptions.step = options.step;
+  if (options.coordinateError !== undefined) fitOptions.coordinateError = options.coordinateError;
   const t0 = performance.now();
   const fitted = fitProfile(trace, fitOptions);
   const diagnostics = [...trace.diagnostics, ...fitted.diagnostics.filter((d) => !trace.diagnostics.includes(d))];

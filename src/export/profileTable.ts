@@ -13,7 +13,7 @@ export const PROFILE_COLUMNS = [
   "s", "x", "y", "z",
   "kappa", "kappa_lo", "kappa_hi", "tau", "tau_lo", "tau_hi",
   "tx", "ty", "tz", "nx", "ny", "nz", "bx", "by", "bz",
-  "flags",
+  "flags", "input_row",
 ] as const;
 
 /** Meaning of each flag bit (src/types.ts). */
@@ -64,7 +64,16 @@ export function profileColumns(profile: Profile, unit: LengthUnit): ArrayLike<nu
     component(profile.N, 0, "N"), component(profile.N, 1, "N"), component(profile.N, 2, "N"),
     component(profile.B, 0, "B"), component(profile.B, 1, "B"), component(profile.B, 2, "B"),
     profile.flags,
+    inputRows(profile),
   ];
+}
+
+/** The input row of each sample (Trace.rows: a text file's line, a JSON point's number), NaN where none. */
+function inputRows(profile: Profile): Float64Array {
+  const out = new Float64Array(profile.n).fill(NaN);
+  const rows = profile.inputRow;
+  if (rows && rows.length === profile.n) for (let i = 0; i < profile.n; ++i) if (rows[i] >= 0) out[i] = rows[i];
+  return out;
 }
 
 /** Scalar facts about a profile, lengths in `unit`. Nothing here is invented: all comes from the profile or the options. */
@@ -88,6 +97,9 @@ export interface ProfileFacts {
   readonly seed?: number;
   readonly planarProjection: boolean;
   readonly outliers: readonly number[];
+  /** Input rows left out before the fit, and down-weighted by it. */
+  readonly droppedRows: readonly number[];
+  readonly downweightedRows: readonly number[];
   readonly diagnostics: readonly string[];
 }
 
@@ -119,6 +131,8 @@ export function profileFacts(profile: Profile, options: ProfileWriteOptions, whe
     replicates: profile.replicates,
     planarProjection: profile.planarProjection,
     outliers: profile.outliers,
+    droppedRows: profile.droppedRows ?? [],
+    downweightedRows: profile.downweightedRows ?? [],
     diagnostics: profile.diagnostics,
   };
   if (profile.source.pixelSize !== undefined) facts.pixelSize = profile.source.pixelSize * k;

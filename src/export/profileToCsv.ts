@@ -13,8 +13,9 @@ const MAX_LISTED_OUTLIERS = 50;
  * torsion estimate's), edf,
  * resolution length, bootstrap replicates and seed, planar projection, outliers, flag meanings,
  * one line per diagnostic), then the header row
- * `s,x,y,z,kappa,kappa_lo,kappa_hi,tau,tau_lo,tau_hi,tx,ty,tz,nx,ny,nz,bx,by,bz,flags`
- * and one row per sample. Lengths are in the output unit, kappa and tau (and their 95% bands) in
+ * `s,x,y,z,kappa,kappa_lo,kappa_hi,tau,tau_lo,tau_hi,tx,ty,tz,nx,ny,nz,bx,by,bz,flags,input_row`
+ * and one row per sample (`input_row`: the input file's line, or a JSON point's number, that the
+ * sample comes from; NaN for resampled samples; s starts at 0). Lengths are in the output unit, kappa and tau (and their 95% bands) in
  * 1/unit, t n b are unit vectors, flags the bit set of src/types.ts. Numbers carry 12 significant
  * digits in shortest form; undefined values are `NaN`. Line ends are `\n`.
  *
@@ -46,6 +47,9 @@ export function profileToCsv(profile: Profile, options: ProfileWriteOptions = {}
   const listed = f.outliers.slice(0, MAX_LISTED_OUTLIERS).join(" ");
   const more = f.outliers.length > MAX_LISTED_OUTLIERS ? ` and ${f.outliers.length - MAX_LISTED_OUTLIERS} more` : "";
   lines.push(`# outliers: ${f.outliers.length}${f.outliers.length > 0 ? ` (input point indices from 0: ${listed}${more})` : ""}`);
+  const rowList = (rows: readonly number[]) => `${rows.length}${rows.length > 0 ? ` (${rows.slice(0, MAX_LISTED_OUTLIERS).join(" ")}${rows.length > MAX_LISTED_OUTLIERS ? ` and ${rows.length - MAX_LISTED_OUTLIERS} more` : ""})` : ""}`;
+  lines.push(`# dropped rows: ${rowList(f.droppedRows)} (gross outliers left out before the fit; input_row numbering)`);
+  lines.push(`# down-weighted rows: ${rowList(f.downweightedRows)} (robust weight below 0.5)`);
   for (const [bit, meaning] of FLAG_MEANINGS) lines.push(`# flag ${bit}: ${meaning}`);
   for (const d of f.diagnostics) lines.push(`# diagnostic: ${oneLine(d)}`);
   lines.push(PROFILE_COLUMNS.join(","));

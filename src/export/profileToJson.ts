@@ -49,6 +49,8 @@ export function profileToJson(profile: Profile, options: ProfileWriteOptions = {
     bootstrap: { replicates: f.replicates, seed: f.seed ?? null, level: 0.95 },
     planarProjection: f.planarProjection,
     outliers: f.outliers,
+    droppedRows: f.droppedRows,
+    downweightedRows: f.downweightedRows,
     flags: Object.fromEntries(FLAG_MEANINGS.map(([bit, meaning]) => [String(bit), meaning])),
     diagnostics: f.diagnostics,
   };

@@ -33,6 +33,7 @@ export function helixProfile(a: number, b: number, n: number, source: Source = {
     n, s, x, y, z, T, N, B, kappa, kappaLo, kappaHi, tau, tauLo, tauHi, flags,
     length: s[n - 1], closed: false, resolution: 5e-9, sigma: 2.5e-10, lambda: 0.0123, lambdaTorsion: 0.5, segments: 40, edf: 17.5,
     replicates: 200, outliers: [], source, planarProjection: false, diagnostics: ["dropped 1 consecutive duplicate point (line 7)"],
+    inputRow: Int32Array.from({ length: n }, (_, i) => (i < 6 ? i + 2 : i + 3)), droppedRows: [], downweightedRows: [],
   };
 }
 

@@ -31,6 +31,8 @@ describe("profileToCsv(profile, options)", () => {
       "# bootstrap: 200 replicates, seed 7",
       "# planar projection: false",
       "# outliers: 0",
+      "# dropped rows: 0 (gross outliers left out before the fit; input_row numbering)",
+      "# down-weighted rows: 0 (robust weight below 0.5)",
       "# flag 1: torsion undefined: curvature not resolved from 0 (tau NaN, Frenet n and b undefined)",
       "# flag 2: n and b from the twist-free (parallel-transport) frame",
       "# flag 4: within one resolution length of an open end (larger bias)",
@@ -42,9 +44,10 @@ describe("profileToCsv(profile, options)", () => {
 
   it("writes the fixed column set, one row per sample", () => {
     const { header, rows } = readCsv(profileToCsv(helixProfile(a, b, 30)));
-    expect(header.join(",")).toBe("s,x,y,z,kappa,kappa_lo,kappa_hi,tau,tau_lo,tau_hi,tx,ty,tz,nx,ny,nz,bx,by,bz,flags");
+    expect(header.join(",")).toBe("s,x,y,z,kappa,kappa_lo,kappa_hi,tau,tau_lo,tau_hi,tx,ty,tz,nx,ny,nz,bx,by,bz,flags,input_row");
     expect(rows.length).toBe(30);
-    expect(rows.every((r) => r.length === 20 && r.every(Number.isFinite))).toBe(true);
+    expect(rows.every((r) => r.length === 21 && r.every(Number.isFinite))).toBe(true);
+    expect(rows.map((r) => r[20]).slice(4, 8)).toEqual([6, 7, 9, 10]); // input lines, line 8 a dropped duplicate
     expect(rows[0][19]).toBe(4);
     expect(rows[1][19]).toBe(0);
   });
