@@ -38,6 +38,11 @@ export interface Trace {
   readonly radius?: Float64Array;
   /** Spread (standard deviation) of the tube radius per point (m). */
   readonly radiusSpread?: Float64Array;
+  /**
+   * Scale of the tessellation the trace came from (median triangle edge, m), when it came from a
+   * mesh: the fit does not resolve features shorter than a few of these (facets are not the wire).
+   */
+  readonly facetLength?: number;
   /** Everything repaired or dropped at import (one human-readable line each). */
   readonly diagnostics: readonly string[];
   /**

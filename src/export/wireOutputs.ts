@@ -159,8 +159,12 @@ export async function buildWireOutputs(a: Analysis, options: WireOutputOptions):
   const columns = [...CHAIN_GEOMETRY_COLUMNS, ...(cm !== null ? CHAIN_MODEL_COLUMNS : []), ...(cm?.texture ? CHAIN_TEXTURE_COLUMNS : [])];
 
   const { radius, note: radiusNote } = chooseRadius(a, options.radius, unit);
-  const pts = Float64Array.from(chain.xyz, (v) => v * k);
-  const mesh = tubeMesh(pts, chain.T, chain.closed, radius * k);
+  // Rings every twelfth of the resolution length at least (a chain spaced at a quarter of it would
+  // make the tube a polygon whose corners a reader of the mesh takes for curvature), at most 20000.
+  const ringSpacing = Math.max(Math.min(spacing, a.profile.resolution / 12), a.profile.length / 20_000);
+  const rings = ringSpacing < spacing ? resampleWire(a.profile, ringSpacing) : chain;
+  const pts = Float64Array.from(rings.xyz, (v) => v * k);
+  const mesh = tubeMesh(pts, rings.T, rings.closed, radius * k);
   const meshBytes = await meshToBytes(mesh, format, { unit, radiusNote, sourceFile: a.profile.source.file });
 
   const document = buildModelDocument(a, {

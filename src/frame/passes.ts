@@ -192,10 +192,12 @@ function selectLevel(
     const known = dof >= MIN_SPARSE_DOF;
     return { ...s, sigma: known ? Math.max(Math.sqrt(probe.fit.rss / dof), floor) : NaN, sigmaFrom: known ? "gcv" : "unknown", lambdaGcv: probe.fit.lambda, edfGcv: probe.edf };
   }
-  const sel = selectSmoothing(sm, normalDims, { sigmaFloor: floor, ...(o.sigmaKnown !== undefined ? { sigmaKnown: o.sigmaKnown } : {}), ...(o.hint !== undefined ? { hintLogGcv: o.hint } : {}) });
+  // A mesh centre line: no wavelength shorter than three facets (the tessellation is not the wire).
+  const minLambda = start.minWavelength > 0 ? lambdaForWavelength(start.minWavelength, sm.normal.wSum / (sm.basis.nseg * sm.basis.h), sm.basis.h) : undefined;
+  const sel = selectSmoothing(sm, normalDims, { sigmaFloor: floor, ...(minLambda !== undefined ? { minLambda } : {}), ...(o.sigmaKnown !== undefined ? { sigmaKnown: o.sigmaKnown } : {}), ...(o.hint !== undefined ? { hintLogGcv: o.hint } : {}) });
   const dof = normalDims * (sm.normal.wSum - sel.edfGcv);
   if (o.sigmaKnown === undefined && dof < MIN_NOISE_DOF && Number.isFinite(start.sigmaDiff)) {
-    return selectSmoothing(sm, normalDims, { sigmaKnown: Math.max(start.sigmaDiff, floor), ...(o.hint !== undefined ? { hintLogGcv: o.hint } : {}) });
+    return selectSmoothing(sm, normalDims, { sigmaKnown: Math.max(start.sigmaDiff, floor), ...(minLambda !== undefined ? { minLambda } : {}), ...(o.hint !== undefined ? { hintLogGcv: o.hint } : {}) });
   }
   return sel;
 }

@@ -45,7 +45,7 @@ export function meshCenterline(mesh: Mesh, file: string, options: CenterlineOpti
   const nV = mesh.positions.length / 3;
   const comps = triangleComponents(mesh.index, nV);
   const fileNotes: string[] = [...mesh.diagnostics];
-  const traces: { xyz: Float64Array; closed: boolean; radius: Float64Array; spread: Float64Array; notes: string[] }[] = [];
+  const traces: { xyz: Float64Array; closed: boolean; radius: Float64Array; spread: Float64Array; notes: string[]; facet: number }[] = [];
   const fmtP = (x: number, y: number, z: number) => formatPoint(x, y, z, options.unit, options.pixelSize);
   const fmtL = (v: number) => formatLength(v, options.unit, options.pixelSize);
   const minTriangles = options.minTriangles ?? 20;
@@ -58,7 +58,7 @@ export function meshCenterline(mesh: Mesh, file: string, options: CenterlineOpti
     const { positions, index } = extract(mesh, tris);
     const result = wireOfComponent(positions, index, file, name, options, fmtP, fmtL);
     if (typeof result === "string") fileNotes.push(result);
-    else traces.push(result);
+    else traces.push({ ...result, facet: medianEdge(positions, index) });
   });
   if (traces.length === 0) {
     throw new InputError(file, null, "mesh", `no wire-like component (${fileNotes.filter((n) => n.includes("skipped")).join("; ") || "empty"})`);
@@ -70,8 +70,22 @@ export function meshCenterline(mesh: Mesh, file: string, options: CenterlineOpti
     source: makeSource(file, options.unit, options.pixelSize),
     radius: t.radius,
     radiusSpread: t.spread,
+    facetLength: t.facet,
     diagnostics: [...(i === 0 ? fileNotes : []), ...t.notes],
   }));
+}
+
+/** Median edge length of a triangle mesh (each triangle's three edges): the tessellation's scale. */
+function medianEdge(positions: Float64Array, index: Uint32Array): number {
+  const e = new Float64Array(index.length);
+  for (let f = 0; f < index.length; f += 3) {
+    for (let k = 0; k < 3; ++k) {
+      const a = 3 * index[f + k], b = 3 * index[f + ((k + 1) % 3)];
+      e[f + k] = Math.hypot(positions[a] - positions[b], positions[a + 1] - positions[b + 1], positions[a + 2] - positions[b + 2]);
+    }
+  }
+  e.sort();
+  return e.length ? e[e.length >> 1] : 0;
 }
 
 function extract(mesh: Mesh, tris: Readonly<Uint32Array>): { positions: Float64Array; index: Uint32Array } {
