@@ -5,7 +5,7 @@
  */
 import { InputError } from "../errors.js";
 import { PER_METRE, type Source } from "../types.js";
-import { medianOf } from "./robustStart.js";
+import { medianInPlace, medianOf } from "./robustStart.js";
 
 /** A length in metres written in the unit of the source file (pixels: in pixels). */
 export function describeLength(metres: number, source: Source): string {
@@ -68,16 +68,21 @@ export function checkPass(state: PassState, referenceLength: number, file: strin
     throw new InputError(file, null, "points",
       `the fit diverged: its length is ${ratio.toPrecision(2)}x a robust polyline length of the trace (${say(referenceLength)}); the points farthest from it are ${worst()}: check for stray points, or for unordered points use --format cloud`);
   }
-  const order = Array.from({ length: n }, (_, i) => i).sort((a, b) => u[a] - u[b]);
+  // Gaps between consecutive parameters (sorted copy: native typed-array sort), then the indices
+  // of the widest gap only if it fails.
+  const su = u.slice().sort();
   const gaps = new Float64Array(state.closed ? n : n - 1);
-  for (let k = 1; k < n; ++k) gaps[k - 1] = u[order[k]] - u[order[k - 1]];
-  if (state.closed) gaps[n - 1] = state.length - u[order[n - 1]] + u[order[0]];
-  const med = medianOf(gaps.filter((g) => g > 0));
-  let big = 0;
+  for (let k = 1; k < n; ++k) gaps[k - 1] = su[k] - su[k - 1];
+  if (state.closed) gaps[n - 1] = state.length - su[n - 1] + su[0];
+  let big = 0, pos = 0;
   for (let k = 1; k < gaps.length; ++k) if (gaps[k] > gaps[big]) big = k;
-  if (med > 0 && gaps[big] > GAP_LIMIT * med && gaps[big] > 2 * state.knotInterval) {
-    const a = order[big], b = order[(big + 1) % n];
+  for (let k = 0; k < gaps.length; ++k) if (gaps[k] > 0) gaps[pos++] = gaps[k];
+  const widest = big < n - 1 ? su[big + 1] - su[big] : state.length - su[n - 1] + su[0];
+  const med = medianInPlace(gaps, pos);
+  if (med > 0 && widest > GAP_LIMIT * med && widest > 2 * state.knotInterval) {
+    const ua = su[big], ub = su[(big + 1) % n];
+    const a = u.indexOf(ua), b = u.indexOf(ub);
     throw new InputError(file, null, "points",
-      `no points over ${say(gaps[big])} of the wire between ${name(a)} and ${name(b)} (${(gaps[big] / med).toFixed(0)}x the median spacing): the fit would invent the wire there; trace it more evenly or split it at the gap`);
+      `no points over ${say(widest)} of the wire between ${name(a)} and ${name(b)} (${(widest / med).toFixed(0)}x the median spacing): the fit would invent the wire there; trace it more evenly or split it at the gap`);
   }
 }

@@ -99,7 +99,8 @@ export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnos
     if (pass === set.passes) break;
     // Foot-point projection: Newton on |r(u) - p|^2, steps limited to one knot interval.
     const coef = sel.fit.coef;
-    const turns = new Float64Array(n);
+    const checkSparse = pass === 0 && !sparse && n <= 2000 && set.segments === undefined;
+    const turns = new Float64Array(checkSparse ? n : 0);
     for (let i = 0; i < n; ++i) {
       let ui = u[i];
       for (let it = 0; it < 4; ++it) {
@@ -116,9 +117,9 @@ export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnos
         if (Math.abs(du) < 1e-7 * basis.h) break;
       }
       u[i] = ui;
-      evalCurve(basis, coef, ui, 3, d12, st, sb);
+      evalCurve(basis, coef, ui, checkSparse ? 3 : 0, d12, st, sb);
       resid[i] = Math.hypot(d12[0] - y[3 * i], d12[1] - y[3 * i + 1], d12[2] - y[3 * i + 2]);
-      turns[i] = kappaTau(d12, kt)[0] * start.medianStep;
+      if (checkSparse) turns[i] = kappaTau(d12, kt)[0] * start.medianStep;
     }
     // Robust weights from the residual norms (Rayleigh median in 3D: 1.1774 sigma; half-normal in
     // 2D: 0.6745 sigma), the scale floored at 10% of the median step so clean points where the fit
@@ -142,7 +143,7 @@ export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnos
     }
     checkPass({ length: span, u, resid, sigma: sel.sigmaFrom === "unknown" ? 0 : sel.sigma, closed, knotInterval: span / basis.nseg }, start.referenceLength, file, name, say);
     const wl = wavelengthForLambda(sel.fit.lambda, sm.normal.wSum / (basis.nseg * basis.h), basis.h);
-    if (pass === 0 && !sparse && n <= 2000 && set.segments === undefined) {
+    if (checkSparse) {
       const turn = medianOf(turns);
       if (turn > SPARSE_TURN) {
         sparse = true;

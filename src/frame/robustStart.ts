@@ -5,11 +5,49 @@
  */
 import { canonicalFrame } from "./canonicalFrame.js";
 
-/** Median of the first `count` values (a copy is sorted; NaN for none). */
+/** k-th smallest of a[0..count) (0-based), reordering a in place: Hoare's selection (Hoare 1961,
+ * CACM 4:321, "Algorithm 65: find"), insertion sort below 16 values. O(count) expected. */
+export function selectInPlace(a: Float64Array, count: number, k: number): number {
+  if (count <= 16) {
+    for (let i = 1; i < count; ++i) {
+      const v = a[i];
+      let j = i - 1;
+      while (j >= 0 && a[j] > v) { a[j + 1] = a[j]; --j; }
+      a[j + 1] = v;
+    }
+    return a[k];
+  }
+  let lo = 0, hi = count - 1;
+  while (lo < hi) {
+    const pivot = a[(lo + hi) >> 1];
+    let i = lo, j = hi;
+    while (i <= j) {
+      while (a[i] < pivot) ++i;
+      while (a[j] > pivot) --j;
+      if (i <= j) { const t = a[i]; a[i] = a[j]; a[j] = t; ++i; --j; }
+    }
+    if (k <= j) hi = j;
+    else if (k >= i) lo = i;
+    else break;
+  }
+  return a[k];
+}
+
+/** Median of a[0..count), reordering a in place (the mean of the two middle values for an even count). */
+export function medianInPlace(a: Float64Array, count = a.length): number {
+  if (count === 0) return NaN;
+  const hi = selectInPlace(a, count, count >> 1);
+  if (count % 2) return hi;
+  let lo = -Infinity;
+  for (let i = 0; i < count >> 1; ++i) if (a[i] > lo) lo = a[i];
+  return 0.5 * (lo + hi);
+}
+
+/** Median of the first `count` values (the input is not changed; NaN for none). */
 export function medianOf(values: ArrayLike<number>, count = values.length): number {
   if (count === 0) return NaN;
-  const v = Float64Array.from({ length: count }, (_, i) => values[i]).sort();
-  return count % 2 ? v[(count - 1) >> 1] : 0.5 * (v[count / 2 - 1] + v[count / 2]);
+  const v = values instanceof Float64Array ? values.slice(0, count) : Float64Array.from({ length: count }, (_, i) => values[i]);
+  return medianInPlace(v, count);
 }
 
 /** Distances between consecutive points (n - 1 values). */
@@ -93,12 +131,11 @@ export function grossOutliers(y: Float64Array, closed: boolean): Uint8Array {
     } else {
       let c = 0;
       for (let k = 1; k <= half; ++k) {
-        for (const j0 of [i - k, i + k]) {
-          const j = closed ? (j0 + n) % n : j0;
-          bx[c] = y[3 * j]; by[c] = y[3 * j + 1]; bz[c] = y[3 * j + 2]; ++c;
-        }
+        const a = closed ? (i - k + n) % n : i - k, b = closed ? (i + k) % n : i + k;
+        bx[c] = y[3 * a]; by[c] = y[3 * a + 1]; bz[c] = y[3 * a + 2]; ++c;
+        bx[c] = y[3 * b]; by[c] = y[3 * b + 1]; bz[c] = y[3 * b + 2]; ++c;
       }
-      px = medianOf(bx, c); py = medianOf(by, c); pz = medianOf(bz, c);
+      px = medianInPlace(bx, c); py = medianInPlace(by, c); pz = medianInPlace(bz, c);
     }
     d[i] = Math.hypot(y[3 * i] - px, y[3 * i + 1] - py, y[3 * i + 2] - pz);
   }
@@ -114,10 +151,11 @@ export function grossOutliers(y: Float64Array, closed: boolean): Uint8Array {
   const detour = new Float64Array(n);
   for (let i = 0; i < n; ++i) {
     let best = Infinity;
-    for (const k of [1, 2]) {
+    for (let k = 1; k <= 2; ++k) {
       const a = idx(i - k), b = idx(i + k);
       if (a < 0 || b >= n) continue;
-      best = Math.min(best, dist(a, i) + dist(i, b) - dist(a, b));
+      const v = dist(a, i) + dist(i, b) - dist(a, b);
+      if (v < best) best = v;
     }
     if (best === Infinity) {
       const a = i === 0 ? 1 : n - 2, b = i === 0 ? 2 : n - 3;
@@ -152,7 +190,7 @@ export function runningMedian(y: Float64Array, half: number, closed: boolean): F
         const j = closed ? (i + k + n) % n : i + k;
         buf[m++] = y[3 * j + c];
       }
-      out[3 * i + c] = medianOf(buf, m);
+      out[3 * i + c] = medianInPlace(buf, m);
     }
   }
   return out;
@@ -191,7 +229,7 @@ export function referenceLength(y: Float64Array, closed: boolean): number {
       let m = 0;
       const tmp = end - k * b > b ? new Float64Array(end - k * b) : buf;
       for (let i = k * b; i < end; ++i) tmp[m++] = y[3 * i + c];
-      pts[3 * k + c] = medianOf(tmp, m);
+      pts[3 * k + c] = medianInPlace(tmp, m);
     }
   }
   let len = 0;
@@ -244,5 +282,5 @@ export function differenceNoise(y: Float64Array, u: Float64Array, normalDims: 1 
     r2[m++] = q;
   }
   if (m < 5) return NaN;
-  return Math.sqrt(medianOf(r2, m) / (normalDims === 2 ? 1.3863 : 0.4549));
+  return Math.sqrt(medianInPlace(r2, m) / (normalDims === 2 ? 1.3863 : 0.4549));
 }
