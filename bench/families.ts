@@ -65,17 +65,18 @@ for (const curve of families) {
         let auto: Score;
         try { auto = score(curve, xyz, truth, { bootstrap: 100, seed }); } catch (e) { console.log(`${curve.name} N=${N} noise=${noise} seed=${seed}: REFUSED ${(e as Error).message}`); continue; }
         const ms = performance.now() - t0;
-        let bestK = Infinity, bestT = Infinity;
+        let bestK = Infinity, bestT = Infinity, eK = 0, eT = 0;
         for (let e = -10; e <= 16; ++e) {
           let s: Score;
           try { s = score(curve, xyz, truth, { bootstrap: 0, lambda: auto.lambda * Math.pow(10, e / 4), segments: auto.segments }); } catch { continue; }
-          bestK = Math.min(bestK, s.k); bestT = Math.min(bestT, s.t);
+          if (s.k < bestK) { bestK = s.k; eK = e / 4; }
+          if (s.t < bestT) { bestT = s.t; eT = e / 4; }
         }
         const name = `${curve.name} N=${N} ${(noise * 100).toFixed(1)}% s${seed}`;
         const rk = auto.k / bestK, rt = bestT < 1e-9 ? (auto.t < 1e-9 ? 1 : Infinity) : auto.t / bestT;
         out.push({ name, rk, rt, covK: auto.covK, covT: auto.covT, inK: auto.inK, inT: auto.inT });
         const f = (v: number) => (100 * v).toFixed(2).padStart(6) + "%";
-        console.log(`${name.padEnd(28)} ${f(auto.k)} ${f(bestK)} ${rk.toFixed(2).padStart(5)} | ${f(auto.t)} ${f(bestT)} ${rt.toFixed(2).padStart(5)} | ${auto.covK.toFixed(2)} ${auto.covT.toFixed(2)} | ${auto.inK.toFixed(2)} ${auto.inT.toFixed(2)} (${ms.toFixed(0)} ms)`);
+        console.log(`${name.padEnd(28)} ${f(auto.k)} ${f(bestK)} ${rk.toFixed(2).padStart(5)} | ${f(auto.t)} ${f(bestT)} ${rt.toFixed(2).padStart(5)} | ${auto.covK.toFixed(2)} ${auto.covT.toFixed(2)} | ${auto.inK.toFixed(2)} ${auto.inT.toFixed(2)} (${ms.toFixed(0)} ms) best log10 level k ${eK >= 0 ? "+" : ""}${eK} t ${eT >= 0 ? "+" : ""}${eT}`);
       }
     }
   }

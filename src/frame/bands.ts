@@ -43,11 +43,11 @@ export function quantileSorted(sorted: Float64Array, p: number): number {
  * linearly with the level, the quarter-level fit keeps a third of its difference to the full-level
  * fit), and finally stretched to contain the estimate. Returns [lo, hi] with lo <= 0 <= hi.
  */
-export function bandOffsets(sorted: Float64Array, shift: number): [number, number] {
+export function bandOffsets(sorted: Float64Array, shift: number, spread = 1): [number, number] {
   const med = quantileSorted(sorted, 0.5);
   const sh = Number.isFinite(shift) ? shift : 0;
-  const lo = quantileSorted(sorted, 0.025) - med + sh + Math.min(0, sh / 3);
-  const hi = quantileSorted(sorted, 0.975) - med + sh + Math.max(0, sh / 3);
+  const lo = spread * (quantileSorted(sorted, 0.025) - med) + sh + Math.min(0, sh / 3);
+  const hi = spread * (quantileSorted(sorted, 0.975) - med) + sh + Math.max(0, sh / 3);
   return [Math.min(0, lo), Math.max(0, hi)];
 }
 
@@ -96,7 +96,7 @@ export function fitBands(
   const flags = new Uint8Array(m);
   const Rb = Math.max(R, 50);
   const grid = lv.grid, g = grid.m;
-  const bandK = solveAt(fit.smoother, lv.kappaFit.lambda / 4);
+  const bandK = solveAt(lv.kappaSmoother, lv.kappaFit.lambda / 4);
   const bandT = lv.tauFit === lv.kappaFit ? bandK : solveAt(fit.smoother, lv.tauFit.lambda / 4);
   const boot = bootstrapBands({ C: lv.C, grid, kappaFit: bandK, tauFit: bandT, normalDims, replicates: Rb, seed: set.seed });
   const gk = new Float64Array(g), gt = new Float64Array(g);
@@ -110,9 +110,10 @@ export function fitBands(
   for (let j = 0; j < g; ++j) {
     for (let r = 0; r < Rb; ++r) col[r] = boot.kappa[r * g + j];
     col.sort();
+    const half = 0.5 * (quantileSorted(col, 0.975) - quantileSorted(col, 0.025));
     const shK = kappaTauAt(grid, bandK.coef, null, j, d12, kt)[0] - gk[j];
     // Bias ratio: the less-smoothed fit's move over the half-width of the noise band.
-    kBias[j] = Math.abs(shK) / Math.max(0.5 * (quantileSorted(col, 0.975) - quantileSorted(col, 0.025)), 1e-300);
+    kBias[j] = Math.abs(shK) / Math.max(half, 1e-300);
     [kLo[j], kHi[j]] = bandOffsets(col, shK);
     let finite = 0;
     for (let r = 0; r < Rb; ++r) { const v = boot.tau[r * g + j]; if (Number.isFinite(v)) col[finite++] = v; }

@@ -70,18 +70,18 @@ export function normalEquations(
  * Difference penalty P = D^T D of order 4 on the coefficients (Eilers & Marx 1996, Stat. Sci. 11:89),
  * cyclic when the basis is periodic, stored on the same envelope as G.
  */
-export function differencePenalty(basis: SplineBasis): Skyline {
+export function differencePenalty(basis: SplineBasis, rowWeights?: Float64Array): Skyline {
   const K = basis.K;
   const P = makeSkyline(envelope(K, ORDER - 1, basis.periodic));
   const d = [1, -4, 6, -4, 1];
   const rows = basis.periodic ? K : K - 4;
   for (let r = 0; r < rows; ++r) {
+    const wr = rowWeights ? rowWeights[r] : 1;
     for (let a = 0; a < 5; ++a) {
       for (let c = 0; c <= a; ++c) {
         const ia = (r + a) % K, ic = (r + c) % K;
         // Diagonal pairs once; off-diagonal pairs (a != c) stand for both (a,c) and (c,a).
-        if (a === c) skyAdd(P, ia, ic, d[a] * d[c]);
-        else skyAdd(P, ia, ic, d[a] * d[c]);
+        skyAdd(P, ia, ic, wr * d[a] * d[c]);
       }
     }
   }

@@ -10,10 +10,12 @@ import { arcAt, evalCurve, kappaTau } from "./curve.js";
 import { describeLength } from "./fitGuard.js";
 import type { PassesResult } from "./passes.js";
 import type { Samples, Start } from "./profile.js";
-import { wavelengthForLambda, type SmoothFit } from "./smoother.js";
+import { solveAt, wavelengthForLambda, type SmoothFit, type Smoother } from "./smoother.js";
 import type { Skyline } from "./skyline.js";
 import { symEigen3 } from "./symEigen3.js";
 import { balancedLevel } from "./torsionLevel.js";
+import { adaptiveCurvature } from "./adaptiveLevel.js";
+import { differencePenalty } from "./design.js";
 
 export interface Levels {
   readonly kappaFit: SmoothFit;
@@ -29,6 +31,31 @@ export interface Levels {
   readonly gridU: Float64Array;
   /** Arc length of each grid point from the domain start. */
   readonly gridS: Float64Array;
+  /** The smoother of the curvature fit (its penalty varies along the wire when adaptive). */
+  readonly kappaSmoother: Smoother;
+}
+
+/** Running mean of v over +-half in s (s increasing). */
+function runningMean(v: Float64Array, s: Float64Array, half: number): Float64Array {
+  const m = v.length, out = new Float64Array(m), p = new Float64Array(m + 1);
+  for (let j = 0; j < m; ++j) p[j + 1] = p[j] + v[j];
+  let a = 0, b = 0;
+  for (let j = 0; j < m; ++j) {
+    while (s[a] < s[j] - half) ++a;
+    while (b < m && s[b] <= s[j] + half) ++b;
+    out[j] = (p[b] - p[a]) / (b - a);
+  }
+  return out;
+}
+
+/** Linear interpolation of v(x) at t (x increasing; clamped at the ends). */
+function interpolate(x: Float64Array, v: Float64Array, t: number): number {
+  const m = x.length;
+  if (t <= x[0]) return v[0];
+  if (t >= x[m - 1]) return v[m - 1];
+  let lo = 0, hi = m - 1;
+  while (hi - lo > 1) { const mid = (lo + hi) >> 1; if (x[mid] <= t) lo = mid; else hi = mid; }
+  return v[lo] + ((t - x[lo]) / (x[hi] - x[lo])) * (v[hi] - v[lo]);
 }
 
 /**
@@ -40,7 +67,7 @@ export interface Levels {
  */
 export function chooseLevels(
   trace: Trace, start: Start, fit: PassesResult, samples: Samples,
-  set: { readonly lambda?: number; readonly seed: number; readonly torsionBalance: number }, diagnostics: string[],
+  set: { readonly lambda?: number; readonly seed: number; readonly torsionBalance: number; readonly adaptive: boolean }, diagnostics: string[],
 ): Levels {
   const { basis, smoother, sel, table, u, w } = fit;
   const closed = start.closed;
@@ -88,7 +115,29 @@ export function chooseLevels(
     if (tauFactor !== 1) diagnostics.push(`torsion: smoothing level ${tauFactor.toPrecision(3)}x the curvature level (balancing rule: the largest level whose torsion stays within the noise of every less-smoothed one)`);
     if (b.atTop) diagnostics.push("torsion: the balancing rule reached the top of its scan (torsion nearly constant along the wire)");
   }
-  return { kappaFit, tauFit, tauFactor, planarWithinNoise, resolution, C, grid, gridU, gridS };
+  let kappaOut = kappaFit, kappaSmoother = smoother;
+  if (set.adaptive && set.lambda === undefined && !fit.sparse && !unknownNoise) {
+    const ad = adaptiveCurvature(smoother, kappaFit, C, grid, gridS, set.seed);
+    // The local level, smoothed over one resolution length, becomes a weight on each row of the
+    // difference penalty (a spatially varying penalty: Ruppert & Carroll 2000, Aust. N. Z. J. Stat.
+    // 42:205): one spline, smooth everywhere, stiffer where the curvature varies slowly.
+    const lf = runningMean(ad.logFactor, gridS, resolution / 2);
+    const rows = basis.periodic ? basis.K : basis.K - 4;
+    const weights = new Float64Array(rows);
+    const span = basis.nseg * basis.h;
+    for (let r = 0; r < rows; ++r) {
+      let p = basis.u0 + r * basis.h;
+      if (basis.periodic) p -= Math.floor((p - basis.u0) / span) * span;
+      weights[r] = Math.pow(10, interpolate(gridU, lf, p));
+    }
+    kappaSmoother = { ...smoother, P: differencePenalty(basis, weights) };
+    kappaOut = solveAt(kappaSmoother, kappaFit.lambda);
+    const f = Array.from(lf).sort((a, b) => a - b);
+    if (f[0] !== 0 || f[f.length - 1] !== 0) {
+      diagnostics.push(`curvature: spatially adaptive smoothing, from ${Math.pow(10, f[0]).toPrecision(2)}x to ${Math.pow(10, f[f.length - 1]).toPrecision(2)}x the discrepancy level along the wire (median ${Math.pow(10, f[f.length >> 1]).toPrecision(2)}x)`);
+    }
+  }
+  return { kappaFit: kappaOut, kappaSmoother, tauFit, tauFactor, planarWithinNoise, resolution, C, grid, gridU, gridS };
 }
 
 /** Total turning angle of the fitted curve, the integral of kappa ds (200-point midpoint rule). */

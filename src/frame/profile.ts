@@ -34,6 +34,11 @@ export interface ProfileOptions {
   readonly coordinateError?: number;
   /** Constant c of the torsion balancing rule (default 1; see `balancedLevel`). */
   readonly torsionBalance?: number;
+  /**
+   * Spatially adaptive curvature smoothing (default false: the discrepancy level everywhere). Opt-in
+   * and experimental: better on localised features, worse on slowly varying wires (see adaptiveLevel.ts).
+   */
+  readonly adaptive?: boolean;
 }
 
 /** Validated options with their defaults. */
@@ -47,6 +52,7 @@ interface Settings {
   readonly coordinateError?: number;
   readonly torsionBalance: number;
   readonly keepSamples: boolean;
+  readonly adaptive: boolean;
 }
 
 /** Stage 0: options checked, with defaults (one line per bad option). */
@@ -63,7 +69,7 @@ function settingsOf(options: ProfileOptions, n: number): Settings {
   // Dense traces converge in fewer foot-point passes (measured at 1e5 points: the same kappa error
   // to 1% with 2 passes as with 3).
   const s: { -readonly [K in keyof Settings]: Settings[K] } = {
-    replicates: R, seed, passes: options.passes ?? (n > 20_000 ? 2 : 3), torsionBalance: options.torsionBalance ?? 1, keepSamples: options.keepSamples ?? false,
+    replicates: R, seed, passes: options.passes ?? (n > 20_000 ? 2 : 3), torsionBalance: options.torsionBalance ?? 1, keepSamples: options.keepSamples ?? false, adaptive: options.adaptive ?? false,
   };
   if (options.step !== undefined) s.step = options.step;
   if (options.segments !== undefined) s.segments = options.segments;

@@ -8,7 +8,7 @@ import { describe, expect, it } from "vitest";
 import { fitProfile } from "../../src/frame/profile.js";
 import { grossOutliers, differenceNoise, referenceLength } from "../../src/frame/robustStart.js";
 import { FLAG_END, FLAG_TORSION_UNDEFINED, type Profile, type Trace } from "../../src/types.js";
-import { circleCurve, helixCurve, sampleCurve, sampleCurveUneven } from "../support/curves.js";
+import { bumpCurve, circleCurve, helixCurve, sampleCurve, sampleCurveUneven } from "../support/curves.js";
 import { mulberry32, normalStream } from "../support/rng.js";
 
 const trace = (xyz: Float64Array, extra: Partial<Trace> = {}): Trace => ({
@@ -174,5 +174,31 @@ describe("unit independence of sparse traces", () => {
     const b = fitProfile(trace(v.slice(), { source: { file: "h.xyz", unit: "m" } }), { bootstrap: 0 });
     for (let j = 0; j < a.n; ++j) expect((a.kappa[j] * a.length) / (b.kappa[j] * b.length)).toBeCloseTo(1, 6); // measured 4e-8: rounding of the unit conversion
     expect(a.diagnostics.some((d) => d.startsWith("sparse trace"))).toBe(true);
+  });
+});
+
+describe("spatially adaptive curvature (opt-in)", () => {
+  it("weights the difference penalty row by row: unit weights give the plain penalty", async () => {
+    const { differencePenalty } = await import("../../src/frame/design.js");
+    const { makeBasis } = await import("../../src/frame/bspline.js");
+    const b = makeBasis(0, 1, 20, false);
+    const plain = differencePenalty(b), ones = differencePenalty(b, new Float64Array(b.K - 4).fill(1));
+    expect(Array.from(ones.data)).toEqual(Array.from(plain.data));
+    const doubled = differencePenalty(b, new Float64Array(b.K - 4).fill(2));
+    expect(Array.from(doubled.data)).toEqual(Array.from(plain.data, (v) => 2 * v));
+  });
+
+  it("resolves a curvature bump better than the discrepancy level (peak 1.2: second derivative of the Gaussian, common practice)", () => {
+    const bump = bumpCurve(10, 0.6, 1);
+    let better = 0;
+    for (const seed of [1, 2, 3]) {
+      const { xyz } = sampleCurve(bump, 1000, 0.002 * bump.radius, seed);
+      const t = { xyz, dims: 3 as const, source: { file: "b", unit: "m" as const }, diagnostics: [], closed: false };
+      const a = fitProfile(t, { bootstrap: 0 }), b = fitProfile(t, { bootstrap: 0, adaptive: true });
+      const peak = (p: Profile) => Math.max(...p.kappa);
+      if (Math.abs(peak(b) - 1.2) < Math.abs(peak(a) - 1.2)) ++better;
+      expect(b.diagnostics.some((d) => d.startsWith("curvature: spatially adaptive smoothing"))).toBe(true);
+    }
+    expect(better).toBeGreaterThanOrEqual(2);
   });
 });
