@@ -20,14 +20,15 @@ export interface AdaptiveCurvature {
   readonly kappa: Float64Array;
   /** Noise standard deviation of that curvature (from the probes of the chosen level). */
   readonly sd: Float64Array;
-  /** Curvature of the level two quarter-decades below the chosen one (for the bias step of the band). */
+  /** Curvature of the level one step below the chosen one. */
   readonly kappaLess: Float64Array;
   /** log10 of the chosen level over the pilot level, per grid point. */
   readonly logFactor: Float64Array;
 }
 
 /**
- * On levels lambda_q = pilot x 10^((q - down) / 4), q = 0..down + up, the curvature kappa_q and its
+ * On levels lambda_q = pilot x 10^((q - down) step), q = 0..down + up (step 1/4 decade, two decades
+ * either way by default), the curvature kappa_q and its
  * noise SD_q (from `probes` common-random-number draws) at every grid point. At grid point j, level
  * k is accepted when for every less-smoothed level i < k the mean of (kappa_k - kappa_i)^2 over a
  * window of one resolution length of level k around j stays within c^2 times the mean of SD_i^2 over
@@ -38,9 +39,10 @@ export interface AdaptiveCurvature {
  */
 export function adaptiveCurvature(
   sm: Smoother, pilot: SmoothFit, C: Skyline, grid: GridBasis, gridS: Float64Array, seed: number,
-  options: { down?: number; up?: number; probes?: number; c?: number } = {},
+  options: { down?: number; up?: number; probes?: number; c?: number; step?: number } = {},
 ): AdaptiveCurvature {
-  const down = options.down ?? 8, up = options.up ?? 8, probes = options.probes ?? 16, c = options.c ?? 1;
+  const step = options.step ?? 0.25;
+  const down = options.down ?? Math.round(2 / step), up = options.up ?? Math.round(2 / step), probes = options.probes ?? 16, c = options.c ?? 1;
   const K = sm.basis.K, m = grid.m, L = down + up + 1;
   const rho = sm.normal.wSum / (sm.basis.nseg * sm.basis.h);
   const d12 = new Float64Array(12), kt = new Float64Array(5);
@@ -55,7 +57,7 @@ export function adaptiveCurvature(
   const dc = new Float64Array(3 * K);
   const kap: Float64Array[] = [], var2: Float64Array[] = [], half: number[] = [];
   for (let q = 0; q < L; ++q) {
-    const fit = q === down ? pilot : solveAt(sm, pilot.lambda * Math.pow(10, (q - down) / 4));
+    const fit = q === down ? pilot : solveAt(sm, pilot.lambda * Math.pow(10, (q - down) * step));
     const kq = new Float64Array(m), vq = new Float64Array(m);
     for (let j = 0; j < m; ++j) kq[j] = kappaTauAt(grid, fit.coef, null, j, d12, kt)[0];
     for (const xi of xis) {
@@ -116,8 +118,8 @@ export function adaptiveCurvature(
     const q = level[j];
     kappa[j] = kap[q][j];
     sd[j] = Math.sqrt(var2[q][j]);
-    kappaLess[j] = kap[Math.max(0, q - 2)][j];
-    logFactor[j] = (q - down) / 4;
+    kappaLess[j] = kap[Math.max(0, q - 1)][j];
+    logFactor[j] = (q - down) * step;
   }
   return { kappa, sd, kappaLess, logFactor };
 }
