@@ -6,9 +6,10 @@
  * where it changes fast (a bump, a knot's tight turns, a bend) it smooths less.
  *
  * Status: opt-in (`ProfileOptions.adaptive`). Measured with bench/families.ts (N = 1000, 0.2% and 1%
- * noise): it beats the best single global level on the bump and the sharp bend (0.82-0.99x) but the
- * pointwise tests refuse levels at random on slowly varying wires (helix, conical helix 2-7x worse
- * than the discrepancy level), so the discrepancy level stays the default.
+ * noise): it beats the best single global level on the bump and the sharp bend (0.82-0.99x), but on
+ * slowly varying coils (helix, conical helix) it is 2-8x worse than the discrepancy level for every
+ * window, step (1/4 to 1 decade) and threshold (c = 1 to 2) tried, so the discrepancy level stays
+ * the default.
  */
 import { drawCoefPerturbation, kappaTauAt, normalGenerator, type GridBasis } from "./bootstrap.js";
 import type { Skyline } from "./skyline.js";

@@ -7,7 +7,8 @@
 import type { Trace } from "../types.js";
 import { makeBasis, type SplineBasis } from "./bspline.js";
 import { arcAt, arcTable, evalCurve, kappaTau, type ArcTable } from "./curve.js";
-import { checkPass, describeLength } from "./fitGuard.js";
+import { checkPass, describeLength, LENGTH_RATIO_LIMIT } from "./fitGuard.js";
+import { InputError } from "../errors.js";
 import { medianOf } from "./robustStart.js";
 import { lambdaForWavelength, makeSmoother, selectSmoothing, wavelengthForLambda, type Selection, type Smoother } from "./smoother.js";
 import type { Start } from "./profile.js";
@@ -93,10 +94,19 @@ export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnos
   for (let pass = 0; pass <= set.passes; ++pass) {
     sm = makeSmoother(basis, u, y, w);
     const rho = sm.normal.wSum / (basis.nseg * basis.h);
-    nearInterpolation = lambdaForWavelength(basis.h, rho, basis.h);
+    // Near-interpolation: the level whose half-power wavelength is one sample spacing (shorter waves
+    // are aliased by the sampling anyway; a shorter one lets the curve loop between the points).
+    nearInterpolation = lambdaForWavelength(Math.max(basis.h, (basis.nseg * basis.h) / n), rho, basis.h);
     const hint = sel && sel.basisSegments === nseg && sel.rule !== "fixed" ? Math.log10(sel.lambdaGcv) : undefined;
     sel = selectLevel(sm, normalDims, { sparse, nearInterpolation, start, ...(set.lambda !== undefined ? { fixedLambda: set.lambda } : {}), ...(sigmaKnown !== undefined ? { sigmaKnown } : {}), ...(hint !== undefined ? { hint } : {}) });
     if (pass === set.passes) break;
+    if (sparse) {
+      // Sparse traces keep the chord-length parameter of their points: with a few points per turn a
+      // foot point is ill-defined (the near-interpolating curve may pass close to a point twice), and
+      // chord length is the standard parameter for interpolation (Ahlberg, Nilson & Walsh 1967, from memory).
+      basis = makeBasis(0, span, nseg, closed);
+      continue;
+    }
     // Foot-point projection: Newton on |r(u) - p|^2, steps limited to one knot interval.
     const coef = sel.fit.coef;
     const checkSparse = pass === 0 && !sparse && n <= 2000 && set.segments === undefined;
@@ -148,6 +158,9 @@ export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnos
       if (turn > SPARSE_TURN) {
         sparse = true;
         nseg = Math.min(MAX_SEGMENTS, 4 * n);
+        u.set(start.u);
+        span = start.span;
+        w.fill(1);
         diagnostics.push(`sparse trace: the curve turns by ${turn.toFixed(2)} rad between samples (median); fitted with ${nseg} knot intervals, near-interpolating the points${sigmaKnown === undefined ? " (give the coordinate error to smooth them)" : ""}`);
       }
     }
@@ -164,6 +177,12 @@ export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnos
   if (!sel || !sm) throw new Error("unreachable: no pass ran");
   const coef = sel.fit.coef;
   const table = arcTable(basis, coef);
+  if (sparse) {
+    const ratio = table.length / start.referenceLength;
+    if (!(ratio < LENGTH_RATIO_LIMIT && ratio > 1 / LENGTH_RATIO_LIMIT)) {
+      throw new InputError(file, null, "points", `the fit of this sparse trace diverged: its length is ${ratio.toPrecision(2)}x the polyline through the points (${say(start.referenceLength)}); give the coordinate error (--coordinate-error) to smooth the points`);
+    }
+  }
   if (sel.rule === "gcv-x3") diagnostics.push("smoothing: the discrepancy level could not be bracketed (noise-free data?); used 3x the GCV level");
   return { basis, smoother: sm, sel, coef, table, u, w, sparse, nearInterpolation };
 }
