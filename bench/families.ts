@@ -9,6 +9,8 @@
  * best single global level found with the truth (quarter-decade scan, same knots: the "oracle"), their
  * ratio, and the 95% band coverage of the truth. Prints every case, then the fraction within the
  * targets (1.2x kappa, 1.5x tau), the worst case and the mean coverage. Invented synthetic curves, seeded.
+ * Environment: TORSION_C=<c> sets the torsion balancing constant, ADAPTIVE=1 turns on the opt-in
+ * adaptive curvature.
  */
 import { fitProfile, type ProfileOptions } from "../src/frame/profile.js";
 import { FLAG_END, FLAG_TORSION_UNDEFINED } from "../src/types.js";
@@ -63,7 +65,7 @@ for (const curve of families) {
         const { xyz } = sampleCurveUneven(curve, N, noise * curve.radius, 100 * seed + 7);
         const t0 = performance.now();
         let auto: Score;
-        try { auto = score(curve, xyz, truth, { bootstrap: 100, seed }); } catch (e) { console.log(`${curve.name} N=${N} noise=${noise} seed=${seed}: REFUSED ${(e as Error).message}`); continue; }
+        try { auto = score(curve, xyz, truth, { bootstrap: 100, seed, ...(process.env.TORSION_C ? { torsionBalance: Number(process.env.TORSION_C) } : {}), ...(process.env.ADAPTIVE === "1" ? { adaptive: true } : {}) }); } catch (e) { console.log(`${curve.name} N=${N} noise=${noise} seed=${seed}: REFUSED ${(e as Error).message}`); continue; }
         const ms = performance.now() - t0;
         let bestK = Infinity, bestT = Infinity, eK = 0, eT = 0;
         for (let e = -10; e <= 16; ++e) {
