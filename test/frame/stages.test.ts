@@ -1,0 +1,80 @@
+/**
+ * The geometry core's stages alone: selection medians against a sort (fast-check property, fixed
+ * seed), band offsets, the torsion balancing rule, and their edge cases. References: the median of a
+ * sorted sample (common practice); helix torsion c/(R^2+c^2) (https://en.wikipedia.org/wiki/Helix).
+ */
+import fc from "fast-check";
+import { describe, expect, it } from "vitest";
+import { bandOffsets } from "../../src/frame/bands.js";
+import { fitProfile } from "../../src/frame/profile.js";
+import { differenceNoise, medianInPlace, medianOf, selectInPlace, toCanonical } from "../../src/frame/robustStart.js";
+import { FLAG_END } from "../../src/types.js";
+import { helixCurve, sampleCurve } from "../support/curves.js";
+
+describe("selection medians", () => {
+  it("equal the middle of a sorted copy (property, 200 runs, fixed seed)", () => {
+    fc.assert(fc.property(fc.array(fc.double({ noNaN: true, min: -1e6, max: 1e6 }), { minLength: 1, maxLength: 60 }), (xs) => {
+      const s = [...xs].sort((a, b) => a - b), n = s.length;
+      const want = n % 2 ? s[(n - 1) >> 1] : 0.5 * (s[n / 2 - 1] + s[n / 2]);
+      expect(medianOf(Float64Array.from(xs))).toBe(want);
+      const k = Math.floor(n / 3);
+      expect(selectInPlace(Float64Array.from(xs), n, k)).toBe(s[k]);
+    }), { seed: 42, numRuns: 200 });
+  });
+
+  it("handle the empty and one-value cases", () => {
+    expect(medianInPlace(new Float64Array(0))).toBeNaN();
+    expect(medianInPlace(Float64Array.of(3))).toBe(3);
+  });
+});
+
+describe("band offsets", () => {
+  it("contain 0 (the estimate) whatever the shift, and widen on the shift's side by a third", () => {
+    const sorted = Float64Array.from({ length: 101 }, (_, i) => i / 100 - 0.5); // uniform -0.5..0.5, median 0
+    const [lo, hi] = bandOffsets(sorted, 0);
+    expect(lo).toBeCloseTo(-0.475, 12); // R-7 quantile at 2.5% of 101 equally spaced values
+    expect(hi).toBeCloseTo(0.475, 12);
+    const [lo2, hi2] = bandOffsets(sorted, 0.3);
+    expect(hi2).toBeCloseTo(0.475 + 0.3 + 0.1, 12);
+    expect(lo2).toBeCloseTo(-0.475 + 0.3, 12);
+    const [lo3, hi3] = bandOffsets(sorted, 3);
+    expect(lo3).toBe(0); // stretched to hold the estimate
+    expect(hi3).toBeGreaterThan(3);
+    expect(bandOffsets(sorted, NaN)).toEqual([lo, hi]);
+  });
+});
+
+describe("difference-based noise", () => {
+  it("is NaN with fewer than 7 points and 0 for exact points on a line", () => {
+    expect(differenceNoise(new Float64Array(18), new Float64Array(6), 2)).toBeNaN();
+    const y = new Float64Array(60), u = new Float64Array(20);
+    for (let i = 0; i < 20; ++i) { y[3 * i] = i; u[i] = i; }
+    expect(differenceNoise(y, u, 2)).toBe(0);
+  });
+
+  it("does not change when the points are moved rigidly or rescaled (canonical frame)", () => {
+    const { xyz } = sampleCurve(helixCurve(1, 0.4, 2), 200, 0.01, 3);
+    const a = toCanonical(xyz, false)!, b = toCanonical(xyz.map((v) => 7 * v + 3), false)!;
+    for (let k = 0; k < a.y.length; ++k) expect(b.y[k]).toBeCloseTo(a.y[k], 12);
+  });
+});
+
+describe("torsion balancing rule", () => {
+  it("smooths a helix's constant torsion well beyond the curvature level, and recovers it within 3%", () => {
+    const R = 1, c = 0.4, t0 = c / (R * R + c * c);
+    const { xyz } = sampleCurve(helixCurve(R, c, 4), 800, 0.01, 5);
+    const p = fitProfile({ xyz, dims: 3, source: { file: "h", unit: "m" }, diagnostics: [] }, { bootstrap: 0 });
+    expect(p.lambdaTorsion / p.lambda).toBeGreaterThanOrEqual(10); // measured 10^1.5
+    const ts = Array.from(p.tau).filter((_, j) => !(p.flags[j] & FLAG_END));
+    const mean = ts.reduce((a, v) => a + v, 0) / ts.length;
+    expect(Math.abs(mean / t0 - 1)).toBeLessThan(0.03);
+  });
+
+  it("keeps the curvature level for a planar wire (torsion 0 with its band)", () => {
+    const xyz = new Float64Array(3 * 300);
+    for (let i = 0; i < 300; ++i) { const a = (i / 299) * 3; xyz.set([Math.cos(a), Math.sin(a), 0], 3 * i); }
+    const p = fitProfile({ xyz, dims: 3, source: { file: "arc", unit: "m" }, diagnostics: [] }, { bootstrap: 40 });
+    expect(p.lambdaTorsion).toBe(p.lambda);
+    expect(p.diagnostics).toContain("planar within the noise (out-of-plane spread not above the noise): torsion reported as 0 with its noise band");
+  });
+});
