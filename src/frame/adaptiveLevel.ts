@@ -11,7 +11,7 @@
  * window, step (1/4 to 1 decade) and threshold (c = 1 to 2) tried, so the discrepancy level stays
  * the default.
  */
-import { drawCoefPerturbation, kappaTauAt, normalGenerator, type GridBasis } from "./bootstrap.js";
+import { drawCoefPerturbation, kappaTauAt, noiseProbes, type GridBasis } from "./bootstrap.js";
 import type { Skyline } from "./skyline.js";
 import { solveAt, wavelengthForLambda, type SmoothFit, type Smoother } from "./smoother.js";
 
@@ -47,15 +47,7 @@ export function adaptiveCurvature(
   const K = sm.basis.K, m = grid.m, L = down + up + 1;
   const rho = sm.normal.wSum / (sm.basis.nseg * sm.basis.h);
   const d12 = new Float64Array(12), kt = new Float64Array(5);
-  const rnd = normalGenerator(seed ^ 0x2c1b3c6d);
-  const xis: Float64Array[] = [];
-  for (let p = 0; p < probes; ++p) {
-    const xi = new Float64Array(3 * K);
-    for (let k = 0; k < 3 * K; ++k) xi[k] = rnd();
-    xis.push(xi);
-  }
-  const scratch: { db: Float64Array; rhs: Float64Array; sol: Float64Array; sqrtD?: Float64Array } = { db: new Float64Array(3 * K), rhs: new Float64Array(K), sol: new Float64Array(K) };
-  const dc = new Float64Array(3 * K);
+  const { xis, scratch, dc } = noiseProbes(K, probes, seed ^ 0x2c1b3c6d);
   const kap: Float64Array[] = [], var2: Float64Array[] = [], half: number[] = [];
   for (let q = 0; q < L; ++q) {
     const fit = q === down ? pilot : solveAt(sm, pilot.lambda * Math.pow(10, (q - down) * step));

@@ -118,6 +118,24 @@ export function drawCoefPerturbation(
   return dcOut;
 }
 
+/** Scratch arrays of {@link drawCoefPerturbation}. */
+export interface DrawScratch { db: Float64Array; rhs: Float64Array; sol: Float64Array; sqrtD?: Float64Array }
+
+/**
+ * `probes` seeded standard-normal vectors of length 3K (common random numbers: the same draws for
+ * every smoothing level compared), with the scratch arrays and a perturbation buffer for drawing.
+ */
+export function noiseProbes(K: number, probes: number, seed: number): { xis: Float64Array[]; scratch: DrawScratch; dc: Float64Array } {
+  const rnd = normalGenerator(seed);
+  const xis: Float64Array[] = [];
+  for (let p = 0; p < probes; ++p) {
+    const xi = new Float64Array(3 * K);
+    for (let k = 0; k < 3 * K; ++k) xi[k] = rnd();
+    xis.push(xi);
+  }
+  return { xis, scratch: { db: new Float64Array(3 * K), rhs: new Float64Array(K), sol: new Float64Array(K) }, dc: new Float64Array(3 * K) };
+}
+
 /** Basis values and derivatives tabulated at fixed parameters, for repeated evaluation. */
 export interface GridBasis {
   readonly basis: SplineBasis;

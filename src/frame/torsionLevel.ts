@@ -1,4 +1,4 @@
-import { drawCoefPerturbation, kappaTauAt, normalGenerator, type GridBasis } from "./bootstrap.js";
+import { drawCoefPerturbation, kappaTauAt, noiseProbes, type GridBasis } from "./bootstrap.js";
 import type { Skyline } from "./skyline.js";
 import { solveAt, type SmoothFit, type Smoother } from "./smoother.js";
 
@@ -34,15 +34,7 @@ export function balancedLevel(
   const quantity = options.quantity ?? 1, probes = options.probes ?? 16, maxDecades = options.maxDecades ?? 5, c = options.c ?? 1;
   const K = sm.basis.K, m = grid.m;
   const d12 = new Float64Array(12), kt = new Float64Array(5);
-  const rnd = normalGenerator(seed ^ 0x5bd1e995);
-  const xis: Float64Array[] = [];
-  for (let p = 0; p < probes; ++p) {
-    const xi = new Float64Array(3 * K);
-    for (let k = 0; k < 3 * K; ++k) xi[k] = rnd();
-    xis.push(xi);
-  }
-  const scratch: { db: Float64Array; rhs: Float64Array; sol: Float64Array; sqrtD?: Float64Array } = { db: new Float64Array(3 * K), rhs: new Float64Array(K), sol: new Float64Array(K) };
-  const dc = new Float64Array(3 * K);
+  const { xis, scratch, dc } = noiseProbes(K, probes, seed ^ 0x5bd1e995);
   // The scored set: interior points where the pilot's curvature vector is resolved.
   const kvec = new Float64Array(3 * m), kvar = new Float64Array(m), q0 = new Float64Array(m);
   for (let j = 0; j < m; ++j) {
