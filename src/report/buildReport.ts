@@ -5,7 +5,7 @@ import { brief } from "../export/brief.js";
 import type { ModelDocument, SegmentEntry } from "../export/modelDocument.js";
 import type { ResampledWire } from "../export/resampleWire.js";
 import { reducedSystem } from "../physics/reducedSystem.js";
-import { PER_METRE } from "../types.js";
+import { FLAG_END, PER_METRE } from "../types.js";
 import { curvatureColor, torsionColor } from "./colorScales.js";
 import { escapeHtml, inlineScript, scriptJson } from "./escapeHtml.js";
 import { KIND_STYLE } from "./kindStyle.js";
@@ -30,6 +30,8 @@ export interface ReportInput {
 const MAX_VIEW_POINTS = 2500;
 /** Most pinning sites listed in the table. */
 const MAX_SITE_ROWS = 12;
+/** Most input points handed to the 3D view (shown on demand). */
+const MAX_INPUT_POINTS = 6000;
 
 /** State category code of a stretch (colorScales STATE_CATEGORIES). */
 export function stretchCategory(g: SegmentEntry): number {
@@ -164,6 +166,7 @@ ${doc.pinning.length > 0 ? `<table><thead><tr><th class="num">rank</th><th class
   const count = Math.ceil(chain.n / stride);
   const off = doc.outputs.mesh.offset;
   const pos = new Float32Array(3 * count), kap = new Float32Array(count), tau = new Float32Array(count), state = new Uint8Array(count);
+  const interiorKappa: number[] = [], interiorTau: number[] = [];
   const cats = segs.map(stretchCategory);
   let si = 0;
   for (let c = 0; c < count; ++c) {
@@ -171,21 +174,46 @@ ${doc.pinning.length > 0 ? `<table><thead><tr><th class="num">rank</th><th class
     for (let d = 0; d < 3; ++d) pos[3 * c + d] = chain.xyz[3 * i + d] * k - off[d];
     kap[c] = chain.kappa[i] / k;
     tau[c] = chain.tau[i] / k;
+    if ((chain.flags[i] & FLAG_END) === 0) {
+      interiorKappa.push(kap[c]);
+      if (Number.isFinite(tau[c])) interiorTau.push(tau[c]);
+    }
     const s = chain.s[i] * k;
     while (si + 1 < segs.length && s >= segs[si].s1) ++si;
     state[c] = cats[si] ?? 0;
   }
-  // curvature colours span the 1st to 99th percentile (a near-constant curvature would otherwise be one colour)
-  const kappaMax = quantile(kap, 0.99) ?? 0;
-  const kappaMinQ = quantile(kap, 0.01) ?? 0;
-  const tauMaxAbs = quantile(tau, 0.99, Math.abs) ?? 0;
+  // colour ranges from the interior samples (the ends, where the fit's bias is larger, would dominate them)
+  const useInterior = interiorKappa.length >= Math.min(20, count);
+  const kSrc = useInterior ? interiorKappa : Array.from(kap);
+  const tSrc = useInterior ? interiorTau : Array.from(tau).filter(Number.isFinite);
+  const kappaMax = quantile(kSrc, 0.99) ?? 0;
+  const kappaMinQ = quantile(kSrc, 0.01) ?? 0;
+  const tauMaxAbs = quantile(tSrc, 0.99, Math.abs) ?? 0;
+  const rangeNote = useInterior && !chain.closed ? "the scale spans the 1st to 99th percentile of the interior samples (ends excluded)" : "the scale spans the 1st to 99th percentile";
   const radius = doc.outputs.mesh.radius;
+  // a position on the wire at arc length s (in unit), by linear interpolation along the chain
+  const chainS = Float64Array.from(chain.s, (v) => v * k);
+  const at = (s: number, out: number[]): void => {
+    let lo = 0, hi = chain.n - 1;
+    if (!(s > chainS[0])) hi = 0;
+    while (hi - lo > 1) { const mid = (lo + hi) >> 1; if (chainS[mid] <= s) lo = mid; else hi = mid; }
+    const t = hi > lo && chainS[hi] > chainS[lo] ? Math.min(1, Math.max(0, (s - chainS[lo]) / (chainS[hi] - chainS[lo]))) : 0;
+    for (let d = 0; d < 3; ++d) out.push((chain.xyz[3 * lo + d] + t * (chain.xyz[3 * hi + d] - chain.xyz[3 * lo + d])) * k - off[d]);
+  };
+  const cutXyz: number[] = [];
+  segs.forEach((g, idx) => { if (idx > 0 || (chain.closed && segs.length > 1)) at(g.s0, cutXyz); });
+  const pinXyz: number[] = [];
+  for (const site of doc.pinning) at(site.s, pinXyz);
+  const tr = a.trace.xyz, trN = tr.length / 3, trStride = Math.max(1, Math.ceil(trN / MAX_INPUT_POINTS));
+  const inputXyz = new Float32Array(3 * Math.ceil(trN / trStride));
+  for (let c = 0, i = 0; i < trN; i += trStride, ++c) for (let d = 0; d < 3; ++d) inputXyz[3 * c + d] = tr[3 * i + d] * k - off[d];
   const viewData = {
     unit, closed: chain.closed, radius, points: b64(pos), kappa: b64(kap), tau: b64(tau), state: b64(state),
     kappaMin: kappaMinQ < kappaMax ? kappaMinQ : 0, kappaMax: kappaMax > 0 ? kappaMax : 1, tauMaxAbs: tauMaxAbs > 0 ? tauMaxAbs : 1,
+    cuts: b64(new Float32Array(cutXyz)), pins: b64(new Float32Array(pinXyz)), pinRanks: doc.pinning.map((q) => q.rank), input: b64(inputXyz),
   };
   const legends = `<div class="legends" id="view3d-legends" data-mode="kappa">
-<div data-for="kappa">${rampLegend((v) => curvatureColor(v, viewData.kappaMin, viewData.kappaMax), viewData.kappaMin, viewData.kappaMax, `curvature \u03ba (1/${unit}); the scale spans the 1st to 99th percentile`)}</div>
+<div data-for="kappa">${rampLegend((v) => curvatureColor(v, viewData.kappaMin, viewData.kappaMax), viewData.kappaMin, viewData.kappaMax, `curvature \u03ba (1/${unit}); ${rangeNote}`)}</div>
 <div data-for="tau">${rampLegend((v) => torsionColor(v, viewData.tauMaxAbs), -viewData.tauMaxAbs, viewData.tauMaxAbs, `torsion \u03c4 (1/${unit}); left-handed < 0 < right-handed`, "undefined")}</div>
 <div data-for="state">${categoryLegend(hasModel ? [...new Set(cats)].sort() : [0])}</div>
 </div>`;
@@ -238,10 +266,19 @@ ${tauPlot}
 <button type="button" data-mode="kappa" aria-pressed="true">curvature</button>
 <button type="button" data-mode="tau" aria-pressed="false">torsion</button>
 <button type="button" data-mode="state" aria-pressed="false">model state</button>
-<span class="small">drag to turn, wheel to zoom</span></div>
-<div class="viewer"><canvas id="view3d-canvas" width="760" height="440" aria-label="3D view of the fitted wire"></canvas><div class="message" id="view3d-message" hidden></div></div>
+<button type="button" id="view3d-points" aria-pressed="false">input points</button>
+<span class="small">drag to turn, right-drag to pan, wheel to zoom, double-click to reset</span></div>
+<div class="viewer"><canvas id="view3d-canvas" width="760" height="440" aria-label="3D view of the fitted wire"></canvas>
+<svg class="overlay" id="view3d-overlay" viewBox="0 0 760 440" preserveAspectRatio="none" aria-hidden="true" xmlns="http://www.w3.org/2000/svg">
+<line id="view3d-axis-x" x1="46" y1="394" x2="76" y2="394" stroke="#b5302c"/><line id="view3d-axis-y" x1="46" y1="394" x2="46" y2="364" stroke="#3d8b57"/><line id="view3d-axis-z" x1="46" y1="394" x2="46" y2="394" stroke="#1f3b63"/>
+<text id="view3d-label-x" x="80" y="398">x</text><text id="view3d-label-y" x="43" y="358">y</text><text id="view3d-label-z" x="43" y="398">z</text>
+<line id="view3d-scale-bar" x1="590" y1="420" x2="740" y2="420" stroke="#1d232b"/><text id="view3d-scale-text" x="665" y="412" text-anchor="middle"></text>
+</svg>
+<div class="message" id="view3d-message" hidden></div></div>
 ${legends}
-<p class="small">The fitted centre line drawn as a tube of radius ${num(radius, unit)} (${escapeHtml(doc.outputs.mesh.radiusSource)}), centred at (${off.map((v) => brief(v)).join(", ")}) ${unit}.</p>
+<p class="small">The fitted centre line drawn as a tube of radius ${num(radius, unit)} (${escapeHtml(doc.outputs.mesh.radiusSource)}), centred at (${off.map((v) => brief(v)).join(", ")}) ${unit}.
+Grey beads: stretch boundaries; red beads: pinning sites. Triad: the lab x, y, z axes; scale bar: length at the depth of the view centre.
+The tube is drawn no thinner than 0.6% and no thicker than 4% of the wire's size, so it stays visible.</p>
 </section>
 <section id="phase"><h2>Phase map</h2>${phaseSection}</section>
 <section id="pinning"><h2>Pinning landscape</h2>${pinningSection}</section>

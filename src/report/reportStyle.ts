@@ -47,7 +47,12 @@ svg .empty { fill: var(--muted); font-size: 13px; }
 .swatch { display: inline-block; width: 14px; height: 11px; border: 1px solid #777; margin-right: 5px; vertical-align: -1px; }
 .viewer { position: relative; border: 1px solid var(--rule); background: #f4f4f1; }
 .viewer canvas { display: block; width: 100%; height: auto; aspect-ratio: 760 / 440; }
-.viewer .message { position: absolute; inset: 0; display: flex; align-items: center; justify-content: center; color: var(--muted); padding: 20px; text-align: center; }
+.viewer .message { position: absolute; inset: 0; display: flex; align-items: center; justify-content: center; color: var(--muted); padding: 20px; text-align: center; background: #f4f4f1; }
+.viewer .message[hidden] { display: none; }
+.viewer canvas { cursor: grab; touch-action: none; }
+.viewer svg.overlay { position: absolute; inset: 0; width: 100%; height: 100%; pointer-events: none; font: 11px "DejaVu Sans", system-ui, sans-serif; }
+.viewer svg.overlay line { stroke-width: 2; }
+.viewer svg.overlay text { fill: #1d232b; }
 .controls { margin: 6px 0; display: flex; gap: 6px; align-items: center; flex-wrap: wrap; font-size: 13px; }
 .controls button { font: inherit; padding: 3px 10px; border: 1px solid #8a919b; background: #fff; border-radius: 3px; cursor: pointer; }
 .controls button[aria-pressed="true"] { background: var(--accent); color: #fff; border-color: var(--accent); }

@@ -91,6 +91,89 @@ describe.skipIf(!hasChromium)("report.html in headless Chromium", () => {
     expect(wire).toBeLessThan(0.9); // not a canvas filled with one colour
   });
 
+  /** PNG screenshot of the 3D canvas. */
+  const canvasShot = async (): Promise<Buffer> => page.locator("#view3d-canvas").screenshot();
+  /** Fraction of pixels that differ between two same-size PNG screenshots (decoded in the page). */
+  async function changedFraction(a: Buffer, b: Buffer): Promise<number> {
+    return page.evaluate(async ([pa, pb]) => {
+      type Img = { src: string; width: number; height: number; decode(): Promise<void> };
+      type Ctx = { drawImage(i: Img, x: number, y: number): void; getImageData(x: number, y: number, w: number, h: number): { data: Uint8ClampedArray } };
+      type Canvas = { width: number; height: number; getContext(kind: "2d"): Ctx | null };
+      const w = globalThis as unknown as { Image: new () => Img; document: { createElement(tag: "canvas"): Canvas } };
+      const pixels = async (b64: string): Promise<Uint8ClampedArray> => {
+        const img = new w.Image();
+        img.src = `data:image/png;base64,${b64}`;
+        await img.decode();
+        const c = w.document.createElement("canvas");
+        c.width = img.width; c.height = img.height;
+        const g = c.getContext("2d")!;
+        g.drawImage(img, 0, 0);
+        return g.getImageData(0, 0, c.width, c.height).data;
+      };
+      const x = await pixels(pa), y = await pixels(pb);
+      if (x.length !== y.length) return 1;
+      let diff = 0;
+      for (let i = 0; i < x.length; i += 4) if (Math.abs(x[i] - y[i]) + Math.abs(x[i + 1] - y[i + 1]) + Math.abs(x[i + 2] - y[i + 2]) > 30) diff++;
+      return diff / (x.length / 4);
+    }, [a.toString("base64"), b.toString("base64")] as const);
+  }
+
+  it("has nothing covering the canvas: the hidden message box takes no space", async () => {
+    expect(await page.locator("#view3d-message").isVisible()).toBe(false);
+    const box = (await page.locator("#view3d-canvas").boundingBox())!;
+    const hit = await page.evaluate(([x, y]) => {
+      const d = (globalThis as unknown as { document: { elementFromPoint(x: number, y: number): { id: string } | null } }).document;
+      return d.elementFromPoint(x, y)?.id ?? null;
+    }, [box.x + box.width / 2, box.y + box.height / 2] as const);
+    expect(hit).toBe("view3d-canvas");
+  });
+
+  it("turns on drag, zooms on the wheel, resets on double-click; the scale bar follows the zoom", async () => {
+    const box = (await page.locator("#view3d-canvas").boundingBox())!;
+    const cx = box.x + box.width / 2, cy = box.y + box.height / 2;
+    await page.locator("#view3d-canvas").scrollIntoViewIfNeeded();
+    const before = await canvasShot();
+    const scaleBefore = await page.textContent("#view3d-scale-text");
+    expect(scaleBefore).toMatch(/^\d[\d.e-]* nm$/);
+    const pixelsPerUnit = async (): Promise<number> => {
+      const x1 = Number(await page.getAttribute("#view3d-scale-bar", "x1")), x2 = Number(await page.getAttribute("#view3d-scale-bar", "x2"));
+      return (x2 - x1) / Number.parseFloat((await page.textContent("#view3d-scale-text"))!);
+    };
+    const perUnitBefore = await pixelsPerUnit();
+    await page.mouse.move(cx, cy);
+    await page.mouse.down();
+    for (let i = 1; i <= 10; ++i) await page.mouse.move(cx + 16 * i, cy + 6 * i);
+    await page.mouse.up();
+    await page.waitForTimeout(150);
+    const turned = await canvasShot();
+    expect(await changedFraction(before, turned)).toBeGreaterThan(0.002); // the wire moved on the canvas
+    const triadAfter = await page.getAttribute("#view3d-axis-x", "x2");
+    await page.mouse.move(cx, cy);
+    for (let i = 0; i < 5; ++i) await page.mouse.wheel(0, -200);
+    await page.waitForTimeout(150);
+    const zoomed = await canvasShot();
+    expect(await changedFraction(turned, zoomed)).toBeGreaterThan(0.002);
+    expect(await pixelsPerUnit()).toBeGreaterThan(1.1 * perUnitBefore); // zooming in: more pixels per nm on the bar
+    await page.mouse.dblclick(cx, cy);
+    await page.waitForTimeout(150);
+    const reset = await canvasShot();
+    expect(await changedFraction(before, reset)).toBeLessThan(0.002); // back to the first view
+    expect(await page.textContent("#view3d-scale-text")).toBe(scaleBefore);
+    expect(await page.getAttribute("#view3d-axis-x", "x2")).not.toBe(triadAfter);
+    expect(errors).toEqual([]);
+    expect(requests).toEqual([]);
+  });
+
+  it("shows the input points on demand", async () => {
+    const before = await canvasShot();
+    await page.click("#view3d-points");
+    await page.waitForTimeout(100);
+    expect(await page.getAttribute("#view3d-points", "aria-pressed")).toBe("true");
+    expect(await changedFraction(before, await canvasShot())).toBeGreaterThan(0.0005);
+    await page.click("#view3d-points");
+    expect(errors).toEqual([]);
+  });
+
   it("switches the colouring and its legend, still without errors, and saves a screenshot", async () => {
     await page.click('#view3d button[data-mode="tau"]');
     expect(await page.getAttribute("#view3d-legends", "data-mode")).toBe("tau");
