@@ -189,7 +189,7 @@ ${doc.pinning.length > 0 ? `<table><thead><tr><th class="num">rank</th><th class
   const kappaMax = quantile(kSrc, 0.99) ?? 0;
   const kappaMinQ = quantile(kSrc, 0.01) ?? 0;
   const tauMaxAbs = quantile(tSrc, 0.99, Math.abs) ?? 0;
-  const rangeNote = useInterior && !chain.closed ? "the scale spans the 1st to 99th percentile of the interior samples (ends excluded)" : "the scale spans the 1st to 99th percentile";
+  const rangeNote = useInterior && !chain.closed ? "1st to 99th percentile of the interior samples (within one resolution length of an open end excluded)" : "1st to 99th percentile of the samples";
   const radius = doc.outputs.mesh.radius;
   // a position on the wire at arc length s (in unit), by linear interpolation along the chain
   const chainS = Float64Array.from(chain.s, (v) => v * k);
@@ -203,17 +203,18 @@ ${doc.pinning.length > 0 ? `<table><thead><tr><th class="num">rank</th><th class
   const cutXyz: number[] = [];
   segs.forEach((g, idx) => { if (idx > 0 || (chain.closed && segs.length > 1)) at(g.s0, cutXyz); });
   const pinXyz: number[] = [];
-  for (const site of doc.pinning) at(site.s, pinXyz);
+  const shownPins = doc.pinning.slice(0, LABELLED_SITES);
+  for (const site of shownPins) at(site.s, pinXyz);
   const tr = a.trace.xyz, trN = tr.length / 3, trStride = Math.max(1, Math.ceil(trN / MAX_INPUT_POINTS));
   const inputXyz = new Float32Array(3 * Math.ceil(trN / trStride));
   for (let c = 0, i = 0; i < trN; i += trStride, ++c) for (let d = 0; d < 3; ++d) inputXyz[3 * c + d] = tr[3 * i + d] * k - off[d];
   const viewData = {
     unit, closed: chain.closed, radius, points: b64(pos), kappa: b64(kap), tau: b64(tau), state: b64(state),
     kappaMin: kappaMinQ < kappaMax ? kappaMinQ : 0, kappaMax: kappaMax > 0 ? kappaMax : 1, tauMaxAbs: tauMaxAbs > 0 ? tauMaxAbs : 1,
-    cuts: b64(new Float32Array(cutXyz)), pins: b64(new Float32Array(pinXyz)), pinRanks: doc.pinning.map((q) => q.rank), input: b64(inputXyz),
+    cuts: b64(new Float32Array(cutXyz)), pins: b64(new Float32Array(pinXyz)), pinRanks: shownPins.map((q) => q.rank), input: b64(inputXyz),
   };
   const legends = `<div class="legends" id="view3d-legends" data-mode="kappa">
-<div data-for="kappa">${rampLegend((v) => curvatureColor(v, viewData.kappaMin, viewData.kappaMax), viewData.kappaMin, viewData.kappaMax, `curvature \u03ba (1/${unit}); ${rangeNote}`)}</div>
+<div data-for="kappa">${rampLegend((v) => curvatureColor(v, viewData.kappaMin, viewData.kappaMax), viewData.kappaMin, viewData.kappaMax, `curvature \u03ba (1/${unit})`)}</div>
 <div data-for="tau">${rampLegend((v) => torsionColor(v, viewData.tauMaxAbs), -viewData.tauMaxAbs, viewData.tauMaxAbs, `torsion \u03c4 (1/${unit}); left-handed < 0 < right-handed`, "undefined")}</div>
 <div data-for="state">${categoryLegend(hasModel ? [...new Set(cats)].sort() : [0])}</div>
 </div>`;
@@ -277,7 +278,7 @@ ${tauPlot}
 <div class="message" id="view3d-message" hidden></div></div>
 ${legends}
 <p class="small">The fitted centre line drawn as a tube of radius ${num(radius, unit)} (${escapeHtml(doc.outputs.mesh.radiusSource)}), centred at (${off.map((v) => brief(v)).join(", ")}) ${unit}.
-Grey beads: stretch boundaries; red beads: pinning sites. Triad: the lab x, y, z axes; scale bar: length at the depth of the view centre.
+Curvature and torsion colours span the ${rangeNote}. Grey beads: stretch boundaries; red beads: the ${shownPins.length < doc.pinning.length ? `deepest ${shownPins.length} of ${doc.pinning.length} ` : ""}pinning sites. Triad: the lab x, y, z axes; scale bar: length at the depth of the view centre.
 The tube is drawn no thinner than 0.6% and no thicker than 4% of the wire's size, so it stays visible.</p>
 </section>
 <section id="phase"><h2>Phase map</h2>${phaseSection}</section>
