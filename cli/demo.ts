@@ -52,7 +52,7 @@ export function demoTable(rows: readonly SummaryRow[]): string {
     const st = s.stretches;
     const kinds = [[st.straight, "S"], [st.arc, "A"], [st.helix, "H"], [st.irregular, "I"]].filter(([c]) => Number(c) > 0).map(([c, l]) => `${c}${l}`).join(" ");
     out.push([
-      r.wire, s.unit, String(s.points), show(s.length), show(s.kappaMean.value), show(s.kappaMax.value), show(Math.abs(s.tauMean.value)),
+      r.wire, s.unit, String(s.points), show(s.length), show(s.kappaMean.value), show(s.kappaMax.value), show(s.tauAbsMean.value),
       kinds, show(s.pinningSites), show(s.deepestPinKT), show(s.metastableLength),
     ]);
   }

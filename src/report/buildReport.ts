@@ -2,6 +2,8 @@ import { basename } from "node:path";
 import { quantile } from "d3-array";
 import type { Analysis } from "../export/analyzeTrace.js";
 import { brief } from "../export/brief.js";
+import { wireSummary } from "../export/wireSummary.js";
+import { banded, ENGINEERING, outsideBandReason, sig } from "./formatQuantity.js";
 import type { ModelDocument, SegmentEntry } from "../export/modelDocument.js";
 import type { ResampledWire } from "../export/resampleWire.js";
 import { reducedSystem } from "../physics/reducedSystem.js";
@@ -44,9 +46,24 @@ function b64(a: Float32Array | Uint8Array): string {
   return Buffer.from(a.buffer, a.byteOffset, a.byteLength).toString("base64");
 }
 
-const num = (v: number | null | undefined, unit = ""): string => (v === null || v === undefined || !Number.isFinite(v) ? "n/a" : `${brief(v)}${unit ? ` ${unit}` : ""}`);
-const band = (v: number | null, lo: number | null, hi: number | null): string =>
-  v === null ? "n/a" : `${brief(v)}${lo !== null && hi !== null ? `<br><span class="small">[${brief(lo)}, ${brief(hi)}]</span>` : ""}`;
+/** A value with 3 significant digits and its unit (see formatQuantity.ts). */
+const num = (v: number | null | undefined, unit = ""): string => {
+  const t = sig(v);
+  return t === "n/a" || unit === "" ? t : `${t} ${unit}`;
+};
+/** An estimate over its 95% band, common decimals (see formatQuantity.ts). */
+const band = (v: number | null, lo: number | null, hi: number | null): string => {
+  const [a, b, c] = banded(v, lo, hi);
+  return a === "n/a" ? a : `${a}${lo !== null && hi !== null ? `<br><span class="small">[${b}, ${c}]</span>` : ""}`;
+};
+/** The same on one line, for the summary. */
+const bandInline = (v: number, lo: number, hi: number, unit: string): string => {
+  const [a, b, c] = banded(v, lo, hi);
+  return a === "n/a" ? a : `${a} ${unit}${Number.isFinite(lo) && Number.isFinite(hi) ? ` <span class="small">[${b}, ${c}]</span>` : ""}`;
+};
+/** A quantity in an engineering unit (value given in SI). */
+const eng = (v: number | null | undefined, q: keyof typeof ENGINEERING): string =>
+  v === null || v === undefined || !Number.isFinite(v) ? "n/a" : `${sig(v * ENGINEERING[q].factor)} ${ENGINEERING[q].unit}`;
 
 /**
  * The self-contained HTML report of one analysed wire: facts, the caution about model estimates and
@@ -65,6 +82,13 @@ export function buildReport(input: ReportInput): string {
   const name = file === "<stdin>" ? file : basename(file);
   const hasModel = a.model !== null && a.material !== null;
   const segs = doc.segments;
+  /** A length of model.json (in `unit`) in nm, the scale of material lengths. */
+  const toNm = (v: number | null): number | null => (v === null ? null : (v * PER_METRE.nm) / k);
+  const summary = wireSummary(a, doc);
+  // positions along the wire: one common number of decimals, 3 significant digits of the total length
+  const sDecimals = Math.max(0, Math.min(6, 2 - Math.floor(Math.log10(Math.max(doc.geometry.length ?? 1, 1e-300)))));
+  const sPos = (v: number | null): string => (v === null || !Number.isFinite(v) ? "n/a" : v.toFixed(sDecimals).replace(/^-(0\.?0*)$/, "$1"));
+  const wholeNotes: string[] = [];
 
   const stretches: ShadedStretch[] = segs.map((g) => ({ s0: g.s0, s1: g.s1, kind: g.kind, label: `${g.index + 1} ${KIND_STYLE[g.kind].letter}` }));
   const sU = Float64Array.from(p.s, (v) => v * k);
@@ -96,15 +120,26 @@ export function buildReport(input: ReportInput): string {
     const m = doc.material;
     facts.push(
       ["material", `${m.order === "ferro" ? "ferromagnet" : "antiferromagnet"}${m.file !== null ? ` (${escapeHtml(m.file)})` : ""}`],
-      ["exchange A", num(m.exchange, "J/m")],
-      ["anisotropy K", num(m.anisotropy, "J/m\u00b3")],
-      ["magnetic length l", num(m.magneticLength, unit)],
-      ["thickness / lattice spacing", `${num(m.thickness, unit)} / ${num(m.latticeSpacing, unit)}`],
+      ["exchange A", eng(m.exchange, "exchange")],
+      ["anisotropy K", eng(m.anisotropy, "anisotropy")],
+      ["magnetic length l", num(toNm(m.magneticLength), "nm")],
+      ["thickness / lattice spacing", `${num(toNm(m.thickness), "nm")} / ${num(toNm(m.latticeSpacing), "nm")}`],
       ["temperature", num(m.temperature, "K")],
     );
   } else {
     facts.push(["material", "none given: geometry only"]);
   }
+  facts.push(
+    ["mean curvature (arc-length weighted)", bandInline(summary.kappaMean.value, summary.kappaMean.lo, summary.kappaMean.hi, `1/${unit}`)],
+    ["maximum curvature", bandInline(summary.kappaMax.value, summary.kappaMax.lo, summary.kappaMax.hi, `1/${unit}`)],
+    ["mean |torsion| (of |\u03c4|, arc-length weighted)", bandInline(summary.tauAbsMean.value, summary.tauAbsMean.lo, summary.tauAbsMean.hi, `1/${unit}`)],
+  );
+  for (const [what, b] of [["mean curvature", summary.kappaMean], ["maximum curvature", summary.kappaMax]] as const) {
+    const why = outsideBandReason("curvature", b.value, b.lo, b.hi);
+    if (why !== null) wholeNotes.push(`${what}: ${why}`);
+  }
+  const whyTau = outsideBandReason("torsion", summary.tauAbsMean.value, summary.tauAbsMean.lo, summary.tauAbsMean.hi);
+  if (whyTau !== null) wholeNotes.push(`mean |torsion|: ${whyTau}`);
   const counts = (["straight", "arc", "helix", "irregular"] as const).map((kind) => `${segs.filter((g) => g.kind === kind).length} ${kind}`).join(", ");
   facts.push(["stretches", `${segs.length} (${counts})`]);
   if (hasModel) {
@@ -115,7 +150,7 @@ export function buildReport(input: ReportInput): string {
   facts.push(["tube mesh", `${escapeHtml(doc.outputs.mesh.file)}, radius ${num(doc.outputs.mesh.radius, unit)} (${escapeHtml(doc.outputs.mesh.radiusSource)})`]);
 
   // warnings
-  const warningItems = [...doc.warnings, ...doc.geometry.diagnostics.map((d) => `fit: ${d}`)];
+  const warningItems = [...wholeNotes, ...doc.warnings, ...doc.geometry.diagnostics.map((d) => `fit: ${d}`)];
   const flagged = segs.filter((g) => g.flags.length > 0).length;
   if (flagged > 0) warningItems.push(`${flagged} of ${segs.length} stretches carry validity or uncertainty notes: see the stretch table`);
 
@@ -145,13 +180,13 @@ ${categoryLegend([1, 2, 3, 4])}
       const plot = pinningPlot({
         q: Float64Array.from(land.q, (v) => v * k), energy: land.energy, firstOrder: land.firstOrder,
         sites: doc.pinning.map((s) => ({ rank: s.rank, s: s.s })), stretches,
-        xLabel: `wall position s (${unit})`, sMin: sU[0] ?? 0, sMax: p.closed ? p.length * k : sU[sU.length - 1] ?? 1,
+        xLabel: `wall position s (${unit})`, sMin: Math.min(0, sU[0] ?? 0), sMax: p.closed ? p.length * k : sU[sU.length - 1] ?? 1,
       });
       const rows = doc.pinning.slice(0, MAX_SITE_ROWS).map((s) =>
-        `<tr><td class="num">${s.rank}</td><td class="num">${num(s.s)}</td><td class="num">${num(s.depthJ)}</td><td class="num">${num(s.depthKT)}</td><td class="num">${num(s.depthReduced)}</td></tr>`).join("");
+        `<tr><td class="num">${s.rank}</td><td class="num">${sPos(s.s)}</td><td class="num">${eng(s.depthJ, "energy")}</td><td class="num">${eng(s.depthJ, "energyMeV")}</td><td class="num">${num(s.depthKT)}</td><td class="num">${num(s.depthReduced)}</td></tr>`).join("");
       pinningSection = `${plot}
 <p class="small">Wall energy of a ${ferro ? "head-to-head wall" : "wall"} held at each position along the relaxed texture (solid)${land.firstOrder.some((v) => Number.isFinite(v)) ? ", first-order estimate from the curvature (dashed)" : ""}. Numbers: the deepest ${Math.min(LABELLED_SITES, doc.pinning.length)} sites by rank. Method: ${escapeHtml(land.method)}.</p>
-${doc.pinning.length > 0 ? `<table><thead><tr><th class="num">rank</th><th class="num">s (${unit})</th><th class="num">depth (J)</th><th class="num">depth (k<sub>B</sub>T at ${num(doc.material?.temperature ?? null, "K")})</th><th class="num">depth (K l area)</th></tr></thead><tbody>${rows}</tbody></table>${doc.pinning.length > MAX_SITE_ROWS ? `<p class="small">${doc.pinning.length - MAX_SITE_ROWS} more sites in model.json.</p>` : ""}` : "<p>No pinning sites found: the landscape has no local minimum deeper than its noise floor.</p>"}`;
+${doc.pinning.length > 0 ? `<table><thead><tr><th class="num">rank</th><th class="num">s (${unit})</th><th class="num">depth</th><th class="num">depth</th><th class="num">depth (k<sub>B</sub>T at ${num(doc.material?.temperature ?? null, "K")})</th><th class="num">depth (K l area)</th></tr></thead><tbody>${rows}</tbody></table>${doc.pinning.length > MAX_SITE_ROWS ? `<p class="small">${doc.pinning.length - MAX_SITE_ROWS} more sites in model.json.</p>` : ""}` : "<p>No pinning sites found: the landscape has no local minimum deeper than its noise floor.</p>"}`;
     } else {
       pinningSection = "<p>No pinning landscape was computed for this wire.</p>";
     }
@@ -224,14 +259,16 @@ ${doc.pinning.length > 0 ? `<table><thead><tr><th class="num">rank</th><th class
     const st = g.state === null ? "n/a"
       : g.state === "homogeneous" ? `homogeneous (${g.homogeneousStability})` : `periodic (homogeneous ${g.homogeneousStability})`;
     const probs = g.probabilities === null ? "" : `<br><span class="small">p(periodic) ${num(g.probabilities.periodic)}${g.uncertain ? ", uncertain" : ""}</span>`;
-    const main = `<tr class="stretch"><td class="num">${g.index + 1}</td><td>${escapeHtml(g.kind)}</td><td class="num">${num(g.s0)}\u2013${num(g.s1)}</td>` +
+    const main = `<tr class="stretch"><td class="num">${g.index + 1}</td><td>${escapeHtml(g.kind)}</td><td class="num">${sPos(g.s0)}\u2013${sPos(g.s1)}</td>` +
       `<td class="num">${band(g.kappa, g.kappaLo, g.kappaHi)}</td><td class="num">${band(g.tau, g.tauLo, g.tauHi)}</td>` +
-      (hasModel ? `<td class="num">${num(g.kappaReduced)}<br>${num(g.tauReduced)}</td><td>${escapeHtml(st)}${probs}</td><td class="num">${num(g.tiltDeg)}<br>${num(g.dmi)}</td>` : "") + "</tr>";
-    const notes = g.flags.length > 0 ? `<tr class="notes"><td></td><td colspan="${cols - 1}" class="small">${g.flags.map((f) => escapeHtml(f)).join("<br>")}</td></tr>` : "";
+      (hasModel ? `<td class="num">${num(g.kappaReduced)}<br>${num(g.tauReduced)}</td><td>${escapeHtml(st)}${probs}</td><td class="num">${num(g.tiltDeg)}<br>${eng(g.dmi, "dmi")}</td>` : "") + "</tr>";
+    const why = [outsideBandReason("curvature", g.kappa, g.kappaLo, g.kappaHi), outsideBandReason("torsion", g.tau, g.tauLo, g.tauHi)].filter((t): t is string => t !== null);
+    const lines = [...g.flags, ...why];
+    const notes = lines.length > 0 ? `<tr class="notes"><td></td><td colspan="${cols - 1}" class="small">${lines.map((f) => escapeHtml(f)).join("<br>")}</td></tr>` : "";
     return main + notes;
   }).join("");
   const head = `<tr><th class="num">#</th><th>kind</th><th class="num">s (${unit})</th><th class="num">\u03ba (1/${unit})<br>[95%]</th><th class="num">\u03c4 (1/${unit})<br>[95%]</th>` +
-    (hasModel ? `<th class="num">\u03ba l<br>\u03c4 l</th><th>state</th><th class="num">tilt (deg)<br>DMI (J/m\u00b2)</th>` : "") + `</tr>`;
+    (hasModel ? `<th class="num">\u03ba l<br>\u03c4 l</th><th>state</th><th class="num">tilt (deg)<br>DMI</th>` : "") + `</tr>`;
 
   const kinds = (["straight", "arc", "helix", "irregular"] as const)
     .map((kind) => `<li><span class="swatch" style="background:${KIND_STYLE[kind].fill}"></span>${KIND_STYLE[kind].letter}: ${escapeHtml(KIND_STYLE[kind].name)}</li>`).join("");

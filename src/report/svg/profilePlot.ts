@@ -67,7 +67,8 @@ export function profilePlot(p: ProfilePlotInput): string {
   if (p.fromZero) y0 = Math.min(0, y0);
   if (p.zeroLine) { y0 = Math.min(y0, 0); y1 = Math.max(y1, 0); }
   const [ya, yb] = niceDomain(y0, y1);
-  const [xa, xb] = sMin < sMax ? [sMin, sMax] : [0, 1];
+  // arc length is measured from the start of the fitted curve: the axis starts at 0
+  const [xa, xb] = sMin < sMax ? [Math.min(0, sMin), sMax] : [0, 1];
   const x = linearScale(xa, xb, box.left, box.width - box.right);
   const y = linearScale(ya, yb, box.height - box.bottom, box.top);
   const out: string[] = [svgOpen(box, p.id, p.title)];
