@@ -1,6 +1,7 @@
 import type { Material, StretchModel, WireModel } from "../physics/types.js";
 import { PER_METRE, type LengthUnit } from "../types.js";
 import type { Analysis } from "./analyzeTrace.js";
+import { composeWarnings } from "./composeWarnings.js";
 import { jsonNumber } from "./formatNumber.js";
 import type { MeshFormat } from "./meshToBytes.js";
 import { TOOL_NAME, TOOL_VERSION } from "./version.js";
@@ -111,7 +112,7 @@ export interface ModelDocumentOptions {
   readonly outputs: OutputsInfo;
   /** The material file as given (null when the material came from code). */
   readonly materialFile?: string | null;
-  /** Warnings of the export stage (resolution, spacing), appended after the model's. */
+  /** Specific warnings of the export stage (sharp bends, thin-wire limit, resolution, spacing): listed first (see composeWarnings). */
   readonly extraWarnings?: readonly string[];
 }
 
@@ -189,16 +190,16 @@ export function buildModelDocument(a: Analysis, options: ModelDocumentOptions): 
   const model: WireModel | null = a.model;
   const source: ModelDocument["source"] = { file: p.source.file, unit: p.source.unit };
   if (p.source.pixelSize !== undefined) source.pixelSize = jsonNumber(p.source.pixelSize * k);
-  const warnings: string[] = [];
+  const modelWarnings: string[] = [];
   if (model === null) {
-    warnings.push(
+    modelWarnings.push(
       "geometry only: no material given; with --material (order, exchange and anisotropy, or the magnetic length) each stretch also gets " +
         "its effective DMI and anisotropy, expected state, metastability and the pinning sites",
     );
   } else {
-    warnings.push(...model.warnings);
+    modelWarnings.push(...model.warnings);
   }
-  warnings.push(...(options.extraWarnings ?? []));
+  const warnings = composeWarnings({ model: modelWarnings, specific: options.extraWarnings ?? [], closed: p.closed });
   const o = options.outputs;
   return {
     $schema: MODEL_SCHEMA_ID,

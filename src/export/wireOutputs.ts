@@ -2,7 +2,7 @@ import { median } from "d3-array";
 import { interactions } from "../physics/interactions.js";
 import { reducedSystem } from "../physics/reducedSystem.js";
 import { buildReport } from "../report/buildReport.js";
-import { PER_METRE, type LengthUnit } from "../types.js";
+import { FLAG_END, PER_METRE, type LengthUnit } from "../types.js";
 import type { Analysis } from "./analyzeTrace.js";
 import { CHAIN_GEOMETRY_COLUMNS, CHAIN_MODEL_COLUMNS, CHAIN_TEXTURE_COLUMNS, chainToCsv, type ChainModel } from "./chainToCsv.js";
 import { brief } from "./brief.js";
@@ -106,34 +106,65 @@ function chainModel(a: Analysis, chain: ResampledWire): ChainModel | null {
   return { interactions: it, texture, order: a.material.order, magneticLength: a.material.magneticLength };
 }
 
-/** Warnings of the export stage: what the resolution and the spacing mean for the model, and features merged into stretches. */
-function exportWarnings(a: Analysis, spacing: number, unit: LengthUnit): string[] {
+/** The model needs radii of curvature and torsion at least this many times the wire thickness (thin-wire limit; common practice, a rule of thumb). */
+export const THIN_WIRE_RATIO = 5;
+
+/**
+ * Specific warnings of the export stage, most serious first: the thin-wire limit broken (radius of
+ * curvature or torsion below THIN_WIRE_RATIO times the thickness, or below the lattice spacing),
+ * sharp bends merged into a stretch, torsion not resolved from zero on curved stretches, then what
+ * the resolution and the spacing mean for the model.
+ */
+export function exportWarnings(a: Analysis, spacing: number, unit: LengthUnit): string[] {
   const w: string[] = [];
   const k = PER_METRE[unit];
   const p = a.profile;
   const l = a.material?.magneticLength;
+  // thin-wire limit: the tightest radius (of curvature, then of torsion) against the thickness and the lattice spacing
+  const t = a.material?.thickness ?? null, d = a.material?.latticeSpacing ?? null;
+  const limit = Math.max(t !== null ? THIN_WIRE_RATIO * t : 0, d ?? 0);
+  if (limit > 0) {
+    for (const [name, arr] of [["curvature", p.kappa], ["torsion", p.tau]] as const) {
+      let peak = 0, at = -1;
+      // samples near an open end are skipped: the fit's bias is larger there (FLAG_END)
+      for (let i = 0; i < p.n; ++i) if ((p.flags[i] & FLAG_END) === 0 && Number.isFinite(arr[i]) && Math.abs(arr[i]) > peak) { peak = Math.abs(arr[i]); at = i; }
+      if (at >= 0 && 1 / peak < limit) {
+        const what = t !== null && 1 / peak < THIN_WIRE_RATIO * t ? `${THIN_WIRE_RATIO} times the thickness (${brief(t * k)} ${unit})` : `the lattice spacing (${brief((d ?? 0) * k)} ${unit})`;
+        w.push(
+          `thin-wire limit: the radius of ${name} 1/${name === "curvature" ? "\u03ba" : "|\u03c4|"} = ${brief(k / peak)} ${unit} at s = ${brief(p.s[at] * k)} ${unit} is below ${what}; ` +
+            "the curvilinear model is not valid there",
+        );
+      }
+    }
+  }
+  const later: string[] = [];
   if (l !== undefined && p.resolution > l) {
-    w.push(
+    later.push(
       `resolution: the fit resolves the geometry down to ${brief(p.resolution * k)} ${unit}, more than the magnetic length l = ${brief(l * k)} ${unit}; ` +
         "curvature that varies on shorter scales is smoothed out, so sharp bends (and their pinning depths) can be underestimated",
     );
   }
   if (l !== undefined && spacing > l / 2) {
-    w.push(`chain spacing ${brief(spacing * k)} ${unit} is coarser than half the magnetic length (${brief((l / 2) * k)} ${unit}): too coarse for a solver`);
+    later.push(`chain spacing ${brief(spacing * k)} ${unit} is coarser than half the magnetic length (${brief((l / 2) * k)} ${unit}): too coarse for a solver`);
   }
-  if (p.planarProjection) w.push("planar projection: torsion is not measurable from this trace; the model takes torsion 0");
+  if (p.planarProjection) later.push("planar projection: torsion is not measurable from this trace; the model takes torsion 0");
   // a short sharp feature merged into a stretch (shorter than the resolution): its model uses the stretch mean
   a.segments.forEach((g, idx) => {
     let peak = -Infinity, at = -1;
     for (let i = g.i0; i < g.i1; ++i) if (p.kappa[i] > peak) { peak = p.kappa[i]; at = i; }
     if (at >= 0 && Number.isFinite(g.kappaHi) && p.kappaLo[at] > 2 * Math.max(g.kappaHi, 0)) {
       w.push(
-        `stretch ${idx + 1} (${g.kind}) contains curvature up to ${brief(peak / k)} 1/${unit} at s = ${brief(p.s[at] * k)} ${unit}, ` +
+        `sharp bend: stretch ${idx + 1} (${g.kind}) contains curvature up to ${brief(peak / k)} 1/${unit} at s = ${brief(p.s[at] * k)} ${unit}, ` +
           `well above its mean ${brief(g.kappa / k)} 1/${unit}: a feature shorter than the stretches the fit can separate; its model uses the stretch mean (see the pinning sites)`,
       );
     }
   });
-  return w;
+  // torsion of a curved stretch whose band includes 0: its handedness is not known
+  const unresolved = a.segments.flatMap((g, idx) => (g.kind !== "straight" && g.tau !== 0 && g.tauLo < 0 && g.tauHi > 0 ? [idx + 1] : []));
+  if (unresolved.length > 0) {
+    w.push(`unresolved torsion: the 95% band of \u03c4 includes 0 on stretch${unresolved.length > 1 ? "es" : ""} ${unresolved.join(", ")}, so the handedness there is not known and the model's torsion terms are uncertain`);
+  }
+  return [...w, ...later];
 }
 
 /**

@@ -3,6 +3,7 @@ import { quantile } from "d3-array";
 import type { Analysis } from "../export/analyzeTrace.js";
 import { brief } from "../export/brief.js";
 import { wireSummary } from "../export/wireSummary.js";
+import { isGeneralCaution } from "../export/composeWarnings.js";
 import { banded, ENGINEERING, outsideBandReason, sig } from "./formatQuantity.js";
 import type { ModelDocument, SegmentEntry } from "../export/modelDocument.js";
 import type { ResampledWire } from "../export/resampleWire.js";
@@ -150,7 +151,8 @@ export function buildReport(input: ReportInput): string {
   facts.push(["tube mesh", `${escapeHtml(doc.outputs.mesh.file)}, radius ${num(doc.outputs.mesh.radius, unit)} (${escapeHtml(doc.outputs.mesh.radiusSource)})`]);
 
   // warnings
-  const warningItems = [...wholeNotes, ...doc.warnings, ...doc.geometry.diagnostics.map((d) => `fit: ${d}`)];
+  // specific findings first; the general caution is the box under the list (once)
+  const warningItems = [...doc.warnings.filter((w) => !isGeneralCaution(w)), ...wholeNotes, ...doc.geometry.diagnostics.map((d) => `fit: ${d}`)];
   const flagged = segs.filter((g) => g.flags.length > 0).length;
   if (flagged > 0) warningItems.push(`${flagged} of ${segs.length} stretches carry validity or uncertainty notes: see the stretch table`);
 
@@ -185,7 +187,7 @@ ${categoryLegend([1, 2, 3, 4])}
       const rows = doc.pinning.slice(0, MAX_SITE_ROWS).map((s) =>
         `<tr><td class="num">${s.rank}</td><td class="num">${sPos(s.s)}</td><td class="num">${eng(s.depthJ, "energy")}</td><td class="num">${eng(s.depthJ, "energyMeV")}</td><td class="num">${num(s.depthKT)}</td><td class="num">${num(s.depthReduced)}</td></tr>`).join("");
       pinningSection = `${plot}
-<p class="small">Wall energy of a ${ferro ? "head-to-head wall" : "wall"} held at each position along the relaxed texture (solid)${land.firstOrder.some((v) => Number.isFinite(v)) ? ", first-order estimate from the curvature (dashed)" : ""}. Numbers: the deepest ${Math.min(LABELLED_SITES, doc.pinning.length)} sites by rank. Method: ${escapeHtml(land.method)}.</p>
+<p class="small">Wall energy of a ${ferro ? "head-to-head wall" : "wall"} held at each position along the relaxed texture (solid)${land.firstOrder.some((v) => Number.isFinite(v)) ? ", first-order estimate from the curvature (dashed)" : ""}. Numbers: the deepest ${Math.min(LABELLED_SITES, doc.pinning.length)} sites by rank. Method: the wall is held at each position and the texture around it relaxed${ferro ? "; the dashed first-order estimate is the wall energy of a straight wire lowered by the curvature it sits on, weighted by the wall profile" : ""}.</p>
 ${doc.pinning.length > 0 ? `<table><thead><tr><th class="num">rank</th><th class="num">s (${unit})</th><th class="num">depth</th><th class="num">depth</th><th class="num">depth (k<sub>B</sub>T at ${num(doc.material?.temperature ?? null, "K")})</th><th class="num">depth (K l area)</th></tr></thead><tbody>${rows}</tbody></table>${doc.pinning.length > MAX_SITE_ROWS ? `<p class="small">${doc.pinning.length - MAX_SITE_ROWS} more sites in model.json.</p>` : ""}` : "<p>No pinning sites found: the landscape has no local minimum deeper than its noise floor.</p>"}`;
     } else {
       pinningSection = "<p>No pinning landscape was computed for this wire.</p>";
@@ -285,14 +287,14 @@ ${doc.pinning.length > 0 ? `<table><thead><tr><th class="num">rank</th><th class
 <body>
 <header>
 <h1>${escapeHtml(name)}</h1>
-<p class="sub">${escapeHtml(`${doc.tool.name} ${doc.tool.version}`)} \u00b7 curved-wire analysis \u00b7 lengths in ${unit}, curvature and torsion in 1/${unit}</p>
+<p class="sub">${escapeHtml(`${doc.tool.name} ${doc.tool.version}`)} \u00b7 curved-wire analysis (model estimates, not measurements) \u00b7 lengths in ${unit}, curvature and torsion in 1/${unit}</p>
 </header>
+<section id="summary"><h2>Summary</h2><table class="facts"><tbody>${facts.map(([a1, b1]) => `<tr><td>${a1}</td><td>${b1}</td></tr>`).join("")}</tbody></table></section>
+<section id="warnings"><h2>Warnings</h2>${warningItems.length > 0 ? `<ul class="warnings">${warningItems.map((w) => `<li>${escapeHtml(w)}</li>`).join("")}</ul>` : "<p>No specific warnings for this wire.</p>"}
 <aside class="caution" id="caution"><strong>These are model estimates, not measurements.</strong>
 The centre line is a smoothing-spline fit of a traced wire; bands are 95% bootstrap intervals of that fit.${hasModel ? " States, stability, effective interactions and pinning come from the curvilinear-magnet model of the stretches." : ""}
 The model is valid only for a thin wire whose curvature and torsion radii are much larger than the lattice spacing and the wire thickness, for stretches several magnetic lengths long, without applied field or damping.
-Curvature that varies on scales shorter than the resolution length (${num(doc.geometry.resolution, unit)}) is smoothed out.</aside>
-<section id="summary"><h2>Summary</h2><table class="facts"><tbody>${facts.map(([a1, b1]) => `<tr><td>${a1}</td><td>${b1}</td></tr>`).join("")}</tbody></table></section>
-<section id="warnings"><h2>Warnings</h2>${warningItems.length > 0 ? `<ul class="warnings">${warningItems.map((w) => `<li>${escapeHtml(w)}</li>`).join("")}</ul>` : "<p>None.</p>"}</section>
+Curvature that varies on scales shorter than the resolution length (${num(doc.geometry.resolution, unit)}) is smoothed out.</aside></section>
 <section id="profiles"><h2>Curvature and torsion along the wire</h2>
 ${kappaPlot}
 ${tauPlot}
