@@ -82,6 +82,7 @@ export function jobOf(req: PipelineRequest, input: string, material: Material | 
     ...(req.outUnit !== undefined ? { outUnit: req.outUnit } : {}),
     ...(req.spacing !== undefined ? { spacing: req.spacing } : {}),
     ...(req.radius !== undefined ? { radius: req.radius } : {}),
+    ...(req.argv !== undefined ? { argv: req.argv } : {}),
   };
 }
 
@@ -135,6 +136,12 @@ export const PIPELINE_HELP = {
   force: "replace an existing output folder (only one holding nothing but twistline outputs)",
 } as const;
 
+/** The arguments the program was parsed from (commander keeps them as `rawArgs`, untyped), for model.json. */
+function rawArgsOf(cmd: { readonly parent: unknown }): readonly string[] {
+  const raw = (cmd.parent as { rawArgs?: unknown } | null)?.rawArgs;
+  return Array.isArray(raw) && raw.every((x) => typeof x === "string") ? raw : [];
+}
+
 /** Adds `analyze` to the program. */
 export function addAnalyzeCommand(program: Command, io: Io): void {
   program
@@ -162,7 +169,7 @@ export function addAnalyzeCommand(program: Command, io: Io): void {
     .option("--branches <policy>", HELP.branches)
     .option("--force", PIPELINE_HELP.force)
     .option("--quiet", "print no summary line")
-    .action(async (input, flags) => {
-      await runAnalyze(input, flags.out, checkPipelineFlags(WHERE, input, flags), io);
+    .action(async (input, flags, cmd) => {
+      await runAnalyze(input, flags.out, { ...checkPipelineFlags(WHERE, input, flags), argv: rawArgsOf(cmd) }, io);
     });
 }

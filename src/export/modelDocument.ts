@@ -6,8 +6,11 @@ import { jsonNumber } from "./formatNumber.js";
 import type { MeshFormat } from "./meshToBytes.js";
 import { TOOL_NAME, TOOL_VERSION } from "./version.js";
 
-/** `$id` of src/export/schemas/model.schema.json, written as the document's `$schema`. */
-export const MODEL_SCHEMA_ID = "https://twistline.example/schemas/model.schema.json";
+/**
+ * `$id` of src/export/schemas/model.schema.json, written as the document's `$schema`: a URN (RFC 8141)
+ * naming the format and its version, not a web address (nothing is fetched; the schema ships in the package).
+ */
+export const MODEL_SCHEMA_ID = "urn:twistline:schema:model:1";
 export const MODEL_FORMAT = "twistline-model";
 export const MODEL_FORMAT_VERSION = 1;
 
@@ -26,6 +29,8 @@ type Num = number | null;
 /** Material as written in model.json: lengths in `unit`, area in unit^2. */
 export interface MaterialEntry {
   file: string | null;
+  /** The material file's own note (provenance), or null. */
+  note: string | null;
   order: "ferro" | "antiferro";
   exchange: Num;
   anisotropy: Num;
@@ -68,6 +73,7 @@ export interface ModelDocument {
   formatVersion: number;
   tool: { name: string; version: string };
   note: string;
+  run: RunInfo;
   validity: string;
   unit: LengthUnit;
   units: Record<string, string>;
@@ -94,6 +100,21 @@ export interface ModelDocument {
   };
 }
 
+/** A value of one option of the run. */
+export type OptionValue = string | number | boolean | null;
+
+/** How the document was made: command line (when there was one) and every option value used. */
+export interface RunInfo {
+  command: string | null;
+  argv: string[] | null;
+  options: Record<string, OptionValue>;
+}
+
+/** Quotes one argument for a POSIX shell when it needs it (common practice: single quotes, ' as '\''). */
+export function shellQuote(arg: string): string {
+  return /^[A-Za-z0-9_@%+=:,./-]+$/.test(arg) ? arg : `'${arg.replace(/'/g, "'\\''")}'`;
+}
+
 /** What the document says about the files written next to it (lengths in `unit`). */
 export interface OutputsInfo {
   readonly profile: string;
@@ -112,16 +133,21 @@ export interface ModelDocumentOptions {
   readonly outputs: OutputsInfo;
   /** The material file as given (null when the material came from code). */
   readonly materialFile?: string | null;
+  /** The material file's note (provenance), when it has one. */
+  readonly materialNote?: string | null;
+  /** The command line (arguments after the program name, as given) and the option values used. */
+  readonly run?: { readonly argv: readonly string[] | null; readonly options: Readonly<Record<string, OptionValue>> };
   /** Specific warnings of the export stage (sharp bends, thin-wire limit, resolution, spacing): listed first (see composeWarnings). */
   readonly extraWarnings?: readonly string[];
 }
 
 /** Material entry in `unit`. */
-export function materialEntry(m: Material, unit: LengthUnit, file: string | null): MaterialEntry {
+export function materialEntry(m: Material, unit: LengthUnit, file: string | null, note: string | null = null): MaterialEntry {
   const k = PER_METRE[unit];
   const len = (v: number | null): Num => (v === null ? null : jsonNumber(v * k));
   return {
     file,
+    note,
     order: m.order,
     exchange: m.exchange === null ? null : jsonNumber(m.exchange),
     anisotropy: m.anisotropy === null ? null : jsonNumber(m.anisotropy),
@@ -207,6 +233,11 @@ export function buildModelDocument(a: Analysis, options: ModelDocumentOptions): 
     formatVersion: MODEL_FORMAT_VERSION,
     tool: { name: TOOL_NAME, version: TOOL_VERSION },
     note: MODEL_NOTE,
+    run: {
+      command: options.run?.argv ? [TOOL_NAME, ...options.run.argv].map(shellQuote).join(" ") : null,
+      argv: options.run?.argv ? [...options.run.argv] : null,
+      options: { ...(options.run?.options ?? {}) },
+    },
     validity: MODEL_VALIDITY,
     unit,
     units: {
@@ -237,7 +268,7 @@ export function buildModelDocument(a: Analysis, options: ModelDocumentOptions): 
       planarProjection: p.planarProjection,
       diagnostics: [...p.diagnostics],
     },
-    material: a.material === null ? null : materialEntry(a.material, unit, options.materialFile ?? null),
+    material: a.material === null ? null : materialEntry(a.material, unit, options.materialFile ?? null, options.materialNote ?? null),
     segments: a.segments.map((_, i) => segmentEntry(a, i, model?.segments[i] ?? null, unit)),
     pinning: (model?.pinning ?? []).map((s, i) => ({
       rank: i + 1,

@@ -6,8 +6,9 @@ import { FLAG_END, PER_METRE, type LengthUnit } from "../types.js";
 import type { Analysis } from "./analyzeTrace.js";
 import { CHAIN_GEOMETRY_COLUMNS, CHAIN_MODEL_COLUMNS, CHAIN_TEXTURE_COLUMNS, chainToCsv, type ChainModel } from "./chainToCsv.js";
 import { brief } from "./brief.js";
+import { jsonNumber } from "./formatNumber.js";
 import { meshToBytes, type MeshFormat } from "./meshToBytes.js";
-import { buildModelDocument, modelToJson, type ModelDocument } from "./modelDocument.js";
+import { buildModelDocument, modelToJson, type ModelDocument, type OptionValue } from "./modelDocument.js";
 import { profileToCsv } from "./profileToCsv.js";
 import { resampleWire, type ResampledWire } from "./resampleWire.js";
 import { tubeMesh, type TubeMesh } from "./tubeMesh.js";
@@ -35,6 +36,14 @@ export interface WireOutputOptions {
   readonly materialFile?: string | null;
   /** The bundled report viewer (see src/report/viewerScript.ts). */
   readonly viewerScript: string;
+  /** The material file's note (provenance), for model.json and the report. */
+  readonly materialNote?: string | null;
+  /**
+   * The command line (arguments after the program name, as given; null when not from the command line)
+   * and the caller's option values (input, bootstrap, seed, ...); the values decided here (output unit,
+   * spacing, mesh, radius) are added to them.
+   */
+  readonly run?: { readonly argv: readonly string[] | null; readonly options: Readonly<Record<string, OptionValue>> };
 }
 
 /** One file of an analysis folder. */
@@ -197,6 +206,23 @@ export async function buildWireOutputs(a: Analysis, options: WireOutputOptions):
   const document = buildModelDocument(a, {
     unit,
     materialFile: options.materialFile ?? null,
+    materialNote: options.materialNote ?? null,
+    run: {
+      argv: options.run?.argv ?? null,
+      options: {
+        ...(options.run?.options ?? {}),
+        material: options.materialFile ?? null,
+        closed: a.profile.closed,
+        seed: a.seed,
+        bootstrap: a.profile.replicates,
+        outUnit: unit,
+        spacing: jsonNumber(chain.spacing * k),
+        spacingSource: spacingNote,
+        mesh: format,
+        radius: jsonNumber(radius * k),
+        radiusSource: radiusNote,
+      },
+    },
     extraWarnings: exportWarnings(a, chain.spacing, unit),
     outputs: {
       profile: OUTPUT_NAMES.profile,

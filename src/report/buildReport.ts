@@ -121,6 +121,7 @@ export function buildReport(input: ReportInput): string {
     const m = doc.material;
     facts.push(
       ["material", `${m.order === "ferro" ? "ferromagnet" : "antiferromagnet"}${m.file !== null ? ` (${escapeHtml(m.file)})` : ""}`],
+      ...(m.note !== null ? [["material note", escapeHtml(m.note)] as [string, string]] : []),
       ["exchange A", eng(m.exchange, "exchange")],
       ["anisotropy K", eng(m.anisotropy, "anisotropy")],
       ["magnetic length l", num(toNm(m.magneticLength), "nm")],
@@ -327,7 +328,7 @@ The tube is drawn no thinner than 0.6% and no thicker than 4% of the wire's size
 <p class="small">Stretch means with 95% bands from the bootstrap replicates.${hasModel ? " Tilt: FM from T toward B, AFM from B toward T. DMI: geometric 2A\u221a(\u03ba\u00b2+\u03c4\u00b2)." : ""}</p>
 </section>
 <footer>Files: ${[doc.outputs.profile, "model.json", doc.outputs.chain.file, doc.outputs.mesh.file, doc.outputs.report].map((f) => `<code>${escapeHtml(f)}</code>`).join(", ")}.
-Reproduce: same input, options and seed (${doc.seed}) give the same numbers. ${escapeHtml(doc.note)}.</footer>
+Reproduce: same input, options and seed (${doc.seed}) give the same numbers${doc.run.command !== null ? `: <code>${escapeHtml(doc.run.command)}</code>` : " (every option value is in model.json, under run)"}. ${escapeHtml(doc.note)}.</footer>
 <script type="application/json" id="report-data">${scriptJson(viewData)}</script>
 <script>${inlineScript(input.viewerScript)}</script>
 </body>
