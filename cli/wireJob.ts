@@ -27,6 +27,10 @@ export interface PipelineSettings {
   readonly radius?: number;
   /** The command line after the program name, as given (recorded in model.json); absent for demo and batch wires. */
   readonly argv?: readonly string[];
+  /** Write the VTK PolyData exports. */
+  readonly vtp?: boolean;
+  /** Cell size (m) of the OVF exports. */
+  readonly grid?: number;
 }
 
 export interface WireJob extends PipelineSettings {
@@ -113,6 +117,8 @@ export async function runWireJob(job: WireJob, viewerJs: string): Promise<WireJo
     viewerScript: viewerJs,
     ...(job.spacing !== undefined ? { spacing: job.spacing } : {}),
     ...(job.radius !== undefined ? { radius: job.radius } : {}),
+    ...(job.vtp !== undefined ? { vtp: job.vtp } : {}),
+    ...(job.grid !== undefined ? { grid: job.grid } : {}),
   });
   for (const f of outputs.files) await writeFile(join(job.dir, f.name), f.data);
   return { analysis, outputs, summary: wireSummary(analysis, outputs.document) };

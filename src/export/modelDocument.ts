@@ -92,6 +92,7 @@ export interface ModelDocument {
   outputs: {
     profile: string;
     report: string;
+    exports?: ExportEntry[];
     chain: { file: string; sites: number; spacing: Num; spacingNote: string; columns: string[] };
     mesh: {
       file: string; format: MeshFormat; unit: LengthUnit; offset: number[]; radius: number; radiusSource: string;
@@ -115,10 +116,20 @@ export function shellQuote(arg: string): string {
   return /^[A-Za-z0-9_@%+=:,./-]+$/.test(arg) ? arg : `'${arg.replace(/'/g, "'\\''")}'`;
 }
 
+/** A file for other tools (lengths in `unit`). */
+export interface ExportEntry {
+  file: string;
+  format: "vtp" | "ovf-text" | "ovf-binary8";
+  content: string;
+  cell?: number;
+  cells?: number[];
+}
+
 /** What the document says about the files written next to it (lengths in `unit`). */
 export interface OutputsInfo {
   readonly profile: string;
   readonly report: string;
+  readonly exports?: readonly ExportEntry[];
   readonly chain: { readonly file: string; readonly sites: number; readonly spacing: number; readonly spacingNote: string; readonly columns: readonly string[] };
   readonly mesh: {
     readonly file: string; readonly format: MeshFormat; readonly offset: readonly number[]; readonly radius: number;
@@ -288,6 +299,7 @@ export function buildModelDocument(a: Analysis, options: ModelDocumentOptions): 
     outputs: {
       profile: o.profile,
       report: o.report,
+      ...(o.exports !== undefined && o.exports.length > 0 ? { exports: o.exports.map((e) => ({ ...e, ...(e.cells ? { cells: [...e.cells] } : {}) })) } : {}),
       chain: { file: o.chain.file, sites: o.chain.sites, spacing: jsonNumber(o.chain.spacing), spacingNote: o.chain.spacingNote, columns: [...o.chain.columns] },
       mesh: {
         file: o.mesh.file, format: o.mesh.format, unit, offset: o.mesh.offset.map((v) => jsonNumber(v) ?? 0),

@@ -8,7 +8,11 @@ import { CHAIN_GEOMETRY_COLUMNS, CHAIN_MODEL_COLUMNS, CHAIN_TEXTURE_COLUMNS, cha
 import { brief } from "./brief.js";
 import { jsonNumber } from "./formatNumber.js";
 import { meshToBytes, type MeshFormat } from "./meshToBytes.js";
-import { buildModelDocument, modelToJson, type ModelDocument, type OptionValue } from "./modelDocument.js";
+import { ParameterError } from "../errors.js";
+import { buildModelDocument, modelToJson, type ExportEntry, type ModelDocument, type OptionValue } from "./modelDocument.js";
+import { gridToOvf, textureGrid } from "./textureToOvf.js";
+import { TOOL_NAME, TOOL_VERSION } from "./version.js";
+import { wireVtpFiles } from "./wireToVtp.js";
 import { profileToCsv } from "./profileToCsv.js";
 import { resampleWire, type ResampledWire } from "./resampleWire.js";
 import { tubeMesh, type TubeMesh } from "./tubeMesh.js";
@@ -20,6 +24,11 @@ export const OUTPUT_NAMES = {
   chain: "chain.csv",
   report: "report.html",
   mesh: (format: MeshFormat): string => `wire.${format}`,
+  centerlineVtp: "centerline.vtp",
+  tubeVtp: "tube.vtp",
+  textureOvfText: "texture.ovf",
+  textureOvfBinary: "texture-binary8.ovf",
+  maskOvf: "mask.ovf",
 } as const;
 
 /** Options of {@link buildWireOutputs}. Lengths in metres. */
@@ -36,6 +45,13 @@ export interface WireOutputOptions {
   readonly materialFile?: string | null;
   /** The bundled report viewer (see src/report/viewerScript.ts). */
   readonly viewerScript: string;
+  /** Write centerline.vtp and tube.vtp (VTK XML PolyData) too. */
+  readonly vtp?: boolean;
+  /**
+   * Grid cell (m) of the OVF 2.0 exports: the relaxed texture on a regular grid (text and binary-8)
+   * and the wire mask; needs a material. Not written when absent.
+   */
+  readonly grid?: number;
   /** The material file's note (provenance), for model.json and the report. */
   readonly materialNote?: string | null;
   /**
@@ -203,6 +219,44 @@ export async function buildWireOutputs(a: Analysis, options: WireOutputOptions):
   const mesh = tubeMesh(pts, chain.T, chain.closed, radius * k);
   const meshBytes = await meshToBytes(mesh, format, { unit, radiusNote, sourceFile: a.profile.source.file });
 
+  // files for other tools
+  const extra: OutputFile[] = [];
+  const exportsInfo: ExportEntry[] = [];
+  if (options.vtp === true) {
+    const stretches = a.segments.map((g) => ({ s0: g.s0, s1: g.s1 }));
+    const v = wireVtpFiles({ chain, model: cm, stretches, unit, mesh, sourceFile: a.profile.source.file });
+    extra.push({ name: OUTPUT_NAMES.centerlineVtp, data: v.centerline }, { name: OUTPUT_NAMES.tubeVtp, data: v.tube });
+    exportsInfo.push(
+      { file: OUTPUT_NAMES.centerlineVtp, format: "vtp", content: "centre line (chain sites) with kappa, tau, bands, frame, flags, stretch number and, with a material, DMI, anisotropy axes and texture" },
+      { file: OUTPUT_NAMES.tubeVtp, format: "vtp", content: "tube mesh with the centre line's arrays at each ring" },
+    );
+  }
+  if (options.grid !== undefined) {
+    if (cm === null || cm.texture === null) {
+      throw new ParameterError("buildWireOutputs", "grid", "the OVF texture needs a material (the relaxed texture comes from the model): add --material");
+    }
+    const grid = textureGrid(chain.xyz, cm.texture, chain.closed, radius, options.grid);
+    const labels: [string, string, string] = cm.order === "ferro" ? ["m_x", "m_y", "m_z"] : ["n_x", "n_y", "n_z"];
+    const what = cm.order === "ferro" ? "magnetisation direction m" : "Neel vector n";
+    const desc = [
+      `${TOOL_NAME} ${TOOL_VERSION}: relaxed ${what} of the curvilinear-magnet model, unit vectors inside the tube (radius ${brief(radius * k)} ${unit}), 0 outside`,
+      `source ${a.profile.source.file}; model estimates, not measurements (a starting state for a solver)`,
+    ];
+    const title = `${TOOL_NAME} relaxed texture`;
+    extra.push(
+      { name: OUTPUT_NAMES.textureOvfText, data: gridToOvf(grid, { title, desc, data: "text", field: "vector", labels }) },
+      { name: OUTPUT_NAMES.textureOvfBinary, data: gridToOvf(grid, { title, desc, data: "binary8", field: "vector", labels }) },
+      { name: OUTPUT_NAMES.maskOvf, data: gridToOvf(grid, { title: `${TOOL_NAME} wire mask`, desc: [`1 inside the tube (radius ${brief(radius * k)} ${unit}), 0 outside`], data: "text", field: "mask" }) },
+    );
+    const cells = [grid.nx, grid.ny, grid.nz];
+    const cell = jsonNumber(grid.cell * k) ?? 0;
+    exportsInfo.push(
+      { file: OUTPUT_NAMES.textureOvfText, format: "ovf-text", content: `relaxed texture (${labels.join(" ")}) on a regular grid, OVF 2.0 text`, cell, cells },
+      { file: OUTPUT_NAMES.textureOvfBinary, format: "ovf-binary8", content: `the same, OVF 2.0 binary 8 (little-endian float64)`, cell, cells },
+      { file: OUTPUT_NAMES.maskOvf, format: "ovf-text", content: "geometry mask: 1 inside the tube, 0 outside", cell, cells },
+    );
+  }
+
   const document = buildModelDocument(a, {
     unit,
     materialFile: options.materialFile ?? null,
@@ -221,12 +275,15 @@ export async function buildWireOutputs(a: Analysis, options: WireOutputOptions):
         mesh: format,
         radius: jsonNumber(radius * k),
         radiusSource: radiusNote,
+        vtp: options.vtp === true,
+        grid: options.grid !== undefined ? jsonNumber(options.grid * k) : null,
       },
     },
     extraWarnings: exportWarnings(a, chain.spacing, unit),
     outputs: {
       profile: OUTPUT_NAMES.profile,
       report: OUTPUT_NAMES.report,
+      exports: exportsInfo,
       chain: { file: OUTPUT_NAMES.chain, sites: chain.n, spacing: chain.spacing * k, spacingNote, columns },
       mesh: {
         file: OUTPUT_NAMES.mesh(format), format, offset: [...mesh.offset], radius: mesh.radius, radiusSource: radiusNote,
@@ -241,6 +298,7 @@ export async function buildWireOutputs(a: Analysis, options: WireOutputOptions):
     { name: OUTPUT_NAMES.chain, data: chainCsv },
     { name: OUTPUT_NAMES.mesh(format), data: meshBytes },
     { name: OUTPUT_NAMES.report, data: report },
+    ...extra,
   ];
   return { files, document, chain, mesh, spacingNote, radiusNote };
 }

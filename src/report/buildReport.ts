@@ -327,7 +327,7 @@ The tube is drawn no thinner than 0.6% and no thicker than 4% of the wire's size
 <table><thead>${head}</thead><tbody>${tableRows}</tbody></table>
 <p class="small">Stretch means with 95% bands from the bootstrap replicates.${hasModel ? " Tilt: FM from T toward B, AFM from B toward T. DMI: geometric 2A\u221a(\u03ba\u00b2+\u03c4\u00b2)." : ""}</p>
 </section>
-<footer>Files: ${[doc.outputs.profile, "model.json", doc.outputs.chain.file, doc.outputs.mesh.file, doc.outputs.report].map((f) => `<code>${escapeHtml(f)}</code>`).join(", ")}.
+<footer>Files: ${[doc.outputs.profile, "model.json", doc.outputs.chain.file, doc.outputs.mesh.file, doc.outputs.report, ...(doc.outputs.exports ?? []).map((e) => e.file)].map((f) => `<code>${escapeHtml(f)}</code>`).join(", ")}.
 Reproduce: same input, options and seed (${doc.seed}) give the same numbers${doc.run.command !== null ? `: <code>${escapeHtml(doc.run.command)}</code>` : " (every option value is in model.json, under run)"}. ${escapeHtml(doc.note)}.</footer>
 <script type="application/json" id="report-data">${scriptJson(viewData)}</script>
 <script>${inlineScript(input.viewerScript)}</script>
