@@ -8,15 +8,16 @@ import { banded, ENGINEERING, outsideBandReason, sig } from "./formatQuantity.js
 import type { ModelDocument, SegmentEntry } from "../export/modelDocument.js";
 import type { ResampledWire } from "../export/resampleWire.js";
 import { reducedSystem } from "../physics/reducedSystem.js";
-import { FLAG_END, PER_METRE } from "../types.js";
+import { FLAG_BIAS, FLAG_END, PER_METRE } from "../types.js";
 import { curvatureColor, torsionColor } from "./colorScales.js";
 import { escapeHtml, inlineScript, scriptJson } from "./escapeHtml.js";
 import { KIND_STYLE } from "./kindStyle.js";
 import { REPORT_CSS } from "./reportStyle.js";
 import { categoryLegend, rampLegend } from "./svg/legend.js";
-import { phaseMap, type PhasePoint } from "./svg/phaseMap.js";
+import { phaseMap, RING_SWITCH_FM, type PhasePoint } from "./svg/phaseMap.js";
+import { magnonPanel } from "./svg/magnonPanel.js";
 import { LABELLED_SITES, pinningPlot } from "./svg/pinningPlot.js";
-import { profilePlot, type ShadedStretch } from "./svg/profilePlot.js";
+import { profilePlot, type ShadedStretch, type Zone } from "./svg/profilePlot.js";
 
 /** Input of {@link buildReport}. */
 export interface ReportInput {
@@ -62,6 +63,9 @@ const bandInline = (v: number, lo: number, hi: number, unit: string): string => 
   const [a, b, c] = banded(v, lo, hi);
   return a === "n/a" ? a : `${a} ${unit}${Number.isFinite(lo) && Number.isFinite(hi) ? ` <span class="small">[${b}, ${c}]</span>` : ""}`;
 };
+/** A plot with its save buttons (SVG and PNG, made in the page by the viewer script; offline). */
+const saveable = (svg: string, id: string): string =>
+  `<figure class="plot-box">${svg}<figcaption class="save"><button type="button" data-save="${id}" data-as="svg">save SVG</button><button type="button" data-save="${id}" data-as="png">save PNG</button></figcaption></figure>`;
 /** A quantity in an engineering unit (value given in SI). */
 const eng = (v: number | null | undefined, q: keyof typeof ENGINEERING): string =>
   v === null || v === undefined || !Number.isFinite(v) ? "n/a" : `${sig(v * ENGINEERING[q].factor)} ${ENGINEERING[q].unit}`;
@@ -94,12 +98,29 @@ export function buildReport(input: ReportInput): string {
   const stretches: ShadedStretch[] = segs.map((g) => ({ s0: g.s0, s1: g.s1, kind: g.kind, label: `${g.index + 1} ${KIND_STYLE[g.kind].letter}` }));
   const sU = Float64Array.from(p.s, (v) => v * k);
   const inv = (x: Float64Array) => Float64Array.from(x, (v) => v / k);
+  // shaded zones: within one resolution length of an open end (flag 4), smoothing bias comparable to the band (flag 16)
+  const zones: Zone[] = [];
+  for (const [bit, kind] of [[FLAG_END, "end"], [FLAG_BIAS, "bias"]] as const) {
+    let start = -1;
+    for (let i = 0; i <= p.n; ++i) {
+      const on = i < p.n && (p.flags[i] & bit) !== 0;
+      if (on && start < 0) start = i;
+      if (!on && start >= 0) {
+        // a run covers half the gap to its neighbours on each side, so a single flagged sample still shows
+        const a = start > 0 ? (sU[start - 1] + sU[start]) / 2 : sU[start], b = i < p.n ? (sU[i - 1] + sU[i]) / 2 : sU[i - 1];
+        zones.push({ s0: a, s1: b, kind });
+        start = -1;
+      }
+    }
+  }
   const kappaPlot = profilePlot({
+    zones,
     id: "kappa-plot", title: "curvature along the wire with its 95% band", s: sU,
     value: inv(p.kappa), lo: inv(p.kappaLo), hi: inv(p.kappaHi),
     xLabel: `arc length s (${unit})`, yLabel: `curvature \u03ba (1/${unit})`, stretches, fromZero: true,
   });
   const tauPlot = profilePlot({
+    zones,
     id: "tau-plot", title: "torsion along the wire with its 95% band", s: sU,
     value: inv(p.tau), lo: inv(p.tauLo), hi: inv(p.tauHi),
     xLabel: `arc length s (${unit})`, yLabel: `torsion \u03c4 (1/${unit})`, stretches, zeroLine: true,
@@ -171,11 +192,14 @@ export function buildReport(input: ReportInput): string {
     });
     const system = reducedSystem(a.material);
     const ferro = a.material.order === "ferro";
-    phaseSection = `<div class="twocol"><div>${phaseMap(system, pts, { intrinsic: a.material.intrinsic !== null })}</div><div>
-<p>Each stretch is a marker at its mean reduced torsion \u03c4&#8201;l and curvature \u03ba&#8201;l (l = ${num(doc.material?.magneticLength ?? null, unit)}), with its 95% bars.
+    phaseSection = `<div class="twocol"><div>${saveable(phaseMap(system, pts, { intrinsic: a.material.intrinsic !== null, closedRing: p.closed }), "phase-map")}</div><div>
+<p>Each stretch is a marker at its mean reduced torsion \u03c4&#8201;l and curvature \u03ba&#8201;l (l = ${num(toNm(doc.material?.magneticLength ?? null), "nm")}), with its 95% bars.
 Shaded: the homogeneous state is linearly unstable there. Line: where the best periodic texture of an infinite helix and the homogeneous state have equal energy
-(${ferro ? "periodic above it" : "periodic below it"}; from the project's reference table${a.material.intrinsic !== null ? ", plain system without the intrinsic term, which the stretch labels do include" : ""}).</p>
-<p class="small">Straight and planar stretches are labelled with torsion 0; ${ferro ? "a closed ferromagnetic ring switches between vortex and onion states at \u03ba l \u2248 0.657 and an open arc turns periodic at 2/\u03c0, " : "any planar curve keeps the homogeneous state n = B, "}so the line applies to helical stretches.</p>
+(${ferro ? "periodic above it" : "periodic below it"}${a.material.intrinsic !== null ? "; drawn for the material without its intrinsic anisotropy term, which the stretch labels do include" : ""}).
+A marker moved aside to stay readable has a thin leader to its true position (a dot).</p>
+<p class="small">Straight and planar stretches sit at torsion 0. ${ferro
+    ? `Planar stretches follow their own rules: an open arc turns periodic at \u03ba l = 2/\u03c0, and a closed ring switches from the vortex to the onion state at \u03ba l \u2248 ${RING_SWITCH_FM}${p.closed ? " (dashed mark)" : ""}; the line applies to helical stretches.`
+    : "A planar antiferromagnetic curve keeps the homogeneous state n = B; the line applies to helical stretches."}</p>
 ${categoryLegend([1, 2, 3, 4])}
 <p class="small">Marker shapes: circle stable, triangle metastable, square unstable, diamond uncertain.</p></div></div>`;
     const land = a.model.landscape;
@@ -187,7 +211,7 @@ ${categoryLegend([1, 2, 3, 4])}
       });
       const rows = doc.pinning.slice(0, MAX_SITE_ROWS).map((s) =>
         `<tr><td class="num">${s.rank}</td><td class="num">${sPos(s.s)}</td><td class="num">${eng(s.depthJ, "energy")}</td><td class="num">${eng(s.depthJ, "energyMeV")}</td><td class="num">${num(s.depthKT)}</td><td class="num">${num(s.depthReduced)}</td></tr>`).join("");
-      pinningSection = `${plot}
+      pinningSection = `${saveable(plot, "pinning-plot")}
 <p class="small">Wall energy of a ${ferro ? "head-to-head wall" : "wall"} held at each position along the relaxed texture (solid)${land.firstOrder.some((v) => Number.isFinite(v)) ? ", first-order estimate from the curvature (dashed)" : ""}. Numbers: the deepest ${Math.min(LABELLED_SITES, doc.pinning.length)} sites by rank. Method: the wall is held at each position and the texture around it relaxed${ferro ? "; the dashed first-order estimate is the wall energy of a straight wire lowered by the curvature it sits on, weighted by the wall profile" : ""}.</p>
 ${doc.pinning.length > 0 ? `<table><thead><tr><th class="num">rank</th><th class="num">s (${unit})</th><th class="num">depth</th><th class="num">depth</th><th class="num">depth (k<sub>B</sub>T at ${num(doc.material?.temperature ?? null, "K")})</th><th class="num">depth (K l area)</th></tr></thead><tbody>${rows}</tbody></table>${doc.pinning.length > MAX_SITE_ROWS ? `<p class="small">${doc.pinning.length - MAX_SITE_ROWS} more sites in model.json.</p>` : ""}` : "<p>No pinning sites found: the landscape has no local minimum deeper than its noise floor.</p>"}`;
     } else {
@@ -197,6 +221,34 @@ ${doc.pinning.length > 0 ? `<table><thead><tr><th class="num">rank</th><th class
     const what = "Give a material (<code>--material material.json</code> with the order and exchange and anisotropy, or the magnetic length) to add";
     phaseSection = `<p>${what} the phase map: each stretch placed at its reduced curvature and torsion against the boundary of the periodic state and the stability line.</p>`;
     pinningSection = `<p>${what} the domain-wall pinning landscape and the ranked pinning sites.</p>`;
+  }
+
+  // magnons (antiferromagnet): branches at k = 0, the dip of the lower branch and its depth, ring levels
+  let magnonSection = "";
+  const withMagnons = segs.filter((g) => g.magnons !== null);
+  if (withMagnons.length > 0) {
+    const omega0 = withMagnons.find((g) => g.magnons?.omega0 !== null)?.magnons?.omega0 ?? null;
+    const ghz = (v: number | null): string => (omega0 === null || v === null ? "" : `<br><span class="small">${sig((v * omega0) / (2 * Math.PI) / 1e9)} GHz</span>`);
+    const plot = magnonPanel({
+      stretches: withMagnons.map((g) => ({
+        label: String(g.index + 1), s0: g.s0, s1: g.s1, lower0: g.magnons!.lower0, upper0: g.magnons!.upper0,
+        lowerMin: g.magnons!.lowerMin, depth: g.magnons!.depth, unstable: g.magnons!.unstable,
+      })),
+      shading: stretches, ringLevels: doc.ringLevels, xLabel: `arc length s (${unit})`,
+      sMin: Math.min(0, sU[0] ?? 0), sMax: p.closed ? p.length * k : sU[sU.length - 1] ?? 1,
+    });
+    const rows = withMagnons.map((g) => {
+      const m = g.magnons!;
+      return `<tr><td class="num">${g.index + 1}</td><td class="num">${num(m.lower0)}${ghz(m.lower0)}</td><td class="num">${num(m.upper0)}${ghz(m.upper0)}</td>` +
+        `<td class="num">${num(m.kMin)}</td><td class="num">${num(m.lowerMin)}${ghz(m.lowerMin)}</td><td class="num">${num(m.depth)}</td><td>${m.unstable ? "unstable: no gap" : escapeHtml(m.note ?? "")}</td></tr>`;
+    }).join("");
+    const ring = doc.ringLevels !== null && doc.ringLevels.length > 0
+      ? `<p class="small">Closed ring made of one arc: its magnon levels j = ${doc.ringLevels.map((r) => r.j).join(", ")} (lower / upper): ${doc.ringLevels.map((r) => `${num(r.lower)} / ${num(r.upper)}`).join("; ")}.</p>` : "";
+    magnonSection = `<section id="magnons"><h2>Magnon gaps (antiferromagnet)</h2>
+${saveable(plot, "magnon-panel")}
+<p class="small">Per stretch: the lower (teal) and upper (dark blue) branch at wave number k = 0; where curvature and torsion pull the lower branch below its k = 0 value, its bottom is dashed and the arrow gives the depth of the dip. Frequencies in units of c/l (c: magnon speed, l: magnetic length)${omega0 !== null ? `, and in GHz with c/l = ${sig(omega0)} rad/s` : "; give magnonSpeed in the material for GHz"}.</p>
+<table><thead><tr><th class="num">#</th><th class="num">lower, k = 0</th><th class="num">upper, k = 0</th><th class="num">k at dip (1/l)</th><th class="num">lower at dip</th><th class="num">depth</th><th>note</th></tr></thead><tbody>${rows}</tbody></table>
+${ring}</section>`;
   }
 
   // 3D view data
@@ -297,10 +349,10 @@ The centre line is a smoothing-spline fit of a traced wire; bands are 95% bootst
 The model is valid only for a thin wire whose curvature and torsion radii are much larger than the lattice spacing and the wire thickness, for stretches several magnetic lengths long, without applied field or damping.
 Curvature that varies on scales shorter than the resolution length (${num(doc.geometry.resolution, unit)}) is smoothed out.</aside></section>
 <section id="profiles"><h2>Curvature and torsion along the wire</h2>
-${kappaPlot}
-${tauPlot}
+${saveable(kappaPlot, "kappa-plot")}
+${saveable(tauPlot, "tau-plot")}
 <ul class="kinds">${kinds}</ul>
-<p class="small">Line: estimate; filled: 95% bootstrap band. Stretches are numbered above the plots. Torsion follows B\u2032 = \u2212\u03c4N (a right-handed helix has \u03c4 > 0); it is not drawn where the curvature cannot be told from zero.</p>
+<p class="small">Line: estimate; filled: 95% bootstrap band. Stretches are numbered above the plots.${zones.some((z) => z.kind === "end") ? " Grey shade: within one resolution length of an open end, where the fit's bias is larger." : ""}${zones.some((z) => z.kind === "bias") ? " Amber shade: the smoothing bias is comparable to the band (a feature near the resolution length), so the band may under-cover there." : ""} Torsion follows B\u2032 = \u2212\u03c4N (a right-handed helix has \u03c4 > 0); it is not drawn where the curvature cannot be told from zero.</p>
 </section>
 <section id="view3d"><h2>3D view</h2>
 <div class="controls" role="group" aria-label="colour by"><span>colour by:</span>
@@ -323,6 +375,7 @@ The tube is drawn no thinner than 0.6% and no thicker than 4% of the wire's size
 </section>
 <section id="phase"><h2>Phase map</h2>${phaseSection}</section>
 <section id="pinning"><h2>Pinning landscape</h2>${pinningSection}</section>
+${magnonSection}
 <section id="stretches"><h2>Stretches</h2>
 <table><thead>${head}</thead><tbody>${tableRows}</tbody></table>
 <p class="small">Stretch means with 95% bands from the bootstrap replicates.${hasModel ? " Tilt: FM from T toward B, AFM from B toward T. DMI: geometric 2A\u221a(\u03ba\u00b2+\u03c4\u00b2)." : ""}</p>

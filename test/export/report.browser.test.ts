@@ -3,7 +3,7 @@
  * no network request, plots and the 3D canvas rendered (non-blank pixels), a screenshot saved.
  * Skipped locally when /usr/bin/chromium is missing; under CI (env CI set) a missing Chromium fails.
  */
-import { existsSync, mkdtempSync, rmSync } from "node:fs";
+import { existsSync, mkdtempSync, readFileSync, rmSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { pathToFileURL } from "node:url";
@@ -172,6 +172,35 @@ describe.skipIf(!hasChromium)("report.html in headless Chromium", () => {
     expect(await changedFraction(before, await canvasShot())).toBeGreaterThan(0.0005);
     await page.click("#view3d-points");
     expect(errors).toEqual([]);
+  });
+
+  it("saves every plot as a standalone SVG and a PNG from the page, offline", async () => {
+    const ids = await page.$$eval("button[data-save][data-as=svg]", (bs) => bs.map((b) => (b as unknown as { dataset: { save: string } }).dataset.save));
+    expect(ids).toEqual(["kappa-plot", "tau-plot", "phase-map", "pinning-plot"]);
+    for (const id of ids) {
+      const [svgDl] = await Promise.all([page.waitForEvent("download"), page.click(`button[data-save="${id}"][data-as=svg]`)]);
+      expect(svgDl.suggestedFilename()).toBe(`${id}.svg`);
+      const svgPath = join(root, `${id}.svg`);
+      await svgDl.saveAs(svgPath);
+      const svg = readFileSync(svgPath, "utf8");
+      // a standalone SVG document: XML declaration, the svg root in the SVG namespace, its styles inside, the plot's paths
+      expect(svg.startsWith('<?xml version="1.0" encoding="UTF-8"?>\n<svg')).toBe(true);
+      expect(svg).toContain('xmlns="http://www.w3.org/2000/svg"');
+      expect(svg).toMatch(/<style[^>]*>svg \{ font:/);
+      expect(svg).toMatch(/<\/svg>\s*$/);
+      const [pngDl] = await Promise.all([page.waitForEvent("download"), page.click(`button[data-save="${id}"][data-as=png]`)]);
+      expect(pngDl.suggestedFilename()).toBe(`${id}.png`);
+      const pngPath = join(root, `${id}.png`);
+      await pngDl.saveAs(pngPath);
+      const png = readFileSync(pngPath);
+      // PNG signature and IHDR size (PNG specification, section 5.2 and 11.2.2): twice the plot's viewBox
+      expect([...png.subarray(0, 8)]).toEqual([0x89, 0x50, 0x4e, 0x47, 0x0d, 0x0a, 0x1a, 0x0a]);
+      const viewBox = /viewBox="0 0 (\d+) (\d+)"/.exec(svg)!;
+      expect(png.readUInt32BE(16)).toBe(2 * Number(viewBox[1]));
+      expect(png.readUInt32BE(20)).toBe(2 * Number(viewBox[2]));
+    }
+    expect(errors).toEqual([]);
+    expect(requests.filter((u) => !u.startsWith("data:"))).toEqual([]);
   });
 
   it("switches the colouring and its legend, still without errors, and saves a screenshot", async () => {

@@ -8,6 +8,7 @@ import * as THREE from "three";
 import { OrbitControls } from "three/examples/jsm/controls/OrbitControls.js";
 import { curvatureColor, stateColor, torsionColor, type Rgb } from "../colorScales.js";
 import { niceLength } from "../niceLength.js";
+import { setUpSaveButtons } from "./savePlots.js";
 import { symEigen3 } from "../../frame/symEigen3.js";
 import { browser, type ViewerCanvas, type ViewerElement } from "./dom.js";
 
@@ -293,6 +294,11 @@ function start(): void {
   doc.body.dataset.rendered = "1";
 }
 
+try {
+  setUpSaveButtons();
+} catch {
+  // the plots stay readable without their save buttons
+}
 try {
   start();
 } catch (e) {
