@@ -25,6 +25,9 @@ describe("analyze: model.json run record", () => {
       expect(readdirSync(join(root, "o")).sort()).toEqual(
         ["centerline.vtp", "chain.csv", "mask.ovf", "model.json", "profile.csv", "report.html", "texture-binary8.ovf", "texture.ovf", "tube.vtp", "wire.ply"]);
       expect(doc.outputs.exports?.map((e) => e.format)).toEqual(["vtp", "vtp", "ovf-text", "ovf-binary8", "ovf-text"]);
+      // the folder holds only twistline outputs, so --force may replace it
+      const again = await run([...argv.slice(0, 2), "--out", join(root, "o"), "--bootstrap", "0", "--export", "vtp", "--force", "--quiet"]);
+      expect(again.code, again.stderr).toBe(0);
       expect(doc.tool.version).toBe((JSON.parse(readFileSync("package.json", "utf8")) as { version: string }).version);
     } finally {
       rmSync(root, { recursive: true, force: true });
