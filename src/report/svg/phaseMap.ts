@@ -87,9 +87,22 @@ export function phaseMap(system: ReducedSystem, points: readonly PhasePoint[], o
   out.push(`<g class="unstable"><path class="region" d="${region.fill}"/><path class="edge" d="${region.line}"/></g>`);
   out.push(axes(box, x, y, "reduced torsion \u03c4 l", "reduced curvature \u03ba l"));
   // boundary line, mirrored, as a smooth curve through the table's rows (clipped to the plot)
-  const rows = ref.filter(([t]) => t <= X * 1.0001);
+  const rows: (readonly [number, number])[] = ref.filter(([t]) => t <= X * 1.0001);
+  const kX = boundaryAt(order, X);
+  if (rows[rows.length - 1][0] < X * 0.9999 && Number.isFinite(kX)) rows.push([X, kX]);
   const mirrored = [...rows.slice(1).reverse().map(([t, k]) => [-t, k] as const), ...rows];
-  const pts = mirrored.filter(([, k]) => k <= Y).map(([t, k]) => [x(t), y(k)] as const);
+  // keep the part below the top of the plot, cut where it crosses it (linear between rows)
+  const inside: (readonly [number, number])[] = [];
+  for (let i = 0; i < mirrored.length; ++i) {
+    const [t, k] = mirrored[i];
+    const prev = mirrored[i - 1];
+    if (prev !== undefined && (prev[1] <= Y) !== (k <= Y)) {
+      const f = (Y - prev[1]) / (k - prev[1]);
+      inside.push([prev[0] + f * (t - prev[0]), Y]);
+    }
+    if (k <= Y) inside.push([t, k]);
+  }
+  const pts = inside.map(([t, k]) => [x(t), y(k)] as const);
   if (pts.length > 1) out.push(`<path class="boundary" d="${smoothPath(pts)}"/>`);
   // name the regions clear of the line: on the left half, halfway between the line and the frame
   const tl = -0.6 * X;
@@ -109,25 +122,35 @@ export function phaseMap(system: ReducedSystem, points: readonly PhasePoint[], o
   if (options.intrinsic) out.push(`<text class="note" x="${px(box.left + 6)}" y="${px(box.height - box.bottom - 6)}">line: plain system (no intrinsic term)</text>`);
   // points with error bars; markers moved aside (with a leader) where they would cover each other
   out.push(`<g class="points">`);
+  // markers first (each moved to a free spot if needed), then the labels, clear of every marker and earlier label
   const taken: { x: number; y: number }[] = [];
-  const labels: { x: number; y: number }[] = [];
-  for (const p of points) {
+  const placed = points.map((p) => {
     const tv = Number.isFinite(p.tau) ? p.tau : 0;
     const cx = x(Math.max(-X, Math.min(X, tv))), cy = y(Math.min(Y, Math.max(0, p.kappa)));
+    const spot = freeSpot(cx, cy, taken, 13);
+    taken.push(spot);
+    return { p, cx, cy, spot };
+  });
+  const labels: { x: number; y: number }[] = [];
+  const clear = (lx: number, ly: number): boolean =>
+    labels.every((q) => Math.abs(q.x - lx) >= 16 || Math.abs(q.y - ly) >= 11) &&
+    taken.every((q) => Math.abs(q.x - (lx + 3)) >= 9 || Math.abs(q.y - (ly - 4)) >= 9);
+  for (const { p, cx, cy, spot } of placed) {
     if (Number.isFinite(p.kappaLo) && Number.isFinite(p.kappaHi)) {
       out.push(`<line class="bar" x1="${px(cx)}" x2="${px(cx)}" y1="${px(y(Math.max(0, Math.min(Y, p.kappaLo))))}" y2="${px(y(Math.max(0, Math.min(Y, p.kappaHi))))}"/>`);
     }
     if (Number.isFinite(p.tau) && Number.isFinite(p.tauLo) && Number.isFinite(p.tauHi)) {
       out.push(`<line class="bar" y1="${px(cy)}" y2="${px(cy)}" x1="${px(x(Math.max(-X, p.tauLo)))}" x2="${px(x(Math.min(X, p.tauHi)))}"/>`);
     }
-    const spot = freeSpot(cx, cy, taken, 13);
-    taken.push(spot);
     const moved = spot.x !== cx || spot.y !== cy;
     const marker = MARKERS[p.category] ?? MARKERS[1];
     const leader = moved ? `<line class="leader" x1="${px(cx)}" y1="${px(cy)}" x2="${px(spot.x)}" y2="${px(spot.y)}"/><circle class="true-spot" cx="${px(cx)}" cy="${px(cy)}" r="1.8"/>` : "";
-    // label to the upper right of the marker, moved down while it would overlap another label or marker
-    let lx = spot.x + 8, ly = spot.y - 7;
-    while (labels.some((q) => Math.abs(q.x - lx) < 16 && Math.abs(q.y - ly) < 11) || taken.some((q) => q !== spot && Math.abs(q.x - lx - 3) < 9 && Math.abs(q.y - ly + 4) < 9)) ly += 11;
+    // label: upper right of the marker, else lower right, left, then further down until clear
+    const tries: [number, number][] = [[8, -7], [8, 12], [-16, -7], [-16, 12]];
+    let [lx, ly] = [spot.x + 8, spot.y - 7];
+    const found = tries.find(([dx, dy]) => clear(spot.x + dx, spot.y + dy));
+    if (found !== undefined) [lx, ly] = [spot.x + found[0], spot.y + found[1]];
+    else while (!clear(lx, ly) && ly < box.height) ly += 11;
     labels.push({ x: lx, y: ly });
     out.push(`<g class="pt">${leader}${marker(spot.x, spot.y, toHex(stateColor(p.category)))}<text x="${px(lx)}" y="${px(ly)}">${escapeHtml(p.label)}</text></g>`);
   }
