@@ -161,7 +161,7 @@ export function buildReport(input: ReportInput): string {
     const why = outsideBandReason("curvature", b.value, b.lo, b.hi);
     if (why !== null) wholeNotes.push(`${what}: ${why}`);
   }
-  const whyTau = outsideBandReason("torsion", summary.tauAbsMean.value, summary.tauAbsMean.lo, summary.tauAbsMean.hi);
+  const whyTau = outsideBandReason("|torsion|", summary.tauAbsMean.value, summary.tauAbsMean.lo, summary.tauAbsMean.hi);
   if (whyTau !== null) wholeNotes.push(`mean |torsion|: ${whyTau}`);
   const counts = (["straight", "arc", "helix", "irregular"] as const).map((kind) => `${segs.filter((g) => g.kind === kind).length} ${kind}`).join(", ");
   facts.push(["stretches", `${segs.length} (${counts})`]);

@@ -72,15 +72,16 @@ export function banded(value: number | null, lo: number | null, hi: number | nul
 
 /**
  * Why an estimate lies outside its own 95% band, or null when it lies inside (or there is no band).
- * Curvature is never negative, so where it is near zero the noise in each bootstrap replicate can
- * only add to it and the replicates sit above the fit; elsewhere the replicates are centred away
- * from the fit, meaning the smoothing bias is larger than the noise and the band is too narrow.
+ * Curvature and |torsion| are never negative, so where they are small the noise in each bootstrap
+ * replicate can only add to them and the replicates sit above the fit: a band above the estimate is
+ * that bias, and the estimate is the better value. Otherwise the replicates are centred away from
+ * the fit, meaning the smoothing bias is larger than the noise and the band is too narrow.
  */
-export function outsideBandReason(quantity: "curvature" | "torsion", value: number | null, lo: number | null, hi: number | null): string | null {
+export function outsideBandReason(quantity: "curvature" | "torsion" | "|torsion|", value: number | null, lo: number | null, hi: number | null): string | null {
   if (value === null || lo === null || hi === null || !Number.isFinite(value) || !(lo <= hi)) return null;
   if (value >= lo && value <= hi) return null;
-  if (quantity === "curvature" && value < lo && lo < 3 * (hi - lo)) {
-    return "curvature estimate below its band: curvature cannot be negative, so near zero the noise of each bootstrap replicate only adds to it; " +
+  if (quantity !== "torsion" && value < lo) {
+    return `${quantity} estimate below its band: ${quantity} cannot be negative, so where it is small the noise of each bootstrap replicate only adds to it; ` +
       "the estimate is the better value and the band's upper end an upper bound";
   }
   return `${quantity} estimate ${value < lo ? "below" : "above"} its band: the bootstrap replicates are centred away from the fit ` +

@@ -1,5 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { buildWireOutputs } from "../../src/export/wireOutputs.js";
+import { wireSummary } from "../../src/export/wireSummary.js";
 import { escapeHtml, inlineScript, scriptJson } from "../../src/report/escapeHtml.js";
 import { analysisFixture } from "./analysisFixture.js";
 
@@ -109,5 +110,12 @@ describe("buildReport numbers", () => {
     printedAs(fact("anisotropy K").replace(" kJ/m\u00b3", ""), doc.material!.anisotropy! / 1e3, "anisotropy");
     printedAs(fact("magnetic length l").replace(" nm", ""), doc.material!.magneticLength, "magnetic length");
     printedAs(fact("length of the fitted centre line").replace(" nm", ""), doc.geometry.length, "length");
+    // mean |tau| is the mean of |tau| (wireSummary, the same numbers as summary.csv), with its band
+    const s = wireSummary(a, doc);
+    const cell = html.split("<tr><td>mean |torsion| (of |\u03c4|, arc-length weighted)</td><td>")[1].split("</td>")[0];
+    const m = /^(\S+) 1\/nm <span class="small">\[(\S+), (\S+)\]<\/span>$/.exec(cell)!;
+    printedAs(m[1], s.tauAbsMean.value, "mean |tau|");
+    printedAs(m[2], s.tauAbsMean.lo, "mean |tau| lo");
+    printedAs(m[3], s.tauAbsMean.hi, "mean |tau| hi");
   });
 });

@@ -45,7 +45,9 @@ describe("outsideBandReason(quantity, value, lo, hi)", () => {
     expect(outsideBandReason("curvature", 1, 0.9, 1.1)).toBeNull();
     expect(outsideBandReason("torsion", 1, null, null)).toBeNull();
     expect(outsideBandReason("curvature", 0.00126, 0.00205, 0.00429)).toMatch(/^curvature estimate below its band: curvature cannot be negative/);
-    expect(outsideBandReason("curvature", 0.0075, 0.0082, 0.0083)).toMatch(/^curvature estimate below its band: the bootstrap replicates are centred away/);
+    expect(outsideBandReason("curvature", 0.0075, 0.0082, 0.0083)).toMatch(/^curvature estimate below its band: curvature cannot be negative/);
+    expect(outsideBandReason("curvature", 0.02, 0.018, 0.019)).toMatch(/^curvature estimate above its band: the bootstrap replicates are centred away/);
+    expect(outsideBandReason("|torsion|", 0, 1e-6, 3e-4)).toMatch(/^\|torsion\| estimate below its band: \|torsion\| cannot be negative/);
     expect(outsideBandReason("torsion", 2, 0.5, 1)).toMatch(/^torsion estimate above its band/);
   });
 });
