@@ -9,7 +9,7 @@ import { join } from "node:path";
 import { pathToFileURL } from "node:url";
 import { chromium, type Browser, type Page } from "playwright-core";
 import { afterAll, beforeAll, describe, expect, it } from "vitest";
-import { DEMO_MATERIAL, demoDataDir } from "../../cli/demo.js";
+import { DEMO_AFM, DEMO_MATERIAL, demoDataDir } from "../../cli/demo.js";
 import { run } from "../cli/harness.js";
 
 const CHROMIUM = "/usr/bin/chromium";
@@ -202,6 +202,25 @@ describe.skipIf(!hasChromium)("report.html in headless Chromium", () => {
     expect(errors).toEqual([]);
     expect(requests.filter((u) => !u.startsWith("data:"))).toEqual([]);
   });
+
+  it("draws the antiferromagnet's magnon panel (demo AFM coil) and saves it, without errors", async () => {
+    const dir = demoDataDir();
+    const r = await run(["analyze", join(dir, DEMO_AFM.wire), "--material", join(dir, DEMO_AFM.material), "--out", join(root, "afm"), "--bootstrap", "40", "--quiet"]);
+    expect(r.code, r.stderr).toBe(0);
+    const afm = await browser.newPage({ viewport: { width: 900, height: 1200 } });
+    const afmErrors: string[] = [], afmRequests: string[] = [];
+    afm.on("console", (m) => { if (m.type() === "error") afmErrors.push(m.text()); });
+    afm.on("pageerror", (e) => afmErrors.push(`pageerror: ${e.message}`));
+    afm.on("request", (q) => { if (!q.url().startsWith("file:") && !q.url().startsWith("data:")) afmRequests.push(q.url()); });
+    await afm.goto(pathToFileURL(join(root, "afm", "report.html")).href);
+    await afm.waitForSelector("body[data-rendered]", { timeout: 30_000 });
+    expect(await afm.locator("#magnon-panel .magnons line").count()).toBeGreaterThan(5);
+    const [dl] = await Promise.all([afm.waitForEvent("download"), afm.click('button[data-save="magnon-panel"][data-as=png]')]);
+    expect(dl.suggestedFilename()).toBe("magnon-panel.png");
+    await afm.close();
+    expect(afmErrors).toEqual([]);
+    expect(afmRequests).toEqual([]);
+  }, 60_000);
 
   it("switches the colouring and its legend, still without errors, and saves a screenshot", async () => {
     await page.click('#view3d button[data-mode="tau"]');
