@@ -96,7 +96,7 @@ describe("OVF 2.0 exports (texture.ovf, texture-binary8.ovf, mask.ovf)", () => {
     }
     // cylinder pi r^2 L plus two hemispherical caps (distance to a segment): (pi r^2 L + 4/3 pi r^3) / cell^3
     const expected = (Math.PI * r * r * L + (4 / 3) * Math.PI * r ** 3) / cell ** 3;
-    expect(Math.abs(inside - expected) / expected).toBeLessThan(0.03); // measured below 1%
+    expect(Math.abs(inside - expected) / expected).toBeLessThan(0.03); // measured +2.1% (cells cut by the surface)
   });
 
   it("text and binary-8 files read back to the same grid; header sizes and base agree", () => {
