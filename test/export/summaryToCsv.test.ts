@@ -38,7 +38,7 @@ describe("wireSummary and summaryToCsv", () => {
     const trace = { xyz: new Float64Array(600), dims: 3 as const, source: profile.source, diagnostics: [] };
     const a: Analysis = { trace, profile, segments: segment(profile), material: null, model: null, seed: 1, timings: { profile: 0, segment: 0, model: 0 } };
     const s = wireSummary(a, buildModelDocument(a, { unit: "nm", outputs }));
-    expect(Math.abs(s.tauMean.value)).toBeLessThan(1e-4 * 0.005); // measured ~0 (the halves cancel up to the sample placement)
+    expect(Math.abs(s.tauMean.value)).toBeLessThan(1e-4 * 0.005); // the halves cancel up to the sample placement
     expect(s.tauAbsMean.value).toBeCloseTo(0.005, 9);
     expect(s.tauAbsMean.lo).toBeLessThanOrEqual(s.tauAbsMean.hi);
     expect(summaryToCsv([{ wire: "w", file: "w.csv", summary: s, error: null, seconds: 1 }])).toContain("tau_abs_mean,tau_abs_mean_lo");
