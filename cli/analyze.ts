@@ -35,6 +35,8 @@ export interface PipelineFlags extends InputFlags {
   radius?: string;
   force?: true;
   quiet?: true;
+  export?: string;
+  grid?: string;
 }
 
 /** Checked pipeline options; lengths in metres. */
@@ -64,6 +66,17 @@ export function checkPipelineFlags(where: string, input: string, flags: Pipeline
   if (flags.outUnit !== undefined) req.outUnit = parseLengthUnitOption(where, "--out-unit", flags.outUnit);
   if (flags.spacing !== undefined) req.spacing = parseLengthOption(where, "--spacing", flags.spacing);
   if (flags.radius !== undefined) req.radius = parseLengthOption(where, "--radius", flags.radius);
+  if (flags.export !== undefined) {
+    const kinds = flags.export.split(",").map((x) => x.trim()).filter((x) => x !== "");
+    const bad = kinds.find((x) => x !== "vtp" && x !== "ovf");
+    if (bad !== undefined || kinds.length === 0) throw new ParameterError(where, "--export", `must be a comma list of vtp, ovf (got ${JSON.stringify(flags.export)})`);
+    if (kinds.includes("vtp")) req.vtp = true;
+    if (kinds.includes("ovf") && flags.grid === undefined) throw new ParameterError(where, "--export", "ovf needs --grid <length> (the cell size)");
+  }
+  if (flags.grid !== undefined) {
+    req.grid = parseLengthOption(where, "--grid", flags.grid);
+    if (req.materialFile === null) throw new ParameterError(where, "--grid", "the OVF texture needs --material (the relaxed texture comes from the model)");
+  }
   if (req.bootstrap > 100_000) throw new ParameterError(where, "--bootstrap", `must be at most 100000 (got ${req.bootstrap})`);
   return req;
 }
@@ -85,6 +98,9 @@ export function jobOf(req: PipelineRequest, input: string, material: Material | 
     ...(req.outUnit !== undefined ? { outUnit: req.outUnit } : {}),
     ...(req.spacing !== undefined ? { spacing: req.spacing } : {}),
     ...(req.radius !== undefined ? { radius: req.radius } : {}),
+    ...(req.argv !== undefined ? { argv: req.argv } : {}),
+    ...(req.vtp !== undefined ? { vtp: req.vtp } : {}),
+    ...(req.grid !== undefined ? { grid: req.grid } : {}),
   };
 }
 
@@ -138,6 +154,12 @@ export const PIPELINE_HELP = {
   force: "replace an existing output folder (only one holding nothing but twistline outputs)",
 } as const;
 
+/** The arguments the program was parsed from (commander keeps them as `rawArgs`, untyped), for model.json. */
+function rawArgsOf(cmd: { readonly parent: unknown }): readonly string[] {
+  const raw = (cmd.parent as { rawArgs?: unknown } | null)?.rawArgs;
+  return Array.isArray(raw) && raw.every((x) => typeof x === "string") ? raw : [];
+}
+
 /** Adds `analyze` to the program. */
 export function addAnalyzeCommand(program: Command, io: Io): void {
   program
@@ -164,9 +186,11 @@ export function addAnalyzeCommand(program: Command, io: Io): void {
     .option("--format <format>", HELP.format)
     .option("--wire <n>", HELP.wire)
     .option("--branches <policy>", HELP.branches)
+    .option("--export <list>", "files for other tools, comma list: vtp (centerline.vtp, tube.vtp: VTK XML PolyData), ovf (needs --grid)")
+    .option("--grid <length>", "cell size, with its unit, of the OVF 2.0 texture exports (texture.ovf text, texture-binary8.ovf, mask.ovf); needs --material")
     .option("--force", PIPELINE_HELP.force)
     .option("--quiet", "print no summary line")
-    .action(async (input, flags) => {
-      await runAnalyze(input, flags.out, checkPipelineFlags(WHERE, input, flags), io);
+    .action(async (input, flags, cmd) => {
+      await runAnalyze(input, flags.out, { ...checkPipelineFlags(WHERE, input, flags), argv: rawArgsOf(cmd) }, io);
     });
 }

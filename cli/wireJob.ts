@@ -10,7 +10,7 @@ import { wireSummary, type WireSummary } from "../src/export/wireSummary.js";
 import { readTraceFile, type ReadOneTraceOptions } from "../src/import/readTrace.js";
 import { parseMaterial } from "../src/physics/parseMaterial.js";
 import type { Material } from "../src/physics/types.js";
-import type { LengthUnit, Trace } from "../src/types.js";
+import { PER_METRE, type LengthUnit, type Trace } from "../src/types.js";
 import { jsonErrorAt } from "./jsonErrorAt.js";
 
 /** Everything needed to analyse one wire into a folder (plain data: it crosses to worker threads). */
@@ -26,6 +26,12 @@ export interface PipelineSettings {
   readonly spacing?: number;
   readonly mesh: MeshFormat;
   readonly radius?: number;
+  /** The command line after the program name, as given (recorded in model.json); absent for demo and batch wires. */
+  readonly argv?: readonly string[];
+  /** Write the VTK PolyData exports. */
+  readonly vtp?: boolean;
+  /** Cell size (m) of the OVF exports. */
+  readonly grid?: number;
 }
 
 export interface WireJob extends PipelineSettings {
@@ -70,6 +76,16 @@ export async function readMaterialFile(path: string): Promise<Material> {
   return parseMaterial(json, path);
 }
 
+/** The `note` of a material file (its provenance), or null; the file was already read and checked. */
+async function materialNote(path: string): Promise<string | null> {
+  try {
+    const json = JSON.parse(await readFile(path, "utf8")) as { note?: unknown };
+    return typeof json.note === "string" ? json.note : null;
+  } catch {
+    return null;
+  }
+}
+
 /**
  * Runs one wire: read (unless given), analyse (profile, stretches, model), build every output in
  * memory, then write the files into `job.dir`. The caller stages `job.dir` and commits or removes it.
@@ -87,13 +103,24 @@ export async function runWireJob(job: WireJob, viewerJs: string): Promise<WireJo
   };
   const analysis = analyzeTrace(trace, options);
   const unit = job.outUnit ?? defaultOutputUnit(trace.source);
+  const k = PER_METRE[unit];
   const outputs = await buildWireOutputs(analysis, {
     unit,
     mesh: job.mesh,
     materialFile: job.materialFile,
+    materialNote: job.materialFile !== null ? await materialNote(job.materialFile) : null,
+    run: {
+      argv: job.argv ?? null,
+      options: {
+        input: job.input, inputUnit: trace.source.unit, pixelSize: trace.source.pixelSize !== undefined ? trace.source.pixelSize * k : null,
+        step: job.step !== undefined ? job.step * k : null,
+      },
+    },
     viewerScript: viewerJs,
     ...(job.spacing !== undefined ? { spacing: job.spacing } : {}),
     ...(job.radius !== undefined ? { radius: job.radius } : {}),
+    ...(job.vtp !== undefined ? { vtp: job.vtp } : {}),
+    ...(job.grid !== undefined ? { grid: job.grid } : {}),
   });
   for (const f of outputs.files) await writeFile(join(job.dir, f.name), f.data);
   return { analysis, outputs, summary: wireSummary(analysis, outputs.document) };

@@ -1,12 +1,16 @@
 import type { Material, StretchModel, WireModel } from "../physics/types.js";
 import { PER_METRE, type LengthUnit } from "../types.js";
 import type { Analysis } from "./analyzeTrace.js";
+import { composeWarnings } from "./composeWarnings.js";
 import { jsonNumber } from "./formatNumber.js";
 import type { MeshFormat } from "./meshToBytes.js";
 import { TOOL_NAME, TOOL_VERSION } from "./version.js";
 
-/** `$id` of src/export/schemas/model.schema.json, written as the document's `$schema`. */
-export const MODEL_SCHEMA_ID = "https://twistline.example/schemas/model.schema.json";
+/**
+ * `$id` of src/export/schemas/model.schema.json, written as the document's `$schema`: a URN (RFC 8141)
+ * naming the format and its version, not a web address (nothing is fetched; the schema ships in the package).
+ */
+export const MODEL_SCHEMA_ID = "urn:twistline:schema:model:1";
 export const MODEL_FORMAT = "twistline-model";
 export const MODEL_FORMAT_VERSION = 1;
 
@@ -25,6 +29,8 @@ type Num = number | null;
 /** Material as written in model.json: lengths in `unit`, area in unit^2. */
 export interface MaterialEntry {
   file: string | null;
+  /** The material file's own note (provenance), or null. */
+  note: string | null;
   order: "ferro" | "antiferro";
   exchange: Num;
   anisotropy: Num;
@@ -67,6 +73,7 @@ export interface ModelDocument {
   formatVersion: number;
   tool: { name: string; version: string };
   note: string;
+  run: RunInfo;
   validity: string;
   unit: LengthUnit;
   units: Record<string, string>;
@@ -85,6 +92,7 @@ export interface ModelDocument {
   outputs: {
     profile: string;
     report: string;
+    exports?: ExportEntry[];
     chain: { file: string; sites: number; spacing: Num; spacingNote: string; columns: string[] };
     mesh: {
       file: string; format: MeshFormat; unit: LengthUnit; offset: number[]; radius: number; radiusSource: string;
@@ -93,10 +101,35 @@ export interface ModelDocument {
   };
 }
 
+/** A value of one option of the run. */
+export type OptionValue = string | number | boolean | null;
+
+/** How the document was made: command line (when there was one) and every option value used. */
+export interface RunInfo {
+  command: string | null;
+  argv: string[] | null;
+  options: Record<string, OptionValue>;
+}
+
+/** Quotes one argument for a POSIX shell when it needs it (common practice: single quotes, ' as '\''). */
+export function shellQuote(arg: string): string {
+  return /^[A-Za-z0-9_@%+=:,./-]+$/.test(arg) ? arg : `'${arg.replace(/'/g, "'\\''")}'`;
+}
+
+/** A file for other tools (lengths in `unit`). */
+export interface ExportEntry {
+  file: string;
+  format: "vtp" | "ovf-text" | "ovf-binary8";
+  content: string;
+  cell?: number;
+  cells?: number[];
+}
+
 /** What the document says about the files written next to it (lengths in `unit`). */
 export interface OutputsInfo {
   readonly profile: string;
   readonly report: string;
+  readonly exports?: readonly ExportEntry[];
   readonly chain: { readonly file: string; readonly sites: number; readonly spacing: number; readonly spacingNote: string; readonly columns: readonly string[] };
   readonly mesh: {
     readonly file: string; readonly format: MeshFormat; readonly offset: readonly number[]; readonly radius: number;
@@ -111,16 +144,21 @@ export interface ModelDocumentOptions {
   readonly outputs: OutputsInfo;
   /** The material file as given (null when the material came from code). */
   readonly materialFile?: string | null;
-  /** Warnings of the export stage (resolution, spacing), appended after the model's. */
+  /** The material file's note (provenance), when it has one. */
+  readonly materialNote?: string | null;
+  /** The command line (arguments after the program name, as given) and the option values used. */
+  readonly run?: { readonly argv: readonly string[] | null; readonly options: Readonly<Record<string, OptionValue>> };
+  /** Specific warnings of the export stage (sharp bends, thin-wire limit, resolution, spacing): listed first (see composeWarnings). */
   readonly extraWarnings?: readonly string[];
 }
 
 /** Material entry in `unit`. */
-export function materialEntry(m: Material, unit: LengthUnit, file: string | null): MaterialEntry {
+export function materialEntry(m: Material, unit: LengthUnit, file: string | null, note: string | null = null): MaterialEntry {
   const k = PER_METRE[unit];
   const len = (v: number | null): Num => (v === null ? null : jsonNumber(v * k));
   return {
     file,
+    note,
     order: m.order,
     exchange: m.exchange === null ? null : jsonNumber(m.exchange),
     anisotropy: m.anisotropy === null ? null : jsonNumber(m.anisotropy),
@@ -189,16 +227,16 @@ export function buildModelDocument(a: Analysis, options: ModelDocumentOptions): 
   const model: WireModel | null = a.model;
   const source: ModelDocument["source"] = { file: p.source.file, unit: p.source.unit };
   if (p.source.pixelSize !== undefined) source.pixelSize = jsonNumber(p.source.pixelSize * k);
-  const warnings: string[] = [];
+  const modelWarnings: string[] = [];
   if (model === null) {
-    warnings.push(
+    modelWarnings.push(
       "geometry only: no material given; with --material (order, exchange and anisotropy, or the magnetic length) each stretch also gets " +
         "its effective DMI and anisotropy, expected state, metastability and the pinning sites",
     );
   } else {
-    warnings.push(...model.warnings);
+    modelWarnings.push(...model.warnings);
   }
-  warnings.push(...(options.extraWarnings ?? []));
+  const warnings = composeWarnings({ model: modelWarnings, specific: options.extraWarnings ?? [], closed: p.closed });
   const o = options.outputs;
   return {
     $schema: MODEL_SCHEMA_ID,
@@ -206,6 +244,11 @@ export function buildModelDocument(a: Analysis, options: ModelDocumentOptions): 
     formatVersion: MODEL_FORMAT_VERSION,
     tool: { name: TOOL_NAME, version: TOOL_VERSION },
     note: MODEL_NOTE,
+    run: {
+      command: options.run?.argv ? [TOOL_NAME, ...options.run.argv].map(shellQuote).join(" ") : null,
+      argv: options.run?.argv ? [...options.run.argv] : null,
+      options: { ...(options.run?.options ?? {}) },
+    },
     validity: MODEL_VALIDITY,
     unit,
     units: {
@@ -236,7 +279,7 @@ export function buildModelDocument(a: Analysis, options: ModelDocumentOptions): 
       planarProjection: p.planarProjection,
       diagnostics: [...p.diagnostics],
     },
-    material: a.material === null ? null : materialEntry(a.material, unit, options.materialFile ?? null),
+    material: a.material === null ? null : materialEntry(a.material, unit, options.materialFile ?? null, options.materialNote ?? null),
     segments: a.segments.map((_, i) => segmentEntry(a, i, model?.segments[i] ?? null, unit)),
     pinning: (model?.pinning ?? []).map((s, i) => ({
       rank: i + 1,
@@ -256,6 +299,7 @@ export function buildModelDocument(a: Analysis, options: ModelDocumentOptions): 
     outputs: {
       profile: o.profile,
       report: o.report,
+      ...(o.exports !== undefined && o.exports.length > 0 ? { exports: o.exports.map((e) => ({ ...e, ...(e.cells ? { cells: [...e.cells] } : {}) })) } : {}),
       chain: { file: o.chain.file, sites: o.chain.sites, spacing: jsonNumber(o.chain.spacing), spacingNote: o.chain.spacingNote, columns: [...o.chain.columns] },
       mesh: {
         file: o.mesh.file, format: o.mesh.format, unit, offset: o.mesh.offset.map((v) => jsonNumber(v) ?? 0),

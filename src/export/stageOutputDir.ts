@@ -28,7 +28,7 @@ export interface StageOptions {
 }
 
 /** File names twistline writes into an output folder (and its per-wire subfolders). */
-const OWN_FILE = /^(profile\.csv|model\.json|chain\.csv|report\.html|summary\.csv|wire\.(ply|stl|obj|glb))$/;
+const OWN_FILE = /^(profile\.csv|model\.json|chain\.csv|report\.html|summary\.csv|wire\.(ply|stl|obj|glb)|centerline\.vtp|tube\.vtp|texture\.ovf|texture-binary8\.ovf|mask\.ovf)$/;
 
 /** The first entry under `dir` that twistline did not write (depth 2: per-wire folders), or null. */
 async function foreignEntry(dir: string, depth = 0): Promise<string | null> {

@@ -18,7 +18,7 @@ export interface SummaryRow {
 export const SUMMARY_COLUMNS = [
   "wire", "file", "status", "error", "unit", "points", "length", "closed", "resolution",
   "kappa_mean", "kappa_mean_lo", "kappa_mean_hi", "kappa_max", "kappa_max_lo", "kappa_max_hi",
-  "tau_mean", "tau_mean_lo", "tau_mean_hi", "tau_max_abs", "tau_max_abs_lo", "tau_max_abs_hi",
+  "tau_mean", "tau_mean_lo", "tau_mean_hi", "tau_abs_mean", "tau_abs_mean_lo", "tau_abs_mean_hi", "tau_max_abs", "tau_max_abs_lo", "tau_max_abs_hi",
   "stretches_straight", "stretches_arc", "stretches_helix", "stretches_irregular",
   "pinning_sites", "deepest_pin_kT", "metastable_length", "periodic_length", "warnings", "seconds",
 ] as const;
@@ -41,7 +41,7 @@ export function summaryToCsv(rows: readonly SummaryRow[]): string {
     `# ${TOOL_NAME} ${TOOL_VERSION}: batch summary, one row per wire`,
     "# note: model estimates, not measurements; bands (_lo, _hi) are 95% bootstrap intervals of the statistic",
     "# units: lengths (length, resolution, metastable_length, periodic_length) in the row's unit; kappa and tau in 1/unit; deepest_pin_kT in k_B T; seconds of wall time",
-    "# kappa_mean, tau_mean: arc-length weighted means; kappa_max: maximum curvature; tau_max_abs: maximum |torsion| (undefined torsion skipped)",
+    "# kappa_mean, tau_mean, tau_abs_mean: arc-length weighted means (tau_abs_mean of |torsion|, not |tau_mean|); kappa_max: maximum curvature; tau_max_abs: maximum |torsion| (undefined torsion skipped)",
     "# stretches_*: stretches of each kind; pinning_sites, deepest_pin_kT, metastable_length, periodic_length: empty without a material",
     SUMMARY_COLUMNS.join(","),
   ];
@@ -56,7 +56,7 @@ export function summaryToCsv(rows: readonly SummaryRow[]): string {
     lines.push([
       ...base, s.unit, String(s.points), f(s.length), String(s.closed), f(s.resolution),
       f(s.kappaMean.value), f(s.kappaMean.lo), f(s.kappaMean.hi), f(s.kappaMax.value), f(s.kappaMax.lo), f(s.kappaMax.hi),
-      f(s.tauMean.value), f(s.tauMean.lo), f(s.tauMean.hi), f(s.tauMaxAbs.value), f(s.tauMaxAbs.lo), f(s.tauMaxAbs.hi),
+      f(s.tauMean.value), f(s.tauMean.lo), f(s.tauMean.hi), f(s.tauAbsMean.value), f(s.tauAbsMean.lo), f(s.tauAbsMean.hi), f(s.tauMaxAbs.value), f(s.tauMaxAbs.lo), f(s.tauMaxAbs.hi),
       String(s.stretches.straight), String(s.stretches.arc), String(s.stretches.helix), String(s.stretches.irregular),
       f(s.pinningSites), f(s.deepestPinKT), f(s.metastableLength), f(s.periodicLength),
       csvField(s.warnings.map(oneLine).join(" | ")), f(r.seconds),

@@ -2,12 +2,17 @@ import { median } from "d3-array";
 import { interactions } from "../physics/interactions.js";
 import { reducedSystem } from "../physics/reducedSystem.js";
 import { buildReport } from "../report/buildReport.js";
-import { PER_METRE, type LengthUnit } from "../types.js";
+import { FLAG_END, PER_METRE, type LengthUnit } from "../types.js";
 import type { Analysis } from "./analyzeTrace.js";
 import { CHAIN_GEOMETRY_COLUMNS, CHAIN_MODEL_COLUMNS, CHAIN_TEXTURE_COLUMNS, chainToCsv, type ChainModel } from "./chainToCsv.js";
 import { brief } from "./brief.js";
+import { jsonNumber } from "./formatNumber.js";
 import { meshToBytes, type MeshFormat } from "./meshToBytes.js";
-import { buildModelDocument, modelToJson, type ModelDocument } from "./modelDocument.js";
+import { ParameterError } from "../errors.js";
+import { buildModelDocument, modelToJson, type ExportEntry, type ModelDocument, type OptionValue } from "./modelDocument.js";
+import { gridToOvf, textureGrid } from "./textureToOvf.js";
+import { TOOL_NAME, TOOL_VERSION } from "./version.js";
+import { wireVtpFiles } from "./wireToVtp.js";
 import { profileToCsv } from "./profileToCsv.js";
 import { resampleWire, type ResampledWire } from "./resampleWire.js";
 import { tubeMesh, type TubeMesh } from "./tubeMesh.js";
@@ -19,6 +24,11 @@ export const OUTPUT_NAMES = {
   chain: "chain.csv",
   report: "report.html",
   mesh: (format: MeshFormat): string => `wire.${format}`,
+  centerlineVtp: "centerline.vtp",
+  tubeVtp: "tube.vtp",
+  textureOvfText: "texture.ovf",
+  textureOvfBinary: "texture-binary8.ovf",
+  maskOvf: "mask.ovf",
 } as const;
 
 /** Options of {@link buildWireOutputs}. Lengths in metres. */
@@ -35,6 +45,21 @@ export interface WireOutputOptions {
   readonly materialFile?: string | null;
   /** The bundled report viewer (see src/report/viewerScript.ts). */
   readonly viewerScript: string;
+  /** Write centerline.vtp and tube.vtp (VTK XML PolyData) too. */
+  readonly vtp?: boolean;
+  /**
+   * Grid cell (m) of the OVF 2.0 exports: the relaxed texture on a regular grid (text and binary-8)
+   * and the wire mask; needs a material. Not written when absent.
+   */
+  readonly grid?: number;
+  /** The material file's note (provenance), for model.json and the report. */
+  readonly materialNote?: string | null;
+  /**
+   * The command line (arguments after the program name, as given; null when not from the command line)
+   * and the caller's option values (input, bootstrap, seed, ...); the values decided here (output unit,
+   * spacing, mesh, radius) are added to them.
+   */
+  readonly run?: { readonly argv: readonly string[] | null; readonly options: Readonly<Record<string, OptionValue>> };
 }
 
 /** One file of an analysis folder. */
@@ -106,34 +131,65 @@ function chainModel(a: Analysis, chain: ResampledWire): ChainModel | null {
   return { interactions: it, texture, order: a.material.order, magneticLength: a.material.magneticLength };
 }
 
-/** Warnings of the export stage: what the resolution and the spacing mean for the model, and features merged into stretches. */
-function exportWarnings(a: Analysis, spacing: number, unit: LengthUnit): string[] {
+/** The model needs radii of curvature and torsion at least this many times the wire thickness (thin-wire limit; common practice, a rule of thumb). */
+export const THIN_WIRE_RATIO = 5;
+
+/**
+ * Specific warnings of the export stage, most serious first: the thin-wire limit broken (radius of
+ * curvature or torsion below THIN_WIRE_RATIO times the thickness, or below the lattice spacing),
+ * sharp bends merged into a stretch, torsion not resolved from zero on curved stretches, then what
+ * the resolution and the spacing mean for the model.
+ */
+export function exportWarnings(a: Analysis, spacing: number, unit: LengthUnit): string[] {
   const w: string[] = [];
   const k = PER_METRE[unit];
   const p = a.profile;
   const l = a.material?.magneticLength;
+  // thin-wire limit: the tightest radius (of curvature, then of torsion) against the thickness and the lattice spacing
+  const t = a.material?.thickness ?? null, d = a.material?.latticeSpacing ?? null;
+  const limit = Math.max(t !== null ? THIN_WIRE_RATIO * t : 0, d ?? 0);
+  if (limit > 0) {
+    for (const [name, arr] of [["curvature", p.kappa], ["torsion", p.tau]] as const) {
+      let peak = 0, at = -1;
+      // samples near an open end are skipped: the fit's bias is larger there (FLAG_END)
+      for (let i = 0; i < p.n; ++i) if ((p.flags[i] & FLAG_END) === 0 && Number.isFinite(arr[i]) && Math.abs(arr[i]) > peak) { peak = Math.abs(arr[i]); at = i; }
+      if (at >= 0 && 1 / peak < limit) {
+        const what = t !== null && 1 / peak < THIN_WIRE_RATIO * t ? `${THIN_WIRE_RATIO} times the thickness (${brief(t * k)} ${unit})` : `the lattice spacing (${brief((d ?? 0) * k)} ${unit})`;
+        w.push(
+          `thin-wire limit: the radius of ${name} 1/${name === "curvature" ? "\u03ba" : "|\u03c4|"} = ${brief(k / peak)} ${unit} at s = ${brief(p.s[at] * k)} ${unit} is below ${what}; ` +
+            "the curvilinear model is not valid there",
+        );
+      }
+    }
+  }
+  const later: string[] = [];
   if (l !== undefined && p.resolution > l) {
-    w.push(
+    later.push(
       `resolution: the fit resolves the geometry down to ${brief(p.resolution * k)} ${unit}, more than the magnetic length l = ${brief(l * k)} ${unit}; ` +
         "curvature that varies on shorter scales is smoothed out, so sharp bends (and their pinning depths) can be underestimated",
     );
   }
   if (l !== undefined && spacing > l / 2) {
-    w.push(`chain spacing ${brief(spacing * k)} ${unit} is coarser than half the magnetic length (${brief((l / 2) * k)} ${unit}): too coarse for a solver`);
+    later.push(`chain spacing ${brief(spacing * k)} ${unit} is coarser than half the magnetic length (${brief((l / 2) * k)} ${unit}): too coarse for a solver`);
   }
-  if (p.planarProjection) w.push("planar projection: torsion is not measurable from this trace; the model takes torsion 0");
+  if (p.planarProjection) later.push("planar projection: torsion is not measurable from this trace; the model takes torsion 0");
   // a short sharp feature merged into a stretch (shorter than the resolution): its model uses the stretch mean
   a.segments.forEach((g, idx) => {
     let peak = -Infinity, at = -1;
     for (let i = g.i0; i < g.i1; ++i) if (p.kappa[i] > peak) { peak = p.kappa[i]; at = i; }
     if (at >= 0 && Number.isFinite(g.kappaHi) && p.kappaLo[at] > 2 * Math.max(g.kappaHi, 0)) {
       w.push(
-        `stretch ${idx + 1} (${g.kind}) contains curvature up to ${brief(peak / k)} 1/${unit} at s = ${brief(p.s[at] * k)} ${unit}, ` +
+        `sharp bend: stretch ${idx + 1} (${g.kind}) contains curvature up to ${brief(peak / k)} 1/${unit} at s = ${brief(p.s[at] * k)} ${unit}, ` +
           `well above its mean ${brief(g.kappa / k)} 1/${unit}: a feature shorter than the stretches the fit can separate; its model uses the stretch mean (see the pinning sites)`,
       );
     }
   });
-  return w;
+  // torsion of a curved stretch whose band includes 0: its handedness is not known
+  const unresolved = a.segments.flatMap((g, idx) => (g.kind !== "straight" && g.tau !== 0 && g.tauLo < 0 && g.tauHi > 0 ? [idx + 1] : []));
+  if (unresolved.length > 0) {
+    w.push(`unresolved torsion: the 95% band of \u03c4 includes 0 on stretch${unresolved.length > 1 ? "es" : ""} ${unresolved.join(", ")}, so the handedness there is not known and the model's torsion terms are uncertain`);
+  }
+  return [...w, ...later];
 }
 
 /**
@@ -167,13 +223,71 @@ export async function buildWireOutputs(a: Analysis, options: WireOutputOptions):
   const mesh = tubeMesh(pts, rings.T, rings.closed, radius * k);
   const meshBytes = await meshToBytes(mesh, format, { unit, radiusNote, sourceFile: a.profile.source.file });
 
+  // files for other tools
+  const extra: OutputFile[] = [];
+  const exportsInfo: ExportEntry[] = [];
+  if (options.vtp === true) {
+    const stretches = a.segments.map((g) => ({ s0: g.s0, s1: g.s1 }));
+    const v = wireVtpFiles({ chain, model: cm, stretches, unit, mesh, sourceFile: a.profile.source.file });
+    extra.push({ name: OUTPUT_NAMES.centerlineVtp, data: v.centerline }, { name: OUTPUT_NAMES.tubeVtp, data: v.tube });
+    exportsInfo.push(
+      { file: OUTPUT_NAMES.centerlineVtp, format: "vtp", content: "centre line (chain sites) with kappa, tau, bands, frame, flags, stretch number and, with a material, DMI, anisotropy axes and texture" },
+      { file: OUTPUT_NAMES.tubeVtp, format: "vtp", content: "tube mesh with the centre line's arrays at each ring" },
+    );
+  }
+  if (options.grid !== undefined) {
+    if (cm === null || cm.texture === null) {
+      throw new ParameterError("buildWireOutputs", "grid", "the OVF texture needs a material (the relaxed texture comes from the model): add --material");
+    }
+    const grid = textureGrid(chain.xyz, cm.texture, chain.closed, radius, options.grid);
+    const labels: [string, string, string] = cm.order === "ferro" ? ["m_x", "m_y", "m_z"] : ["n_x", "n_y", "n_z"];
+    const what = cm.order === "ferro" ? "magnetisation direction m" : "Neel vector n";
+    const desc = [
+      `${TOOL_NAME} ${TOOL_VERSION}: relaxed ${what} of the curvilinear-magnet model, unit vectors inside the tube (radius ${brief(radius * k)} ${unit}), 0 outside`,
+      `source ${a.profile.source.file}; model estimates, not measurements (a starting state for a solver)`,
+    ];
+    const title = `${TOOL_NAME} relaxed texture`;
+    extra.push(
+      { name: OUTPUT_NAMES.textureOvfText, data: gridToOvf(grid, { title, desc, data: "text", field: "vector", labels }) },
+      { name: OUTPUT_NAMES.textureOvfBinary, data: gridToOvf(grid, { title, desc, data: "binary8", field: "vector", labels }) },
+      { name: OUTPUT_NAMES.maskOvf, data: gridToOvf(grid, { title: `${TOOL_NAME} wire mask`, desc: [`1 inside the tube (radius ${brief(radius * k)} ${unit}), 0 outside`], data: "text", field: "mask" }) },
+    );
+    const cells = [grid.nx, grid.ny, grid.nz];
+    const cell = jsonNumber(grid.cell * k) ?? 0;
+    exportsInfo.push(
+      { file: OUTPUT_NAMES.textureOvfText, format: "ovf-text", content: `relaxed texture (${labels.join(" ")}) on a regular grid, OVF 2.0 text`, cell, cells },
+      { file: OUTPUT_NAMES.textureOvfBinary, format: "ovf-binary8", content: `the same, OVF 2.0 binary 8 (little-endian float64)`, cell, cells },
+      { file: OUTPUT_NAMES.maskOvf, format: "ovf-text", content: "geometry mask: 1 inside the tube, 0 outside", cell, cells },
+    );
+  }
+
   const document = buildModelDocument(a, {
     unit,
     materialFile: options.materialFile ?? null,
+    materialNote: options.materialNote ?? null,
+    run: {
+      argv: options.run?.argv ?? null,
+      options: {
+        ...(options.run?.options ?? {}),
+        material: options.materialFile ?? null,
+        closed: a.profile.closed,
+        seed: a.seed,
+        bootstrap: a.profile.replicates,
+        outUnit: unit,
+        spacing: jsonNumber(chain.spacing * k),
+        spacingSource: spacingNote,
+        mesh: format,
+        radius: jsonNumber(radius * k),
+        radiusSource: radiusNote,
+        vtp: options.vtp === true,
+        grid: options.grid !== undefined ? jsonNumber(options.grid * k) : null,
+      },
+    },
     extraWarnings: exportWarnings(a, chain.spacing, unit),
     outputs: {
       profile: OUTPUT_NAMES.profile,
       report: OUTPUT_NAMES.report,
+      exports: exportsInfo,
       chain: { file: OUTPUT_NAMES.chain, sites: chain.n, spacing: chain.spacing * k, spacingNote, columns },
       mesh: {
         file: OUTPUT_NAMES.mesh(format), format, offset: [...mesh.offset], radius: mesh.radius, radiusSource: radiusNote,
@@ -188,6 +302,7 @@ export async function buildWireOutputs(a: Analysis, options: WireOutputOptions):
     { name: OUTPUT_NAMES.chain, data: chainCsv },
     { name: OUTPUT_NAMES.mesh(format), data: meshBytes },
     { name: OUTPUT_NAMES.report, data: report },
+    ...extra,
   ];
   return { files, document, chain, mesh, spacingNote, radiusNote };
 }

@@ -20,6 +20,8 @@ export interface WireSummary {
   readonly kappaMean: Banded;
   readonly kappaMax: Banded;
   readonly tauMean: Banded;
+  /** Arc-length weighted mean of |tau| (not |mean tau|: a ring's alternating torsion averages out, its |tau| does not). */
+  readonly tauAbsMean: Banded;
   readonly tauMaxAbs: Banded;
   readonly stretches: { readonly straight: number; readonly arc: number; readonly helix: number; readonly irregular: number };
   /** Pinning sites (null without a material) and the deepest depth in k_B T. */
@@ -43,14 +45,14 @@ function arcWeights(p: Profile): Float64Array {
   return w;
 }
 
-/** Weighted mean and maximum (of |x| when abs) over finite entries of x[off .. off + n). */
+/** Weighted mean and maximum (of |x| when abs: both are then of |x|) over finite entries of x[off .. off + n). */
 function stats(x: ArrayLike<number>, off: number, w: Float64Array, abs: boolean): [number, number] {
   let a = 0, b = 0, m = -Infinity;
   for (let i = 0; i < w.length; ++i) {
-    const v = x[off + i];
+    const v = abs ? Math.abs(x[off + i]) : x[off + i];
     if (!Number.isFinite(v)) continue;
     a += w[i] * v; b += w[i];
-    m = Math.max(m, abs ? Math.abs(v) : v);
+    m = Math.max(m, v);
   }
   return [b > 0 ? a / b : NaN, m === -Infinity ? NaN : m];
 }
@@ -63,7 +65,7 @@ function banded(value: number, reps: number[]): Banded {
 
 /**
  * The numbers of one wire for a batch summary: arc-length weighted mean and maximum of kappa, mean
- * torsion and maximum |tau| (undefined torsion skipped), each with a 95% interval from the same
+ * torsion, mean |tau| and maximum |tau| (undefined torsion skipped), each with a 95% interval from the same
  * statistic over the bootstrap replicates (2.5% and 97.5% quantiles, R-7 as d3-array's quantile),
  * stretch counts by kind, pinning sites, the deepest site in k_B T, the metastable and periodic
  * lengths, and the warnings (model warnings, export warnings, fit diagnostics).
@@ -76,16 +78,16 @@ export function wireSummary(a: Analysis, doc: ModelDocument): WireSummary {
   const w = arcWeights(p);
   const [km, kx] = stats(p.kappa, 0, w, false);
   const [tm] = stats(p.tau, 0, w, false);
-  const [, tx] = stats(p.tau, 0, w, true);
+  const [ta, tx] = stats(p.tau, 0, w, true);
   const R = p.kappaSamples !== undefined ? p.replicates : 0;
-  const rk: number[] = [], rkx: number[] = [], rt: number[] = [], rtx: number[] = [];
+  const rk: number[] = [], rkx: number[] = [], rt: number[] = [], rta: number[] = [], rtx: number[] = [];
   for (let r = 0; r < R; ++r) {
     const [a1, b1] = stats(p.kappaSamples!, r * p.n, w, false);
     rk.push(a1); rkx.push(b1);
     if (p.tauSamples !== undefined) {
       const [c1] = stats(p.tauSamples, r * p.n, w, false);
-      const [, d1] = stats(p.tauSamples, r * p.n, w, true);
-      rt.push(c1); rtx.push(d1);
+      const [e1, d1] = stats(p.tauSamples, r * p.n, w, true);
+      rt.push(c1); rta.push(e1); rtx.push(d1);
     }
   }
   const scale = (b: Banded, f: number): Banded => ({ value: b.value * f, lo: b.lo * f, hi: b.hi * f });
@@ -102,6 +104,7 @@ export function wireSummary(a: Analysis, doc: ModelDocument): WireSummary {
     kappaMean: scale(banded(km, rk), 1 / k),
     kappaMax: scale(banded(kx, rkx), 1 / k),
     tauMean: scale(banded(tm, rt), 1 / k),
+    tauAbsMean: scale(banded(ta, rta), 1 / k),
     tauMaxAbs: scale(banded(tx, rtx), 1 / k),
     stretches: { straight: count("straight"), arc: count("arc"), helix: count("helix"), irregular: count("irregular") },
     pinningSites: hasModel ? doc.pinning.length : null,

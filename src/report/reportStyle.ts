@@ -34,7 +34,18 @@ svg .cut { stroke: #9aa1ab; stroke-width: 0.8; }
 svg .stretch-label { font-size: 10.5px; fill: #3a4049; }
 svg .marker line { stroke: #b5302c; stroke-width: 0.8; stroke-dasharray: 3 2; }
 svg .marker text { fill: #b5302c; font-size: 10px; }
-svg .unstable rect { fill: #f1c9c4; stroke: none; }
+svg .unstable .region { fill: #f1c9c4; stroke: #f1c9c4; stroke-width: 0.6; stroke-linejoin: round; }
+svg .unstable .edge { fill: none; stroke: #c77d74; stroke-width: 1; }
+svg .region-label { paint-order: stroke; stroke: #fff; stroke-width: 3px; stroke-linejoin: round; }
+svg .ring-rule line { stroke: #1d232b; stroke-width: 1.4; stroke-dasharray: 4 2; }
+svg .points .leader { stroke: #5b6470; stroke-width: 0.8; }
+svg .points .true-spot { fill: #1d232b; stroke: none; }
+svg .magnons .upper, svg .ring-levels .upper { stroke: #1c3d78; stroke-width: 2; }
+svg .magnons .lower, svg .ring-levels .lower { stroke: #2f8f83; stroke-width: 2; }
+svg .magnons .dip { stroke: #2f8f83; stroke-width: 1.2; stroke-dasharray: 4 2; }
+svg .magnons .depth { stroke: #1d232b; stroke-width: 1; }
+svg .end-zone { fill: #d9d9d9; fill-opacity: 0.55; }
+svg .bias-zone { fill: #f0c36d; fill-opacity: 0.45; }
 svg .boundary { fill: none; stroke: #1d232b; stroke-width: 1.8; }
 svg .note { font-size: 11px; fill: #3a4049; }
 svg .points .bar { stroke: #1d232b; stroke-width: 1.1; }
@@ -47,7 +58,12 @@ svg .empty { fill: var(--muted); font-size: 13px; }
 .swatch { display: inline-block; width: 14px; height: 11px; border: 1px solid #777; margin-right: 5px; vertical-align: -1px; }
 .viewer { position: relative; border: 1px solid var(--rule); background: #f4f4f1; }
 .viewer canvas { display: block; width: 100%; height: auto; aspect-ratio: 760 / 440; }
-.viewer .message { position: absolute; inset: 0; display: flex; align-items: center; justify-content: center; color: var(--muted); padding: 20px; text-align: center; }
+.viewer .message { position: absolute; inset: 0; display: flex; align-items: center; justify-content: center; color: var(--muted); padding: 20px; text-align: center; background: #f4f4f1; }
+.viewer .message[hidden] { display: none; }
+.viewer canvas { cursor: grab; touch-action: none; }
+.viewer svg.overlay { position: absolute; inset: 0; width: 100%; height: 100%; pointer-events: none; font: 11px "DejaVu Sans", system-ui, sans-serif; }
+.viewer svg.overlay line { stroke-width: 2; }
+.viewer svg.overlay text { fill: #1d232b; }
 .controls { margin: 6px 0; display: flex; gap: 6px; align-items: center; flex-wrap: wrap; font-size: 13px; }
 .controls button { font: inherit; padding: 3px 10px; border: 1px solid #8a919b; background: #fff; border-radius: 3px; cursor: pointer; }
 .controls button[aria-pressed="true"] { background: var(--accent); color: #fff; border-color: var(--accent); }
@@ -56,6 +72,10 @@ svg .empty { fill: var(--muted); font-size: 13px; }
 svg.legend { display: block; font: 11px "DejaVu Sans", system-ui, sans-serif; }
 svg.legend text { fill: #3a4049; }
 svg.legend text.label { fill: var(--ink); font-size: 12px; }
+figure.plot-box { margin: 0; }
+figcaption.save { display: flex; gap: 6px; justify-content: flex-end; margin: -2px 0 6px; }
+figcaption.save button { font: 11.5px "DejaVu Sans", system-ui, sans-serif; padding: 1px 8px; border: 1px solid #b6bcc4; background: #fff; border-radius: 3px; cursor: pointer; color: var(--muted); }
+@media print { figcaption.save { display: none; } }
 .twocol { display: flex; gap: 18px; align-items: flex-start; flex-wrap: wrap; }
 .twocol > div { flex: 1 1 280px; }
 footer { margin-top: 32px; color: var(--muted); font-size: 12px; border-top: 1px solid var(--rule); padding-top: 8px; }

@@ -64,14 +64,14 @@ describe("twistline demo, end to end", () => {
     const dir = join(root, "demo");
     const r = await run(["demo", "--out", dir]);
     expect(r.code).toBe(0);
-    expect(readdirSync(dir).sort()).toEqual(["coil", "meander", "ring", "summary.csv"]);
-    for (const w of ["coil", "meander", "ring"]) {
+    expect(readdirSync(dir).sort()).toEqual(["afm-coil", "coil", "meander", "ring", "summary.csv"]);
+    for (const w of ["coil", "meander", "ring", "afm-coil"]) {
       expect(readdirSync(join(dir, w)).sort()).toEqual(["chain.csv", "model.json", "profile.csv", "report.html", "wire.ply"]);
     }
     const lines = r.stdout.trimEnd().split("\n");
-    expect(lines[0]).toContain("invented demo wires and invented demo material");
+    expect(lines[0]).toContain("invented demo wires and invented demo materials");
     expect(lines[2].split(/\s{2,}/)).toEqual(["wire", "unit", "points", "length", "mean kappa", "max kappa", "mean |tau|", "stretches", "pinning", "deepest kT", "metastable"]);
-    expect(lines.slice(3).map((l) => l.split(/\s+/).slice(0, 3))).toEqual([["coil", "nm", "600"], ["meander", "nm", "380"], ["ring", "nm", "300"]]);
+    expect(lines.slice(3).map((l) => l.split(/\s+/).slice(0, 3))).toEqual([["coil", "nm", "600"], ["meander", "nm", "380"], ["ring", "nm", "300"], ["afm-coil", "nm", "641"]]);
     // the ring is closed: its mean curvature lies between the ellipse's extremes 145/155^2 and 155/145^2 (1/nm), as make.ts states
     const ring = lines[5].split(/\s+/);
     expect(Number(ring[4])).toBeGreaterThan(0.006);
@@ -84,7 +84,7 @@ describe("twistline demo, end to end", () => {
     for (const w of ["coil", "meander", "ring"]) expect(validate(JSON.parse(readFileSync(join(dir, w, "model.json"), "utf8")))).toBe(true);
     // With CI set, the batch also prints plain progress lines ("twistline: batch: ...") first.
     const finalLines = r.stderr.split("\n").filter((l) => l !== "" && !l.startsWith("twistline: batch: "));
-    expect(finalLines[0]).toMatch(/^twistline: demo: 3 wires in [\d.]+ s; open .*coil.report\.html/);
+    expect(finalLines[0]).toMatch(/^twistline: demo: 4 wires in [\d.]+ s; open .*coil.report\.html/);
     expect((await run(["demo", "--out", dir])).code).toBe(1);
     expect((await run(["demo", "--out", dir, "--force", "--quiet"])).code).toBe(0);
   });

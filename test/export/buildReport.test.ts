@@ -1,5 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { buildWireOutputs } from "../../src/export/wireOutputs.js";
+import { wireSummary } from "../../src/export/wireSummary.js";
 import { escapeHtml, inlineScript, scriptJson } from "../../src/report/escapeHtml.js";
 import { analysisFixture } from "./analysisFixture.js";
 
@@ -51,5 +52,70 @@ describe("buildReport(input)", () => {
     expect(html).not.toContain('id="phase-map"');
     expect(html).toMatch(/Give a material \(<code>--material material\.json<\/code>/);
     expect(html).toContain("geometry only: no material given");
+  });
+});
+
+/** Half a unit in the last printed place of a number as the report writes it ("0.023416", "-2.59e-4", "13.0"). */
+function halfUlp(text: string): number {
+  const m = /^-?\d+(?:\.(\d+))?(?:e(-?\d+))?$/.exec(text);
+  if (m === null) throw new Error(`not a report number: ${text}`);
+  return 0.5 * 10 ** (Number(m[2] ?? 0) - (m[1]?.length ?? 0));
+}
+
+/** Expects the printed `text` to be `value` rounded to the printed digits. */
+function printedAs(text: string, value: number | null, where: string): void {
+  if (value === null) { expect(text, where).toBe("n/a"); return; }
+  expect(Math.abs(Number(text) - value), `${where}: ${text} vs ${value}`).toBeLessThanOrEqual(halfUlp(text) * (1 + 1e-9) + Math.abs(value) * 1e-12);
+}
+
+describe("buildReport numbers", () => {
+  it("every number of the stretch, pinning and material tables equals model.json's, to the digits printed", async () => {
+    const a = analysisFixture({ material: true });
+    const out = await buildWireOutputs(a, { unit: "nm", viewerScript: VIEWER });
+    const html = out.files.find((f) => f.name === "report.html")!.data as string;
+    const doc = out.document;
+    const rows = [...html.matchAll(/<tr class="stretch">(.*?)<\/tr>/gs)].map((m) => [...m[1].matchAll(/<td[^>]*>(.*?)<\/td>/gs)].map((c) => c[1]));
+    expect(rows.length).toBe(doc.segments.length);
+    rows.forEach((cells, i) => {
+      const g = doc.segments[i];
+      const [s0, s1] = cells[2].split("\u2013");
+      printedAs(s0, g.s0, `stretch ${i + 1} s0`);
+      printedAs(s1, g.s1, `stretch ${i + 1} s1`);
+      for (const [cell, v, lo, hi, name] of [[cells[3], g.kappa, g.kappaLo, g.kappaHi, "kappa"], [cells[4], g.tau, g.tauLo, g.tauHi, "tau"]] as const) {
+        const m = /^(\S+)(?:<br><span class="small">\[(\S+), (\S+)\]<\/span>)?$/.exec(cell)!;
+        printedAs(m[1], v, `stretch ${i + 1} ${name}`);
+        if (m[2] !== undefined) { printedAs(m[2], lo, `stretch ${i + 1} ${name} lo`); printedAs(m[3], hi, `stretch ${i + 1} ${name} hi`); }
+      }
+      const [kr, tr] = cells[5].split("<br>");
+      printedAs(kr, g.kappaReduced, `stretch ${i + 1} kappa l`);
+      printedAs(tr, g.tauReduced, `stretch ${i + 1} tau l`);
+      const [tilt, dmi] = cells[7].split("<br>");
+      printedAs(tilt, g.tiltDeg, `stretch ${i + 1} tilt`);
+      printedAs(dmi.replace(" mJ/m\u00b2", ""), g.dmi === null ? null : g.dmi * 1e3, `stretch ${i + 1} DMI (mJ/m^2)`);
+    });
+    const pins = [...html.matchAll(/<tr><td class="num">(\d+)<\/td>(.*?)<\/tr>/gs)].map((m) => [m[1], ...[...m[2].matchAll(/<td[^>]*>(.*?)<\/td>/gs)].map((c) => c[1])]);
+    expect(pins.length).toBe(Math.min(12, doc.pinning.length));
+    expect(doc.pinning.length).toBeGreaterThan(0);
+    pins.forEach((cells, i) => {
+      const site = doc.pinning[i];
+      expect(Number(cells[0])).toBe(site.rank);
+      printedAs(cells[1], site.s, `site ${site.rank} s`);
+      printedAs(cells[2].replace(" zJ", ""), site.depthJ === null ? null : site.depthJ * 1e21, `site ${site.rank} depth zJ`);
+      // 1 eV = 1.602176634e-19 J (exact, SI 2019)
+      printedAs(cells[3].replace(" meV", ""), site.depthJ === null ? null : (site.depthJ / 1.602176634e-19) * 1e3, `site ${site.rank} depth meV`);
+      printedAs(cells[4], site.depthKT, `site ${site.rank} depth kT`);
+    });
+    const fact = (label: string): string => new RegExp(`<tr><td>${label}</td><td>(.*?)</td></tr>`).exec(html)![1];
+    printedAs(fact("exchange A").replace(" pJ/m", ""), doc.material!.exchange! * 1e12, "exchange");
+    printedAs(fact("anisotropy K").replace(" kJ/m\u00b3", ""), doc.material!.anisotropy! / 1e3, "anisotropy");
+    printedAs(fact("magnetic length l").replace(" nm", ""), doc.material!.magneticLength, "magnetic length");
+    printedAs(fact("length of the fitted centre line").replace(" nm", ""), doc.geometry.length, "length");
+    // mean |tau| is the mean of |tau| (wireSummary, the same numbers as summary.csv), with its band
+    const s = wireSummary(a, doc);
+    const cell = html.split("<tr><td>mean |torsion| (of |\u03c4|, arc-length weighted)</td><td>")[1].split("</td>")[0];
+    const m = /^(\S+) 1\/nm <span class="small">\[(\S+), (\S+)\]<\/span>$/.exec(cell)!;
+    printedAs(m[1], s.tauAbsMean.value, "mean |tau|");
+    printedAs(m[2], s.tauAbsMean.lo, "mean |tau| lo");
+    printedAs(m[3], s.tauAbsMean.hi, "mean |tau| hi");
   });
 });

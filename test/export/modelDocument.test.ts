@@ -107,3 +107,25 @@ describe("model.json and its schema", () => {
     expect(text).toContain('"offset": [1, 2, 3]');
   });
 });
+
+describe("model.json: how it was made", () => {
+  it("records the command line shell-quoted, every option value, the material note, and validates", () => {
+    const doc = buildModelDocument(withModel, {
+      unit: "nm", outputs, materialFile: "mat.json", materialNote: "invented material",
+      run: { argv: ["analyze", "my wire.csv", "--material", "mat.json", "--out", "it's"], options: { input: "my wire.csv", bootstrap: 200, step: null } },
+    });
+    expect(doc.$schema).toBe("urn:twistline:schema:model:1"); // a URN (RFC 8141): no network address that could be fetched
+    // POSIX shell quoting: single quotes, an embedded ' written as '\'' (common practice)
+    expect(doc.run.command).toBe("twistline analyze 'my wire.csv' --material mat.json --out 'it'\\''s'");
+    expect(doc.run.argv).toEqual(["analyze", "my wire.csv", "--material", "mat.json", "--out", "it's"]);
+    expect(doc.run.options).toEqual({ input: "my wire.csv", bootstrap: 200, step: null });
+    expect(doc.material!.note).toBe("invented material");
+    expect(validate(roundTrip(doc)), JSON.stringify(validate.errors)).toBe(true);
+  });
+
+  it("without a command line (library, demo) has command and argv null", () => {
+    const doc = buildModelDocument(geometryOnly, { unit: "nm", outputs });
+    expect(doc.run).toEqual({ command: null, argv: null, options: {} });
+    expect(validate(roundTrip(doc)), JSON.stringify(validate.errors)).toBe(true);
+  });
+});

@@ -32,6 +32,18 @@ describe("wireSummary and summaryToCsv", () => {
     expect(s.pinningSites).toBeNull();
   });
 
+  it("mean |tau| is the mean of |tau|, not |mean tau|: torsion +t then -t averages to 0, its magnitude to t", () => {
+    // definition of the arc-length mean of |tau|; two equal halves of opposite torsion (invented profile)
+    const profile = makeProfile({ n: 200, length: 1e-6, kappa: () => 2e7, tau: (s) => (s < 0.5e-6 ? 5e6 : -5e6), replicates: 60, seed: 5, band: 1e5 });
+    const trace = { xyz: new Float64Array(600), dims: 3 as const, source: profile.source, diagnostics: [] };
+    const a: Analysis = { trace, profile, segments: segment(profile), material: null, model: null, seed: 1, timings: { profile: 0, segment: 0, model: 0 } };
+    const s = wireSummary(a, buildModelDocument(a, { unit: "nm", outputs }));
+    expect(Math.abs(s.tauMean.value)).toBeLessThan(1e-4 * 0.005); // the halves cancel up to the sample placement
+    expect(s.tauAbsMean.value).toBeCloseTo(0.005, 9);
+    expect(s.tauAbsMean.lo).toBeLessThanOrEqual(s.tauAbsMean.hi);
+    expect(summaryToCsv([{ wire: "w", file: "w.csv", summary: s, error: null, seconds: 1 }])).toContain("tau_abs_mean,tau_abs_mean_lo");
+  });
+
   it("quotes text fields per RFC 4180 and gives a failed wire its error and empty numbers", () => {
     expect(csvField('a,"b"')).toBe('"a,""b"""');
     expect(csvField("plain")).toBe("plain");

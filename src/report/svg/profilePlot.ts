@@ -11,6 +11,13 @@ export interface ShadedStretch {
   readonly label: string;
 }
 
+/** A stretch of samples to mark along the s axis: near an open end, or where the smoothing bias is comparable to the band. */
+export interface Zone {
+  readonly s0: number;
+  readonly s1: number;
+  readonly kind: "end" | "bias";
+}
+
 /** Input of {@link profilePlot}: one quantity along the wire with its 95% band. */
 export interface ProfilePlotInput {
   readonly id: string;
@@ -28,6 +35,8 @@ export interface ProfilePlotInput {
   readonly fromZero?: boolean;
   /** Half-height of the y range when the values do not span one (e.g. torsion 0 everywhere on a planar wire). */
   readonly fallbackSpan?: number;
+  /** Zones marked by a strip along the bottom of the plot and a light shade over its height. */
+  readonly zones?: readonly Zone[];
   /** Extra labelled vertical markers (s, label), e.g. pinning sites. */
   readonly markers?: readonly { readonly s: number; readonly label: string }[];
 }
@@ -64,10 +73,15 @@ export function profilePlot(p: ProfilePlotInput): string {
   }
   let y0 = Math.max(Math.min(vMin, bMin), vMin - 1.5 * range);
   let y1 = Math.min(Math.max(vMax, bMax), vMax + 1.5 * range);
+  // headroom: 6% of the span above (and below unless pinned at 0), so the curve never rides the frame
+  const pad = 0.06 * (y1 - y0 || range);
+  y1 += pad;
+  if (!p.fromZero || y0 < 0) y0 -= pad;
   if (p.fromZero) y0 = Math.min(0, y0);
   if (p.zeroLine) { y0 = Math.min(y0, 0); y1 = Math.max(y1, 0); }
   const [ya, yb] = niceDomain(y0, y1);
-  const [xa, xb] = sMin < sMax ? [sMin, sMax] : [0, 1];
+  // arc length is measured from the start of the fitted curve: the axis starts at 0
+  const [xa, xb] = sMin < sMax ? [Math.min(0, sMin), sMax] : [0, 1];
   const x = linearScale(xa, xb, box.left, box.width - box.right);
   const y = linearScale(ya, yb, box.height - box.bottom, box.top);
   const out: string[] = [svgOpen(box, p.id, p.title)];
@@ -81,6 +95,16 @@ export function profilePlot(p: ProfilePlotInput): string {
     if (b - a > 18) out.push(`<text class="stretch-label" x="${px((a + b) / 2)}" y="${px(box.top - 5)}" text-anchor="middle">${escapeHtml(g.label)}</text>`);
   }
   out.push(`</g>`);
+  const zoneTop = box.top, zoneBottom = box.height - box.bottom;
+  if ((p.zones ?? []).length > 0) {
+    out.push(`<g class="zones">`);
+    for (const z of p.zones ?? []) {
+      const a = x(Math.max(xa, z.s0)), b = x(Math.min(xb, z.s1));
+      if (!(b > a)) continue;
+      out.push(`<rect class="${z.kind}-zone" x="${px(a)}" y="${px(zoneTop)}" width="${px(Math.max(1, b - a))}" height="${px(zoneBottom - zoneTop)}"/>`);
+    }
+    out.push(`</g>`);
+  }
   out.push(axes(box, x, y, p.xLabel, p.yLabel));
   if (p.zeroLine && ya < 0 && yb > 0) out.push(`<line class="zero" x1="${px(box.left)}" x2="${px(box.width - box.right)}" y1="${px(y(0))}" y2="${px(y(0))}"/>`);
   const cl = (a: Float64Array) => a.map((t) => clampTo(y, t));

@@ -7,6 +7,8 @@
 import * as THREE from "three";
 import { OrbitControls } from "three/examples/jsm/controls/OrbitControls.js";
 import { curvatureColor, stateColor, torsionColor, type Rgb } from "../colorScales.js";
+import { niceLength } from "../niceLength.js";
+import { setUpSaveButtons } from "./savePlots.js";
 import { symEigen3 } from "../../frame/symEigen3.js";
 import { browser, type ViewerCanvas, type ViewerElement } from "./dom.js";
 
@@ -21,7 +23,17 @@ interface ViewData {
   kappaMin: number;
   kappaMax: number;
   tauMaxAbs: number;
+  /** Stretch boundaries and pinning sites (float32 x, y, z, base64), pinning ranks alongside. */
+  cuts: string;
+  pins: string;
+  pinRanks: number[];
+  /** The input points (float32 x, y, z, base64), shown on demand. */
+  input: string;
 }
+
+/** Screen size of the overlay's coordinate system (the canvas' CSS aspect, see reportStyle.ts). */
+const OVERLAY_W = 760, OVERLAY_H = 440;
+
 
 type Mode = "kappa" | "tau" | "state";
 
@@ -168,13 +180,69 @@ function start(): void {
   light.position.set(1, 1, 2);
   camera.add(light);
 
+  // stretch boundaries (dark grey) and pinning sites (red), as small spheres on the tube
+  const dot = new THREE.SphereGeometry(1.7 * radius, 16, 12);
+  const addDots = (b64: string, color: number): void => {
+    if (b64 === "") return;
+    const xyz = floats(b64);
+    const mat = new THREE.MeshStandardMaterial({ color, roughness: 0.5 });
+    for (let i = 0; i + 2 < xyz.length; i += 3) {
+      const m = new THREE.Mesh(dot, mat);
+      m.position.set(xyz[i], xyz[i + 1], xyz[i + 2]);
+      scene.add(m);
+    }
+  };
+  addDots(data.cuts, 0x3a4049);
+  addDots(data.pins, 0xb5302c);
+  // the input points, hidden until asked for
+  let inputCloud: THREE.Points | null = null;
+  if (data.input !== "") {
+    const g = new THREE.BufferGeometry();
+    g.setAttribute("position", new THREE.BufferAttribute(floats(data.input), 3));
+    inputCloud = new THREE.Points(g, new THREE.PointsMaterial({ color: 0xd0541b, size: 3, sizeAttenuation: false }));
+    inputCloud.visible = false;
+    scene.add(inputCloud);
+  }
+
   const controls = new OrbitControls(camera, canvas as never);
   controls.target.set(cx, cy, cz);
   controls.update();
+  controls.saveState();
+
+  // overlay: axes triad (lab x, y, z as seen from the camera) and a scale bar at the depth of the view centre
+  const el = (id: string): ViewerElement | null => doc.getElementById(id);
+  const triad = ["x", "y", "z"].map((a) => ({ line: el(`view3d-axis-${a}`), text: el(`view3d-label-${a}`) }));
+  const bar = el("view3d-scale-bar"), barText = el("view3d-scale-text");
+  const inverse = new THREE.Quaternion();
+  const e = new THREE.Vector3();
+  const overlay = (): void => {
+    inverse.copy(camera.quaternion).invert();
+    const ox = 46, oy = OVERLAY_H - 46, len = 30;
+    triad.forEach((t, i) => {
+      e.set(i === 0 ? 1 : 0, i === 1 ? 1 : 0, i === 2 ? 1 : 0).applyQuaternion(inverse);
+      t.line?.setAttribute("x2", String(ox + len * e.x));
+      t.line?.setAttribute("y2", String(oy - len * e.y));
+      t.text?.setAttribute("x", String(ox + 1.35 * len * e.x - 3));
+      t.text?.setAttribute("y", String(oy - 1.35 * len * e.y + 4));
+    });
+    const dist = camera.position.distanceTo(controls.target);
+    const visible = (2 * dist * Math.tan(THREE.MathUtils.degToRad(camera.fov / 2))) / camera.zoom;
+    const perUnit = OVERLAY_H / visible;
+    const length = niceLength(150 / perUnit);
+    const x1 = OVERLAY_W - 20, x0 = x1 - length * perUnit;
+    bar?.setAttribute("x1", String(x0));
+    bar?.setAttribute("x2", String(x1));
+    if (barText !== null) {
+      barText.setAttribute("x", String((x0 + x1) / 2));
+      barText.textContent = `${Number(length.toPrecision(3))} ${data.unit}`;
+    }
+  };
+
   let pending = false;
   const render = (): void => {
     pending = false;
     renderer.render(scene, camera);
+    overlay();
   };
   const request = (): void => {
     if (!pending) {
@@ -183,6 +251,10 @@ function start(): void {
     }
   };
   controls.addEventListener("change", request);
+  canvas.addEventListener("dblclick", () => {
+    controls.reset();
+    request();
+  });
   win.addEventListener("resize", () => {
     renderer.setSize(canvas.clientWidth || canvas.width, canvas.clientHeight || canvas.height, false);
     request();
@@ -202,11 +274,31 @@ function start(): void {
       if (m === "kappa" || m === "tau" || m === "state") setMode(m);
     });
   }
+  const pointsButton = el("view3d-points");
+  if (pointsButton !== null) {
+    if (inputCloud === null) pointsButton.hidden = true;
+    pointsButton.addEventListener("click", () => {
+      if (inputCloud === null) return;
+      inputCloud.visible = !inputCloud.visible;
+      // the points lie on the centre line, inside the tube: see-through tube while they show
+      material.transparent = inputCloud.visible;
+      material.opacity = inputCloud.visible ? 0.3 : 1;
+      material.depthWrite = !inputCloud.visible;
+      material.needsUpdate = true;
+      pointsButton.setAttribute("aria-pressed", String(inputCloud.visible));
+      request();
+    });
+  }
   paint("kappa");
   render();
   doc.body.dataset.rendered = "1";
 }
 
+try {
+  setUpSaveButtons();
+} catch {
+  // the plots stay readable without their save buttons
+}
 try {
   start();
 } catch (e) {
