@@ -13,7 +13,7 @@
  * adaptive curvature.
  */
 import { fitProfile, type ProfileOptions } from "../src/frame/profile.js";
-import { FLAG_END, FLAG_TORSION_UNDEFINED } from "../src/types.js";
+import { FLAG_BIAS, FLAG_END, FLAG_TORSION_UNDEFINED } from "../src/types.js";
 import {
   bendCurve, bumpCurve, circleCurve, conicalHelixCurve, denseTruth, helixCurve, matchTruth, sampleCurveUneven,
   trefoilCurve, vivianiCurve, wavyCoilCurve, type TestCurve,
@@ -29,17 +29,18 @@ const families: TestCurve[] = [
   bumpCurve(10, 0.6, 1), bendCurve(4, 0.5), wavyCoilCurve(1, 4),
 ].filter((c) => !pick || pick.includes(c.name));
 
-interface Score { k: number; t: number; covK: number; covT: number; inK: number; inT: number; lambda: number; segments: number }
+interface Score { k: number; t: number; covK: number; covT: number; inK: number; inT: number; lambda: number; segments: number; covKu: number }
 
 function score(curve: TestCurve, xyz: Float64Array, truth: ReturnType<typeof denseTruth>, opts: ProfileOptions): Score {
   const p = fitProfile({ xyz, dims: 3, source: { file: curve.name, unit: "m" }, diagnostics: [] }, { closed: curve.closed, ...opts });
   const idx = matchTruth(truth, p.x, p.y, p.z, curve.closed);
-  let ek = 0, rk = 0, et = 0, rt = 0, ck = 0, ct = 0, nk = 0, nt = 0, ik = 0, it = 0;
+  let ek = 0, rk = 0, et = 0, rt = 0, ck = 0, ct = 0, nk = 0, nt = 0, ik = 0, it = 0, cu = 0, nu = 0;
   for (let j = 0; j < p.n; ++j) {
     if (p.flags[j] & FLAG_END) continue;
     const k = truth.kappa[idx[j]], t = truth.tau[idx[j]];
     ek += (p.kappa[j] - k) ** 2; rk += k * k; ++nk;
     if (p.kappaLo[j] <= k && k <= p.kappaHi[j]) ++ck;
+    if (!(p.flags[j] & FLAG_BIAS)) { ++nu; if (p.kappaLo[j] <= k && k <= p.kappaHi[j]) ++cu; }
     if (p.kappaLo[j] <= p.kappa[j] && p.kappa[j] <= p.kappaHi[j]) ++ik;
     const undef = Number.isNaN(p.tau[j]) || p.flags[j] & FLAG_TORSION_UNDEFINED;
     const tj = undef ? 0 : p.tau[j];
@@ -52,10 +53,10 @@ function score(curve: TestCurve, xyz: Float64Array, truth: ReturnType<typeof den
   }
   // Planar curves have tau = 0: the error is relative to the RMS curvature instead.
   const tScale = rt > 1e-12 * rk ? rt : rk;
-  return { k: Math.sqrt(ek / rk), t: Math.sqrt(et / tScale), covK: ck / nk, covT: nt ? ct / nt : NaN, inK: ik / nk, inT: nt ? it / nt : NaN, lambda: p.lambda, segments: p.segments };
+  return { k: Math.sqrt(ek / rk), t: Math.sqrt(et / tScale), covK: ck / nk, covT: nt ? ct / nt : NaN, inK: ik / nk, inT: nt ? it / nt : NaN, lambda: p.lambda, segments: p.segments, covKu: nu ? cu / nu : NaN };
 }
 
-const out: { name: string; rk: number; rt: number; covK: number; covT: number; inK: number; inT: number }[] = [];
+const out: { name: string; rk: number; rt: number; covK: number; covT: number; inK: number; inT: number; covKu: number }[] = [];
 console.log("case                         kappa auto/best  ratio |  tau auto/best   ratio | covK covT | inK  inT");
 for (const curve of families) {
   for (const N of Ns) {
@@ -76,7 +77,7 @@ for (const curve of families) {
         }
         const name = `${curve.name} N=${N} ${(noise * 100).toFixed(1)}% s${seed}`;
         const rk = auto.k / bestK, rt = bestT < 1e-9 ? (auto.t < 1e-9 ? 1 : Infinity) : auto.t / bestT;
-        out.push({ name, rk, rt, covK: auto.covK, covT: auto.covT, inK: auto.inK, inT: auto.inT });
+        out.push({ name, rk, rt, covK: auto.covK, covT: auto.covT, inK: auto.inK, inT: auto.inT, covKu: auto.covKu });
         const f = (v: number) => (100 * v).toFixed(2).padStart(6) + "%";
         console.log(`${name.padEnd(28)} ${f(auto.k)} ${f(bestK)} ${rk.toFixed(2).padStart(5)} | ${f(auto.t)} ${f(bestT)} ${rt.toFixed(2).padStart(5)} | ${auto.covK.toFixed(2)} ${auto.covT.toFixed(2)} | ${auto.inK.toFixed(2)} ${auto.inT.toFixed(2)} (${ms.toFixed(0)} ms) best log10 level k ${eK >= 0 ? "+" : ""}${eK} t ${eT >= 0 ? "+" : ""}${eT}`);
       }
@@ -85,7 +86,7 @@ for (const curve of families) {
 }
 const frac = (pred: (r: (typeof out)[number]) => boolean) => `${out.filter(pred).length}/${out.length}`;
 const worst = (key: "rk" | "rt") => out.reduce((a, b) => (b[key] > a[key] ? b : a));
-const mean = (key: "covK" | "covT" | "inK" | "inT") => out.filter((o) => Number.isFinite(o[key])).reduce((a, o, _, arr) => a + o[key] / arr.length, 0);
+const mean = (key: "covK" | "covT" | "inK" | "inT" | "covKu") => out.filter((o) => Number.isFinite(o[key])).reduce((a, o, _, arr) => a + o[key] / arr.length, 0);
 console.log(`kappa within 1.2x: ${frac((o) => o.rk <= 1.2)}, within 2x: ${frac((o) => o.rk <= 2)}; worst ${worst("rk").rk.toFixed(2)} (${worst("rk").name})`);
 console.log(`tau   within 1.5x: ${frac((o) => o.rt <= 1.5)}, within 2x: ${frac((o) => o.rt <= 2)}; worst ${worst("rt").rt.toFixed(2)} (${worst("rt").name})`);
-console.log(`mean coverage of the truth: kappa ${mean("covK").toFixed(3)}, tau ${mean("covT").toFixed(3)}; estimate inside its band: kappa ${mean("inK").toFixed(3)}, tau ${mean("inT").toFixed(3)}`);
+console.log(`mean coverage of the truth: kappa ${mean("covK").toFixed(3)} (${mean("covKu").toFixed(3)} where not bias-flagged), tau ${mean("covT").toFixed(3)}; estimate inside its band: kappa ${mean("inK").toFixed(3)}, tau ${mean("inT").toFixed(3)}`);

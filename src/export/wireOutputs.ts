@@ -215,10 +215,11 @@ export async function buildWireOutputs(a: Analysis, options: WireOutputOptions):
   const columns = [...CHAIN_GEOMETRY_COLUMNS, ...(cm !== null ? CHAIN_MODEL_COLUMNS : []), ...(cm?.texture ? CHAIN_TEXTURE_COLUMNS : [])];
 
   const { radius, note: radiusNote } = chooseRadius(a, options.radius, unit);
-  // Rings every twelfth of the resolution length at least (a chain spaced at a quarter of it would
-  // make the tube a polygon whose corners a reader of the mesh takes for curvature), at most 20000.
-  const ringSpacing = Math.max(Math.min(spacing, a.profile.resolution / 12), a.profile.length / 20_000);
-  const rings = ringSpacing < spacing ? resampleWire(a.profile, ringSpacing) : chain;
+  // Tube rings: every chain site, subdivided so that rings are at most a twelfth of the resolution
+  // length apart (at most 20000 rings): a tube with rings a quarter resolution apart is a polygon
+  // whose chords a reader of the mesh would take for a tighter curve (2% in curvature).
+  const perSite = chain.n > 1 ? Math.max(1, Math.min(Math.ceil((12 * chain.spacing) / a.profile.resolution), Math.floor(20_000 / chain.n))) : 1;
+  const rings = perSite > 1 ? resampleWire(a.profile, chain.spacing / perSite) : chain;
   const pts = Float64Array.from(rings.xyz, (v) => v * k);
   const mesh = tubeMesh(pts, rings.T, rings.closed, radius * k);
   const meshBytes = await meshToBytes(mesh, format, { unit, radiusNote, sourceFile: a.profile.source.file });
@@ -232,7 +233,7 @@ export async function buildWireOutputs(a: Analysis, options: WireOutputOptions):
     extra.push({ name: OUTPUT_NAMES.centerlineVtp, data: v.centerline }, { name: OUTPUT_NAMES.tubeVtp, data: v.tube });
     exportsInfo.push(
       { file: OUTPUT_NAMES.centerlineVtp, format: "vtp", content: "centre line (chain sites) with kappa, tau, bands, frame, flags, stretch number and, with a material, DMI, anisotropy axes and texture" },
-      { file: OUTPUT_NAMES.tubeVtp, format: "vtp", content: "tube mesh with the centre line's arrays at each ring" },
+      { file: OUTPUT_NAMES.tubeVtp, format: "vtp", content: "tube mesh with the arrays of the chain site nearest each ring" },
     );
   }
   if (options.grid !== undefined) {

@@ -69,7 +69,10 @@ function siteArrays(v: WireVtpInput): VtpArray[] {
   return arrays;
 }
 
-/** The chain site each tube vertex belongs to: ring centres matched in order along the chain; cap centres to the ends. */
+/**
+ * The chain site each tube vertex belongs to: when the rings subdivide the chain evenly, the site
+ * nearest in arc length; otherwise ring centres matched in order along the chain; caps to the ends.
+ */
 export function tubeVertexSites(mesh: TubeMesh, chain: ResampledWire, unitPerMetre: number): Int32Array {
   const { rings, radial } = mesh;
   const nv = mesh.positions.length / 3;
@@ -77,6 +80,13 @@ export function tubeVertexSites(mesh: TubeMesh, chain: ResampledWire, unitPerMet
   let j = 0;
   const d2 = (i: number, x: number, y: number, z: number): number =>
     (chain.xyz[3 * i] * unitPerMetre - x) ** 2 + (chain.xyz[3 * i + 1] * unitPerMetre - y) ** 2 + (chain.xyz[3 * i + 2] * unitPerMetre - z) ** 2;
+  // Rings that subdivide the chain evenly (every k-th ring at a site): the site nearest in arc length.
+  const per = chain.closed ? rings / chain.n : (rings - 1) / Math.max(chain.n - 1, 1);
+  if (chain.n > 1 && Number.isInteger(per) && per >= 1) {
+    for (let r = 0; r < rings; ++r) site.fill(Math.min(Math.round(r / per) % (chain.closed ? chain.n : Infinity), chain.n - 1), r * radial, (r + 1) * radial);
+    if (nv > rings * radial) { site[rings * radial] = 0; site[rings * radial + 1] = chain.n - 1; }
+    return site;
+  }
   for (let r = 0; r < rings; ++r) {
     let x = 0, y = 0, z = 0;
     for (let q = 0; q < radial; ++q) {
@@ -106,7 +116,8 @@ function gather(a: VtpArray, site: Int32Array): VtpArray {
  * tau 0 where undefined, marked by tau_defined = 0), the frame T, N, B, the profile flags, the
  * stretch number (1-based) and, with a material, the DMI vector (J/m^2), the anisotropy constants
  * (J/m^3) and principal axes, and the relaxed texture (unit vectors). Tube: the tube mesh's
- * triangles with the same arrays taken from the chain site of each ring (caps: the end sites).
+ * triangles with the same arrays taken from the chain site nearest each ring (the rings subdivide
+ * the chain; caps: the end sites).
  * Coordinates in `unit`, absolute (the mesh offset added back). Cost O(sites + mesh vertices).
  */
 export function wireVtpFiles(v: WireVtpInput): { centerline: string; tube: string } {

@@ -212,7 +212,7 @@ function selectLevel(
     const known = dof >= MIN_SPARSE_DOF;
     return { ...s, sigma: known ? Math.max(Math.sqrt(probe.fit.rss / dof), floor) : NaN, sigmaFrom: known ? "gcv" : "unknown", lambdaGcv: probe.fit.lambda, edfGcv: probe.edf };
   }
-  // A mesh centre line: no wavelength shorter than three facets (the tessellation is not the wire).
+  // A mesh centre line: no wavelength shorter than four facets (the tessellation is not the wire).
   const minLambda = start.minWavelength > 0 ? lambdaForWavelength(start.minWavelength, sm.normal.wSum / (sm.basis.nseg * sm.basis.h), sm.basis.h) : undefined;
   const sel = selectSmoothing(sm, normalDims, { sigmaFloor: floor, ...(minLambda !== undefined ? { minLambda } : {}), ...(o.sigmaKnown !== undefined ? { sigmaKnown: o.sigmaKnown } : {}), ...(o.hint !== undefined ? { hintLogGcv: o.hint } : {}) });
   const dof = normalDims * (sm.normal.wSum - sel.edfGcv);

@@ -95,7 +95,7 @@ export interface Start {
   readonly sigmaFloor: number;
   /** Difference-based noise estimate at the start (canonical units). */
   readonly sigmaDiff: number;
-  /** Shortest wavelength the fit may resolve (canonical units; 0: no limit): 3 facets of a mesh. */
+  /** Shortest wavelength the fit may resolve (canonical units; 0: no limit): 4 facets of a mesh. */
   readonly minWavelength: number;
 }
 
@@ -159,7 +159,7 @@ export function robustStart(trace: Trace, options: ProfileOptions, diagnostics: 
   if (trace.radiusSpread && trace.radiusSpread.length > 0) floor = Math.max(floor, (0.25 * medianOf(trace.radiusSpread)) / canon.scale);
   return {
     canon, kept: Int32Array.from(kept), dropped, closed, u, span, referenceLength: referenceLength(y, closed), medianStep,
-    sigmaFloor: floor, sigmaDiff, minWavelength: trace.facetLength ? (3 * trace.facetLength) / canon.scale : 0,
+    sigmaFloor: floor, sigmaDiff, minWavelength: trace.facetLength ? (4 * trace.facetLength) / canon.scale : 0,
   };
 }
 

@@ -1,5 +1,5 @@
 import { quantile } from "d3-array";
-import { FLAG_TORSION_NOT_MEASURABLE, FLAG_TORSION_UNDEFINED, type Profile, type Segment, type SegmentKind } from "../types.js";
+import { FLAG_END, FLAG_TORSION_NOT_MEASURABLE, FLAG_TORSION_UNDEFINED, type Profile, type Segment, type SegmentKind } from "../types.js";
 
 /** Options of `segment`. Lengths in metres. */
 export interface SegmentOptions {
@@ -170,7 +170,13 @@ export function segment(profile: Profile, options: SegmentOptions = {}): Segment
     // Practical size of the variation: RMS deviation of kappa and tau about their means, relative
     // to the stretch's |Darboux| = sqrt(kappa^2 + tau^2). A statistically significant but small
     // variation (a few %) still describes a helix or an arc to the model.
-    const rmsK = Math.sqrt(spread(kv, i0, i1)), rmsT = Math.sqrt(spreadWhere(tv, wt, i0, i1));
+    // The samples within one resolution length of an open end (flag 4) carry the end's extra bias:
+    // they do not count in the variation unless they are most of the stretch.
+    let j0 = i0, j1 = i1;
+    while (j0 < j1 && flags[j0] & FLAG_END) ++j0;
+    while (j1 > j0 && flags[j1 - 1] & FLAG_END) --j1;
+    if (j1 - j0 < 0.5 * (i1 - i0)) { j0 = i0; j1 = i1; }
+    const rmsK = Math.sqrt(spread(kv, j0, j1)), rmsT = Math.sqrt(spreadWhere(tv, wt, j0, j1));
     const darboux = Math.hypot(km, Number.isFinite(tm) ? tm : 0);
     const relVar = darboux > 0 ? Math.hypot(rmsK, rmsT) / darboux : Infinity;
     let kind: SegmentKind;

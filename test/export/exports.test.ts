@@ -69,15 +69,31 @@ describe("VTK XML PolyData exports (centerline.vtp, tube.vtp)", () => {
     expect(v.polys).toBe(mesh.indices.length / 3);
     expect(v.cells.get("Polys.offsets")!.slice(0, 3)).toEqual([3, 6, 9]);
     const s = v.arrays.get("s")!.values;
-    // the site a vertex carries is found again from its arc length s; the vertex lies on the ring around it
+    // the rings subdivide the chain (every k-th ring at a site); each vertex lies a radius from its
+    // ring's centre and carries the values of the site nearest in arc length (round(ring / k))
     const sites = out.chain;
-    let worst = 0;
-    for (let q = 0; q < mesh.rings * mesh.radial; ++q) {
-      const i = sites.s.findIndex((x) => Math.abs(x * 1e9 - s[q]) <= 1e-9 * Math.max(1, s[q]));
-      const d = Math.hypot(v.xyz[3 * q] - sites.xyz[3 * i] * 1e9, v.xyz[3 * q + 1] - sites.xyz[3 * i + 1] * 1e9, v.xyz[3 * q + 2] - sites.xyz[3 * i + 2] * 1e9);
-      worst = Math.max(worst, Math.abs(d - mesh.radius) / mesh.radius);
+    const per = (mesh.rings - 1) / (sites.n - 1);
+    expect(Number.isInteger(per)).toBe(true);
+    let worst = 0, wrongSite = 0;
+    for (let r = 0; r < mesh.rings; ++r) {
+      const c = [0, 1, 2].map((a) => {
+        let acc = 0;
+        for (let q = 0; q < mesh.radial; ++q) acc += v.xyz[3 * (r * mesh.radial + q) + a];
+        return acc / mesh.radial;
+      });
+      const want = sites.s[Math.round(r / per)] * 1e9;
+      for (let q = r * mesh.radial; q < (r + 1) * mesh.radial; ++q) {
+        const d = Math.hypot(v.xyz[3 * q] - c[0], v.xyz[3 * q + 1] - c[1], v.xyz[3 * q + 2] - c[2]);
+        worst = Math.max(worst, Math.abs(d - mesh.radius) / mesh.radius);
+        if (Math.abs(want - s[q]) > 1e-9 * Math.max(1, want)) ++wrongSite;
+      }
+      if (r % per === 0) {
+        const i = r / per; // a ring at a site is centred on it
+        expect(Math.hypot(sites.xyz[3 * i] * 1e9 - c[0], sites.xyz[3 * i + 1] * 1e9 - c[1], sites.xyz[3 * i + 2] * 1e9 - c[2]) / mesh.radius).toBeLessThan(1e-4);
+      }
     }
     expect(worst).toBeLessThan(1e-4); // float32 mesh positions; measured ~1e-6
+    expect(wrongSite).toBe(0);
   });
 });
 

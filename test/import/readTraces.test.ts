@@ -193,10 +193,10 @@ describe("readTracesFile(path, options): one list of wires for every format", ()
     for (let i = 3; i < t.xyz.length; i += 3) steps.push(Math.hypot(t.xyz[i] - t.xyz[i - 3], t.xyz[i + 1] - t.xyz[i - 2], t.xyz[i + 2] - t.xyz[i - 1]));
     const median = [...steps].sort((a, b) => a - b)[steps.length >> 1];
     expect(Math.max(...steps) / median).toBeLessThan(4); // measured 2.2
+    // A tube's surface vertices read as a cloud: the spanning tree's longest path cannot follow one
+    // wire through a thick surface, and the orderer says so (naming where) instead of returning it.
     const mesh = write("mesh-as-cloud.ply", toPlyAscii(bentGeo));
-    const [cloud] = await readTracesFile(mesh, { format: "cloud" });
-    expect(cloud.radius).toBeUndefined();
-    expect(cloud.diagnostics.some((d) => d.startsWith("ordered "))).toBe(true);
+    await expect(readTracesFile(mesh, { format: "cloud" })).rejects.toThrow(/mesh-as-cloud\.ply: points: the cloud crosses itself or branches near \(.*\) nm \(a side branch of \d+ points reaching [\d.]+ nm from the path.*\): the order along one wire is ambiguous there; trace the wire as an ordered polyline, or split it$/);
   });
 
   it("reads unordered text with format cloud in the declared unit, honouring the file's closure", async () => {
