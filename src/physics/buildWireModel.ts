@@ -154,7 +154,7 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
       sites: pinning,
       method: system.order === "ferro"
         ? "constrained relaxation of a head-to-head wall through -N (window relaxation); firstOrder: 4 - 2 (kappa * sech)(q)"
-        : "constrained relaxation of a wall between +-B through +N (window relaxation); no first-order estimate; skipped where kappa l < 0.1",
+        : "constrained relaxation of a wall between the two easy directions, through +N and through -N, the lower kept at every position (window relaxation); no first-order estimate; skipped where kappa l < 0.1",
     };
     const afmMin = (options.pinning ?? {}).afmMinKappa ?? 0.1;
     if (system.order === "antiferro" && inter.kappaReduced.some((k) => !(k >= afmMin))) warnings.push(`AFM wall not localised where kappa l < ${afmMin} (near-straight): no pinning landscape there`);
