@@ -1,4 +1,4 @@
-import type { Material, StretchModel, WireModel } from "../physics/types.js";
+import type { Material, StretchModel, TextureState, WireModel } from "../physics/types.js";
 import { PER_METRE, type LengthUnit } from "../types.js";
 import type { Analysis } from "./analyzeTrace.js";
 import { jsonNumber } from "./formatNumber.js";
@@ -44,7 +44,7 @@ export interface SegmentEntry {
   kind: "straight" | "arc" | "helix" | "irregular";
   kappa: Num; kappaLo: Num; kappaHi: Num; tau: Num; tauLo: Num; tauHi: Num;
   kappaReduced: Num; tauReduced: Num;
-  state: "homogeneous" | "periodic" | null;
+  state: "homogeneous" | "periodic" | "vortex" | "onion" | null;
   homogeneousStability: "stable" | "metastable" | "unstable" | null;
   tiltDeg: Num;
   probabilities: { homogeneous: Num; periodic: Num; stable: Num; metastable: Num; unstable: Num } | null;
@@ -79,8 +79,15 @@ export interface ModelDocument {
   material: MaterialEntry | null;
   segments: SegmentEntry[];
   pinning: { rank: number; s: number; depthJ: Num; depthKT: Num; depthReduced: Num }[];
-  texture: { energyReduced: Num; energyJ: Num; iterations: number; converged: boolean } | null;
+  texture: {
+    state: TextureState; energyReduced: Num; energyJ: Num; iterations: number; converged: boolean;
+    alternatives: { state: TextureState; energyReduced: Num; energyJ: Num; aboveGroundReduced: Num; converged: boolean }[];
+  } | null;
   ringLevels: { j: number; lower: Num; upper: Num }[] | null;
+  ring: {
+    order: "ferro" | "antiferro"; state: TextureState | "binormal"; kappaCircleReduced: Num; kappaMeanReduced: Num; kappaSpread: Num;
+    nearCircular: boolean; closedForm: { vortex: Num; onion: Num; state: "vortex" | "onion" } | null; caution: string | null;
+  } | null;
   warnings: string[];
   outputs: {
     profile: string;
@@ -246,12 +253,23 @@ export function buildModelDocument(a: Analysis, options: ModelDocumentOptions): 
       depthReduced: jsonNumber(s.depthReduced),
     })),
     texture: model === null ? null : {
+      state: model.texture.state,
       energyReduced: jsonNumber(model.texture.energyReduced),
       energyJ: model.texture.energyJ === null ? null : jsonNumber(model.texture.energyJ),
       iterations: model.texture.iterations,
       converged: model.texture.converged,
+      alternatives: model.texture.alternatives.map((x) => ({
+        state: x.state, energyReduced: jsonNumber(x.energyReduced), energyJ: x.energyJ === null ? null : jsonNumber(x.energyJ),
+        aboveGroundReduced: jsonNumber(x.aboveGroundReduced), converged: x.converged,
+      })),
     },
     ringLevels: model?.ringLevels?.map((r) => ({ j: r.j, lower: jsonNumber(r.lower), upper: jsonNumber(r.upper) })) ?? null,
+    ring: model?.ring == null ? null : {
+      order: model.ring.order, state: model.ring.state, kappaCircleReduced: jsonNumber(model.ring.kappaCircleReduced),
+      kappaMeanReduced: jsonNumber(model.ring.kappaMeanReduced), kappaSpread: jsonNumber(model.ring.kappaSpread), nearCircular: model.ring.nearCircular,
+      closedForm: model.ring.closedForm === null ? null : { vortex: jsonNumber(model.ring.closedForm.vortex), onion: jsonNumber(model.ring.closedForm.onion), state: model.ring.closedForm.state },
+      caution: model.ring.caution,
+    },
     warnings,
     outputs: {
       profile: o.profile,

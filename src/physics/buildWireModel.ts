@@ -5,13 +5,15 @@ import { gapProfile } from "./gapProfile.js";
 import { homogeneousState } from "./homogeneousState.js";
 import { interactions } from "./interactions.js";
 import { symEigen3 } from "./linalg.js";
-import { magnonGaps, ringLevels } from "./magnonGaps.js";
+import { magnonGaps } from "./magnonGaps.js";
 import type { PeriodicOptions } from "./periodicState.js";
 import { firstOrderPinning, pinningScan, pinningSites, type PinningOptions } from "./pinning.js";
 import { reducedSystem } from "./reducedSystem.js";
 import { relaxWire, wireChain } from "./relaxWire.js";
+import { ringState, ringWalls } from "./ringState.js";
+import { textureStarts } from "./textureStarts.js";
 import { stretchLabels, stretchProbabilities, type StretchContext } from "./stretchLabels.js";
-import type { Material, PinningLandscape, PinningSite, StretchModel, WireModel } from "./types.js";
+import type { GroundState, Material, PinningLandscape, PinningSite, ReducedSystem, Stability, StretchModel, TextureAlternative, TextureState, WireModel } from "./types.js";
 
 /** Boltzmann constant (J/K), exact in the 2019 SI. */
 export const BOLTZMANN = 1.380649e-23;
@@ -22,7 +24,7 @@ export interface WireModelOptions {
   readonly seed?: number;
   /** Seeded draws per stretch without replicates (default 200). */
   readonly draws?: number;
-  /** Periodic-state search settings (default hMax 0.25, scan 10, refine 6). */
+  /** Periodic-state search settings (default hMax 0.2 as PHYSICS.md section 4 asks, scan 10, refine 6). */
   readonly periodic?: PeriodicOptions;
   /** Pinning landscape settings (reduced lengths), or false to skip it. */
   readonly pinning?: false | (PinningOptions & { readonly coarse?: number; readonly fine?: number });
@@ -45,7 +47,7 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
   const l = material.magneticLength;
   const system = reducedSystem(material);
   const warnings: string[] = [];
-  const periodicOptions: PeriodicOptions = { hMax: 0.25, scan: 10, refine: 6, ...options.periodic };
+  const periodicOptions: PeriodicOptions = { hMax: 0.2, scan: 10, refine: 6, ...options.periodic };
   const energyUnit = material.anisotropy !== null && material.crossSection !== null ? material.anisotropy * l * material.crossSection : null;
   if (energyUnit === null) warnings.push("energies in J need anisotropy (J/m^3) and thickness or crossSection (m, m^2): only reduced energies are given");
   const kT = BOLTZMANN * material.temperature;
@@ -58,15 +60,12 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
     return Math.sqrt(-2 * Math.log(a)) * Math.cos(2 * Math.PI * rand());
   };
   const ringWire = profile.closed && segments.length === 1 && segments[0].kind === "arc";
-  const models: StretchModel[] = segments.map((g) => {
-    const flags: string[] = [];
-    const kr = g.kappa * l, tr = Number.isFinite(g.tau) ? g.tau * l : NaN;
-    const context: StretchContext = g.kind === "straight" ? "straight" : g.kind === "helix" ? "helix" : ringWire ? "ring" : g.kind === "arc" ? "arc" : "helix";
-    const tUse = context === "helix" ? (Number.isFinite(tr) ? tr : 0) : 0;
-    const hom = homogeneousState(system, kr, tUse);
-    const labels = stretchLabels(system, context, kr, tUse, periodicOptions);
-    // replicate means of the stretch (bootstrap), else seeded draws within the bands
-    const reps = profile.kappaSamples !== undefined && profile.replicates > 0 ? profile.replicates : 0;
+  // a closed FM wire: vortex or onion, decided on the whole closed wire (PHYSICS.md section 3)
+  const ferroRing = profile.closed && system.order === "ferro";
+  const whole: Segment = { s0: profile.s[0], s1: profile.s[0] + profile.length, i0: 0, i1: profile.n, kind: "arc", kappa: mean(profile.kappa), kappaLo: mean(profile.kappaLo), kappaHi: mean(profile.kappaHi), tau: 0, tauLo: 0, tauHi: 0 };
+  const reps = profile.kappaSamples !== undefined && profile.replicates > 0 ? profile.replicates : 0;
+  /** Replicate means of a stretch (bootstrap), else seeded draws within the bands. */
+  const replicateMeans = (g: Segment, kr: number, tr: number): { kS: Float64Array; tS: Float64Array } => {
     const nr = reps > 0 ? reps : options.draws ?? 200;
     const kS = new Float64Array(nr), tS = new Float64Array(nr);
     for (let r = 0; r < nr; ++r) {
@@ -85,10 +84,32 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
         tS[r] = Number.isFinite(tr) ? tr + (((g.tauHi - g.tauLo) * l) / 3.92) * normal() : 0;
       }
     }
-    const prob = stretchProbabilities(system, context, kS, tS, periodicOptions);
+    return { kS, tS };
+  };
+  const ringKappa = whole.kappa * l;
+  const ringProb = ferroRing ? (() => {
+    const r = replicateMeans(whole, ringKappa, 0);
+    return stretchProbabilities(system, "ring", r.kS, r.tS, periodicOptions);
+  })() : null;
+  const ringLabels = ferroRing ? stretchLabels(system, "ring", ringKappa, 0, periodicOptions) : null;
+  const periodicCells: { g: Segment; texture: Float64Array; halfPeriod: number }[] = [];
+  const models: StretchModel[] = segments.map((g): StretchModel => {
+    const flags: string[] = [];
+    const kr = g.kappa * l, tr = Number.isFinite(g.tau) ? g.tau * l : NaN;
+    const context: StretchContext = ferroRing ? "ring" : g.kind === "straight" ? "straight" : g.kind === "helix" ? "helix" : ringWire ? "ring" : g.kind === "arc" ? "arc" : "helix";
+    const tUse = context === "helix" ? (Number.isFinite(tr) ? tr : 0) : 0;
+    const hom = homogeneousState(system, kr, tUse);
+    const labels = ringLabels ?? stretchLabels(system, context, kr, tUse, periodicOptions);
+    const { kS, tS } = replicateMeans(g, kr, tr);
+    const prob = ringProb ?? stretchProbabilities(system, context, kS, tS, periodicOptions);
     if (prob.uncertain) flags.push("uncertain: the band straddles the phase boundary or the stability line");
     if (labels.stability === "metastable") flags.push("metastable: a periodic texture has lower energy than the linearly stable homogeneous state");
-    if (context === "ring" && system.order === "ferro" && labels.state === "periodic") flags.push("ring onion state (two walls), reported as periodic");
+    // full period (2 x the energy's half-period), only where the periodic state wins or may win
+    const mayBePeriodic = labels.state === "periodic" || prob.periodic > 0;
+    const period = labels.periodic !== null && mayBePeriodic && !ferroRing ? 2 * labels.periodic.period * l : null;
+    if (labels.periodic !== null && mayBePeriodic && !ferroRing) periodicCells.push({ g, texture: labels.periodic.texture, halfPeriod: labels.periodic.period });
+    if (labels.state === "periodic" && period !== null && g.s1 - g.s0 < period) flags.push(`periodic label on a stretch shorter than one period (${((g.s1 - g.s0) / period).toPrecision(2)} periods): the texture there is set by the neighbours and the ends`);
+    if (labels.periodic?.atUpperBound && mayBePeriodic) flags.push("periodic texture at the longest period searched: a dilute kink lattice, period only a lower bound");
     // validity
     const len = g.s1 - g.s0;
     if (len < (options.shortStretch ?? 3) * l) flags.push(`short: ${(len / l).toPrecision(3)} magnetic lengths (< ${options.shortStretch ?? 3}); the constant-parameter model is doubtful`);
@@ -117,7 +138,7 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
       uncertain: prob.uncertain,
       energyReduced: hom.energy,
       periodicEnergyReduced: labels.periodic?.energy ?? null,
-      period: labels.periodic !== null ? labels.periodic.period * l : null,
+      period,
       dmi: material.exchange !== null ? 2 * material.exchange * Math.hypot(g.kappa, Number.isFinite(g.tau) && context === "helix" ? g.tau : 0) : null,
       dmiReduced: Math.hypot(kr, tUse),
       anisotropyConstants: Array.from(eig.values, (v) => (material.anisotropy !== null ? v * material.anisotropy : v)),
@@ -127,14 +148,54 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
       flags,
     };
   });
-  // relaxed texture along the real wire
+  // relaxed texture along the real wire: several starts, the lowest kept and named
   const chain = wireChain(profile, l, system);
-  const relaxed = relaxWire(chain, system, inter.kappaReduced, Float64Array.from(inter.tauReduced, (t) => (Number.isFinite(t) ? t : 0)));
+  const tauRelax = Float64Array.from(inter.tauReduced, (t) => (Number.isFinite(t) ? t : 0));
+  const homStart = relaxStartHomogeneous(system, inter.kappaReduced, tauRelax);
+  const starts = textureStarts(profile, sRed, homStart, periodicCells.map((c) => ({ i0: c.g.i0, i1: c.g.i1, texture: c.texture, halfPeriod: c.halfPeriod })));
+  const relaxed = relaxWire(chain, system, inter.kappaReduced, tauRelax, starts);
   if (!relaxed.converged) warnings.push("texture relaxation stopped before convergence");
+  const nameOf = (name: string, local: Float64Array): TextureState => {
+    if (ferroRing) {
+      const walls = ringWalls(local);
+      return walls === 0 ? "vortex" : walls === 2 ? "onion" : "multidomain";
+    }
+    return name === "periodic" ? "periodic" : name === "lab-uniform" ? "lab-uniform" : name === "homogeneous" ? "homogeneous" : "local-uniform";
+  };
+  const textureState = nameOf(relaxed.name, relaxed.local);
+  const alternatives: TextureAlternative[] = relaxed.alternatives.map((x) => ({
+    state: nameOf(x.name, x.local),
+    energyReduced: x.energy,
+    energyJ: energyUnit !== null ? x.energy * energyUnit : null,
+    aboveGroundReduced: x.energy - relaxed.energy,
+    converged: x.converged,
+  }));
   const lab = new Float64Array(3 * profile.n);
   for (let i = 0; i < profile.n; ++i)
     for (let c = 0; c < 3; ++c)
       lab[3 * i + c] = relaxed.local[3 * i] * profile.T[3 * i + c] + relaxed.local[3 * i + 1] * profile.N[3 * i + c] + relaxed.local[3 * i + 2] * profile.B[3 * i + c];
+  const ring = profile.closed ? ringState(system.order, inter.kappaReduced, profile.length / l, relaxed.local, textureState) : null;
+  if (ring?.caution) warnings.push(ring.caution);
+  if (ferroRing && ring !== null) {
+    // every stretch of a closed FM wire carries the ring's state; the vortex is metastable when the
+    // onion wins and the vortex is still among the relaxed local minima
+    const ringLabel: GroundState = textureState === "vortex" ? "vortex" : "onion";
+    const vortexAlt = alternatives.some((x) => x.state === "vortex");
+    const stability: Stability = ringLabel === "vortex" ? "stable" : vortexAlt ? "metastable" : "unstable";
+    if (textureState === "multidomain") warnings.push("closed FM wire: the lowest texture found has more than two walls (labelled onion)");
+    if (ring.nearCircular && ring.closedForm !== null && ring.closedForm.state !== ringLabel) {
+      warnings.push(`closed FM wire: the relaxed texture is the ${ringLabel} but the circle of the same length (kappa l = ${ring.kappaCircleReduced.toPrecision(3)}) prefers the ${ring.closedForm.state}`);
+    }
+    for (let k = 0; k < models.length; ++k) {
+      const fl = models[k].flags.filter((f) => !f.startsWith("metastable"));
+      if (stability === "metastable") fl.push("metastable: the vortex is a local minimum above the onion ground state of the ring");
+      models[k] = { ...models[k], state: ringLabel, homogeneousStability: stability, flags: fl };
+    }
+  } else {
+    const anyPeriodic = models.some((m) => m.state === "periodic");
+    if (anyPeriodic && textureState !== "periodic") warnings.push(`a stretch is labelled periodic but the lowest texture found on the whole wire is ${textureState} (the finite wire's ends and neighbours decide)`);
+    if (!anyPeriodic && textureState === "periodic") warnings.push("the lowest texture found on the whole wire is the tiled periodic texture although no stretch is labelled periodic (band straddling the boundary)");
+  }
   // pinning landscape
   let landscape: PinningLandscape | null = null;
   let pinning: PinningSite[] = [];
@@ -162,8 +223,7 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
   }
   const gp = system.order === "antiferro" ? gapProfile(system, sRed, inter.kappaReduced, inter.tauReduced) : null;
   if (gp !== null && gp.valid.some((v) => v === 0)) warnings.push("local magnon gap profile not valid everywhere (geometry not slowly varying, nearly straight or unstable): see gapProfile.valid");
-  const ringL = system.order === "antiferro" && ringWire ? ringLevels(segments[0].kappa * l, 6) : null;
-  if (profile.closed && system.order === "antiferro" && !ringWire) warnings.push("closed wire that is not one arc: no ring levels (the local gap profile applies where valid)");
+  const ringL = ring?.levels !== null && ring?.levels !== undefined ? [...ring.levels] : null;
   return {
     unit: "m",
     material,
@@ -171,6 +231,8 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
     pinning,
     landscape,
     texture: {
+      state: textureState,
+      alternatives,
       local: relaxed.local,
       lab,
       energyReduced: relaxed.energy,
@@ -181,6 +243,26 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
     interactions: inter,
     gapProfile: gp,
     ringLevels: ringL,
+    ring,
     warnings: ["model estimates, not measurements: thin-wire limit, curvature and torsion radii much larger than the lattice spacing and the thickness, no field, no damping", ...warnings],
   };
+}
+
+/** Mean of the finite entries (NaN when none). */
+function mean(a: ArrayLike<number>): number {
+  let acc = 0, m = 0;
+  for (let i = 0; i < a.length; ++i) if (Number.isFinite(a[i])) { acc += a[i]; m++; }
+  return m > 0 ? acc / m : NaN;
+}
+
+/** The local homogeneous state per sample, sign continuous (the same start `relaxWire` builds). */
+function relaxStartHomogeneous(system: ReducedSystem, kappa: ArrayLike<number>, tau: ArrayLike<number>): Float64Array {
+  const n = kappa.length;
+  const v = new Float64Array(3 * n);
+  for (let i = 0; i < n; ++i) {
+    const u = homogeneousState(system, kappa[i], tau[i]).u;
+    const sgn = i > 0 && u[0] * v[3 * i - 3] + u[1] * v[3 * i - 2] + u[2] * v[3 * i - 1] < 0 ? -1 : 1;
+    for (let c = 0; c < 3; ++c) v[3 * i + c] = sgn * u[c];
+  }
+  return v;
 }

@@ -91,7 +91,19 @@ export interface MagnonGaps {
   readonly unstable: boolean;
 }
 
-export type GroundState = "homogeneous" | "periodic";
+/**
+ * Ground-state label of a stretch: homogeneous or periodic (open wires, AFM rings); on a closed FM
+ * wire the whole ring decides: vortex (m along T all round) or onion (two head-to-head walls).
+ */
+export type GroundState = "homogeneous" | "periodic" | "vortex" | "onion";
+
+/**
+ * What a relaxed texture is: homogeneous (relaxed from the local homogeneous state), periodic (from
+ * the periodic texture of the stretches labelled periodic), lab-uniform (from a direction fixed in
+ * the lab), local-uniform (from a fixed local axis); on a closed FM wire vortex, onion (2 walls) or
+ * multidomain (4 or more walls), counted from the sign changes of m . T.
+ */
+export type TextureState = "homogeneous" | "periodic" | "lab-uniform" | "local-uniform" | "vortex" | "onion" | "multidomain";
 export type Stability = "stable" | "metastable" | "unstable";
 
 /** Per-stretch result in model.json. Lengths in m, kappa and tau in 1/m. */
@@ -123,8 +135,13 @@ export interface StretchModel {
   readonly uncertain: boolean;
   /** Homogeneous energy density (reduced, units of K) and, when K is known, in J/m^3. */
   readonly energyReduced: number;
-  /** Best periodic energy density found (reduced) and its period (m); null when not searched. */
+  /** Best periodic energy density found (reduced); null when not searched. */
   readonly periodicEnergyReduced: number | null;
+  /**
+   * Full period of the periodic texture (m): twice the half-period over which the energy repeats
+   * (the vector reverses after a half-period). Only where the periodic state wins or is within the
+   * bands of winning; null otherwise.
+   */
   readonly period: number | null;
   /** Geometric DMI magnitude 2 A sqrt(kappa^2 + tau^2) (J/m^2), null when A is unknown. */
   readonly dmi: number | null;
@@ -163,8 +180,22 @@ export interface PinningLandscape {
   readonly method: string;
 }
 
-/** The relaxed texture along the wire. */
+/** A relaxed texture other than the lowest: a metastable state of the whole wire. */
+export interface TextureAlternative {
+  readonly state: TextureState;
+  readonly energyReduced: number;
+  readonly energyJ: number | null;
+  /** energyReduced minus the ground texture's energy (reduced, >= 0). */
+  readonly aboveGroundReduced: number;
+  readonly converged: boolean;
+}
+
+/** The relaxed texture along the wire: the lowest of several relaxations. */
 export interface Texture {
+  /** What the exported (lowest) texture is. */
+  readonly state: TextureState;
+  /** The other distinct textures found (metastable), lowest first. */
+  readonly alternatives: readonly TextureAlternative[];
   /** Unit vectors in local (T, N, B) components, interleaved 3 per sample. */
   readonly local: Float64Array;
   /** The same in lab components, interleaved. */
@@ -201,6 +232,27 @@ export interface GapProfile {
   readonly valid: Uint8Array;
 }
 
+/** Ring state of a closed wire (reduced units unless stated). */
+export interface RingModel {
+  readonly order: MagneticOrder;
+  /** FM: vortex | onion | multidomain from the relaxed texture; AFM: binormal (n = +-B all round) or the texture state. */
+  readonly state: TextureState | "binormal";
+  /** 2 pi l / L: the curvature of the circle of the same length. */
+  readonly kappaCircleReduced: number;
+  /** Mean and relative spread (standard deviation / mean) of kappa l along the wire. */
+  readonly kappaMeanReduced: number;
+  readonly kappaSpread: number;
+  /** Spread below 5%: closed forms of a circle apply. */
+  readonly nearCircular: boolean;
+  /** FM: closed-form energies per unit length of the circle of the same length (units of K), and
+   *  the closed-form label (vortex below kappa l = 0.65690, onion above); null for an AFM. */
+  readonly closedForm: { readonly vortex: number; readonly onion: number; readonly state: "vortex" | "onion" } | null;
+  /** AFM: magnon levels of the circle of the same length (null for an FM or far from a circle). */
+  readonly levels: readonly { readonly j: number; readonly lower: number; readonly upper: number }[] | null;
+  /** Why the circle's closed forms are only indicative here, or null. */
+  readonly caution: string | null;
+}
+
 /** Everything the CLI writes into model.json (lengths in m). */
 export interface WireModel {
   readonly unit: "m";
@@ -212,5 +264,7 @@ export interface WireModel {
   readonly interactions: SampleInteractions;
   readonly gapProfile: GapProfile | null;
   readonly ringLevels: { readonly j: number; readonly lower: number; readonly upper: number }[] | null;
+  /** Closed wires: the ring state (null for an open wire). */
+  readonly ring: RingModel | null;
   readonly warnings: readonly string[];
 }

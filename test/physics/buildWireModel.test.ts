@@ -1,6 +1,6 @@
 import { describe, expect, it } from "vitest";
 import { segment } from "../../src/frame/segment.js";
-import { BOLTZMANN, buildWireModel, firstOrderPinning, parseMaterial } from "../../src/physics/index.js";
+import { BOLTZMANN, buildWireModel, ferroRingEnergies, firstOrderPinning, parseMaterial } from "../../src/physics/index.js";
 import { makeProfile, rotationMatrix } from "../support/profiles.js";
 
 const l = 5e-9; // magnetic length (invented material)
@@ -88,5 +88,66 @@ describe("buildWireModel pinning on a planar FM wire with a curvature bump (PHYS
     const fo = firstOrderPinning(Float64Array.from(p.s, (x) => x / lf), Float64Array.from(p.kappa, (x) => x * lf), Float64Array.of(c / lf, 5), "ferro");
     expect(Math.abs((fo[1] - fo[0]) / site.depthReduced - 1)).toBeLessThan(0.1); // measured ~1.2%
     for (let k = 1; k < m.pinning.length; ++k) expect(m.pinning[k].depthReduced).toBeLessThanOrEqual(m.pinning[k - 1].depthReduced);
+  });
+});
+
+describe("closed FM rings: vortex or onion on the whole wire (PHYSICS.md section 3)", () => {
+  const lf = 10e-9;
+  const fmMat = parseMaterial({ order: "ferro", magneticLength: lf }, "fm.json");
+  const ring = (k: number, n = 400) => makeProfile({ n, length: (2 * Math.PI * lf) / k, closed: true, kappa: () => k / lf, tau: () => 0 });
+  // PHYSICS.md section 3 (own derivation): vortex e = kappa^2 - 1, onion from the pendulum orbit;
+  // ground state vortex below kappa 0.65689717, onion above. Energies per l.
+  it.each([[0.5, "vortex", -0.75, "onion"], [0.8, "onion", null, "vortex"]] as const)("kappa l = %s: labelled %s, texture energy within 1% of the closed form", (k, label, closed, other) => {
+    const p = ring(k);
+    const m = buildWireModel(p, segment(p), fmMat, { pinning: false });
+    const L = (2 * Math.PI) / k;
+    const expected = (closed ?? ferroRingEnergies(k).onion) * L;
+    expect(m.segments.every((g) => g.state === label)).toBe(true);
+    expect(m.texture.state).toBe(label);
+    expect(m.ring!.state).toBe(label);
+    expect(m.ring!.closedForm!.state).toBe(label);
+    expect(Math.abs(m.texture.energyReduced / expected - 1)).toBeLessThan(0.01); // target 1%
+    // the other ring state is found as a metastable texture, with its energy
+    const alt = m.texture.alternatives.find((x) => x.state === other);
+    expect(alt).toBeDefined();
+    expect(alt!.aboveGroundReduced).toBeGreaterThan(0);
+    const otherExpected = (other === "vortex" ? k * k - 1 : ferroRingEnergies(k).onion) * L;
+    expect(Math.abs(alt!.energyReduced / otherExpected - 1)).toBeLessThan(0.01);
+    expect(m.segments[0].homogeneousStability).toBe(label === "vortex" ? "stable" : "metastable");
+    expect(m.segments[0].period).toBeNull();
+  });
+  it("an elliptical closed FM wire (several stretches) is still labelled vortex or onion, with a caution", () => {
+    // ellipse-like curvature profile: kappa(s) = k0 (1 + 0.3 cos(2 * 2 pi s / L)), invented geometry
+    const k0 = 0.9, L = (2 * Math.PI * lf) / k0;
+    const p = makeProfile({ n: 400, length: L, closed: true, kappa: (s) => (k0 / lf) * (1 + 0.3 * Math.cos((4 * Math.PI * s) / L)), tau: () => 0 });
+    const m = buildWireModel(p, segment(p), fmMat, { pinning: false });
+    expect(["vortex", "onion"]).toContain(m.texture.state);
+    expect(m.segments.every((g) => g.state === m.texture.state)).toBe(true);
+    expect(m.ring!.nearCircular).toBe(false);
+    expect(m.ring!.caution).toMatch(/far from a circle/);
+  });
+});
+
+describe("the exported texture is the labelled ground state", () => {
+  it("AFM helix (1, 1) labelled periodic: the texture is the periodic one, energy near 0.191 per l, not e0 0.382", () => {
+    // PHYSICS.md section 4: (1, 1) metastable, lower periodic energy 0.191 vs e0 0.382
+    const p = helix(1, 1);
+    const m = buildWireModel(p, segment(p), afm, { pinning: false });
+    expect(m.segments[0].state).toBe("periodic");
+    expect(m.texture.state).toBe("periodic");
+    const L = 40;
+    // measured 0.1837 per l: the free ends of a 40 l wire lower the bulk value 0.191 a little
+    expect(Math.abs(m.texture.energyReduced / L / 0.191 - 1)).toBeLessThan(0.05);
+    // on an open wire kinks enter from the ends: the homogeneous start relaxes into the periodic texture
+    for (const x of m.texture.alternatives) expect(x.energyReduced).toBeGreaterThan(m.texture.energyReduced);
+    // full period = 2 x the half-period of the energy
+    expect(m.segments[0].period).toBeGreaterThan(0);
+  });
+  it("no period where the homogeneous state wins (AFM (1, 0.5))", () => {
+    const p = helix(1, 0.5);
+    const g = buildWireModel(p, segment(p), afm, { pinning: false }).segments[0];
+    expect(g.state).toBe("homogeneous");
+    expect(g.probabilities.periodic).toBe(0);
+    expect(g.period).toBeNull();
   });
 });
