@@ -1,4 +1,5 @@
-import type { Material, StretchModel, TextureState, WireModel } from "../physics/types.js";
+import { VALIDITY_BITS, VALIDITY_TEXT } from "../physics/sampleValidity.js";
+import type { Material, PinningSite, StretchModel, TextureState, WireModel } from "../physics/types.js";
 import { PER_METRE, type LengthUnit } from "../types.js";
 import type { Analysis } from "./analyzeTrace.js";
 import { jsonNumber } from "./formatNumber.js";
@@ -35,6 +36,8 @@ export interface MaterialEntry {
   crossSection: Num;
   temperature: number;
   magnonSpeed: Num;
+  saturationMagnetisation: Num;
+  anisotropyFromShape: boolean;
 }
 
 /** One stretch in model.json. Physics fields are null for a geometry-only run. */
@@ -60,6 +63,40 @@ export interface SegmentEntry {
   flags: string[];
 }
 
+/** A pinning site or barrier in model.json (lengths in `unit`). */
+export interface PinningEntry {
+  rank: number; kind: "site" | "barrier"; s: number; depthJ: Num; depthKT: Num; depthReduced: Num;
+  depthReducedLo: Num; depthReducedHi: Num; depthKTLo: Num; depthKTHi: Num;
+  relevant: boolean; note: string | null; flags: string[];
+  depinning: { towardPlus: Num; towardMinus: Num; field: Num; fieldMilliTesla: Num } | null;
+}
+
+function pinningEntry(x: PinningSite, i: number, k: number): PinningEntry {
+  const J = (v: number | null): Num => (v === null ? null : jsonNumber(v));
+  return {
+    rank: i + 1, kind: x.kind, s: jsonNumber(x.s * k) ?? 0, depthJ: J(x.depthJ), depthKT: J(x.depthKT), depthReduced: J(x.depthReduced),
+    depthReducedLo: J(x.depthReducedLo), depthReducedHi: J(x.depthReducedHi), depthKTLo: J(x.depthKTLo), depthKTHi: J(x.depthKTHi),
+    relevant: x.relevant, note: x.note, flags: [...x.flags],
+    depinning: x.depinning === null ? null : {
+      towardPlus: J(x.depinning.towardPlus), towardMinus: J(x.depinning.towardMinus), field: J(x.depinning.field), fieldMilliTesla: J(x.depinning.fieldTesla * 1000),
+    },
+  };
+}
+
+/** Runs of samples with the same non-zero validity code, as arc-length ranges in `unit`. */
+function validityRanges(mask: Uint8Array, s: Float64Array, k: number): { code: number; s0: number; s1: number }[] {
+  const out: { code: number; s0: number; s1: number }[] = [];
+  let i = 0;
+  while (i < mask.length) {
+    const c = mask[i];
+    let j = i;
+    while (j + 1 < mask.length && mask[j + 1] === c) j++;
+    if (c !== 0) out.push({ code: c, s0: jsonNumber(s[i] * k) ?? 0, s1: jsonNumber(s[j] * k) ?? 0 });
+    i = j + 1;
+  }
+  return out;
+}
+
 /** The model.json document (see src/export/schemas/model.schema.json). */
 export interface ModelDocument {
   $schema: string;
@@ -78,7 +115,10 @@ export interface ModelDocument {
   };
   material: MaterialEntry | null;
   segments: SegmentEntry[];
-  pinning: { rank: number; s: number; depthJ: Num; depthKT: Num; depthReduced: Num }[];
+  pinning: PinningEntry[];
+  pinningMinor: PinningEntry[];
+  barriers: PinningEntry[];
+  validityMap: { checks: { code: number; meaning: string }[]; ranges: { code: number; s0: number; s1: number }[] } | null;
   texture: {
     state: TextureState; energyReduced: Num; energyJ: Num; iterations: number; converged: boolean;
     alternatives: { state: TextureState; energyReduced: Num; energyJ: Num; aboveGroundReduced: Num; converged: boolean }[];
@@ -138,6 +178,8 @@ export function materialEntry(m: Material, unit: LengthUnit, file: string | null
     crossSection: m.crossSection === null ? null : jsonNumber(m.crossSection * k * k),
     temperature: m.temperature,
     magnonSpeed: m.magnonSpeed === null ? null : jsonNumber(m.magnonSpeed),
+    saturationMagnetisation: m.saturationMagnetisation === null ? null : jsonNumber(m.saturationMagnetisation),
+    anisotropyFromShape: m.anisotropyFromShape,
   };
 }
 
@@ -245,13 +287,13 @@ export function buildModelDocument(a: Analysis, options: ModelDocumentOptions): 
     },
     material: a.material === null ? null : materialEntry(a.material, unit, options.materialFile ?? null),
     segments: a.segments.map((_, i) => segmentEntry(a, i, model?.segments[i] ?? null, unit)),
-    pinning: (model?.pinning ?? []).map((s, i) => ({
-      rank: i + 1,
-      s: jsonNumber(s.s * k) ?? 0,
-      depthJ: s.depthJ === null ? null : jsonNumber(s.depthJ),
-      depthKT: s.depthKT === null ? null : jsonNumber(s.depthKT),
-      depthReduced: jsonNumber(s.depthReduced),
-    })),
+    pinning: (model?.pinning ?? []).map((x, i) => pinningEntry(x, i, k)),
+    pinningMinor: (model?.pinningMinor ?? []).map((x, i) => pinningEntry(x, i, k)),
+    barriers: (model?.barriers ?? []).map((x, i) => pinningEntry(x, i, k)),
+    validityMap: model === null ? null : {
+      checks: (Object.keys(VALIDITY_BITS) as (keyof typeof VALIDITY_BITS)[]).map((key) => ({ code: VALIDITY_BITS[key], meaning: VALIDITY_TEXT[key] })),
+      ranges: validityRanges(model.validity, p.s, k),
+    },
     texture: model === null ? null : {
       state: model.texture.state,
       energyReduced: jsonNumber(model.texture.energyReduced),

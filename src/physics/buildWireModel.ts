@@ -7,7 +7,9 @@ import { interactions } from "./interactions.js";
 import { symEigen3 } from "./linalg.js";
 import { magnonGaps } from "./magnonGaps.js";
 import type { PeriodicOptions } from "./periodicState.js";
-import { firstOrderPinning, pinningScan, pinningSites, type PinningOptions } from "./pinning.js";
+import { firstOrderPinning, pinningScan, type PinningOptions } from "./pinning.js";
+import { pinningSummary } from "./pinningSummary.js";
+import { sampleValidity, validityLines } from "./sampleValidity.js";
 import { reducedSystem } from "./reducedSystem.js";
 import { relaxWire, wireChain } from "./relaxWire.js";
 import { ringState, ringWalls } from "./ringState.js";
@@ -53,6 +55,7 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
   const kT = BOLTZMANN * material.temperature;
   const inter = interactions(profile, material, system);
   const sRed = Float64Array.from(profile.s, (x) => x / l);
+  const validity = sampleValidity(profile, material);
   const rand = mulberry32(options.seed ?? 1);
   const normal = (): number => {
     let a = rand();
@@ -114,9 +117,10 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
     const len = g.s1 - g.s0;
     if (len < (options.shortStretch ?? 3) * l) flags.push(`short: ${(len / l).toPrecision(3)} magnetic lengths (< ${options.shortStretch ?? 3}); the constant-parameter model is doubtful`);
     if (len < profile.resolution) flags.push("shorter than the resolution length of the geometry fit");
-    const radius = g.kappa > 0 ? 1 / g.kappaHi : Infinity;
-    if (material.thickness !== null && radius < 5 * material.thickness) flags.push(`curvature radius ${radius.toExponential(2)} m not well above the thickness (model validity)`);
-    if (material.latticeSpacing !== null && radius < 10 * material.latticeSpacing) flags.push(`curvature radius ${radius.toExponential(2)} m not well above the lattice spacing (model validity)`);
+    // per-sample validity: a sharp bend inside a stretch is flagged even when the mean is fine
+    let nBad = 0;
+    for (let i = g.i0; i < g.i1; ++i) if (validity[i] !== 0) nBad++;
+    for (const line of validityLines(validity, g.i0, g.i1)) flags.push(`validity: ${line} (${nBad} of ${g.i1 - g.i0} samples fail a check)`);
     if (g.kind === "helix" && Number.isFinite(g.tauLo) && g.tauLo <= 0 && g.tauHi >= 0) flags.push("torsion not resolved (band contains 0)");
     if ((g.kind === "arc" || g.kind === "irregular") && Number.isFinite(g.tauHi - g.tauLo) && (g.tauHi - g.tauLo) * l > 0.2) flags.push("torsion not resolved (wide band)");
     if (g.kind === "irregular") flags.push("irregular: geometry not constant; stretch labels use the mean");
@@ -198,16 +202,29 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
   }
   // pinning landscape
   let landscape: PinningLandscape | null = null;
-  let pinning: PinningSite[] = [];
+  let pinning: PinningSite[] = [], pinningMinor: PinningSite[] = [], barriers: PinningSite[] = [];
   if (options.pinning !== false) {
     if (models.some((m) => m.state === "periodic")) warnings.push("a stretch has a periodic ground state: the wall landscape there is taken on the relaxed texture and is indicative only");
-    const scan = pinningScan(chain, sRed, relaxed.local, inter.kappaReduced, system.order, options.pinning ?? {});
+    const scan = pinningScan(chain, sRed, relaxed.local, inter.kappaReduced, system.order, { ...(options.pinning ?? {}), keepWalls: true });
     const fo = firstOrderPinning(sRed, inter.kappaReduced, scan.q, system.order);
-    const sites = pinningSites(scan.q, scan.energy);
-    pinning = sites.map((x) => {
-      const depthJ = energyUnit !== null ? x.depth * energyUnit : null;
-      return { s: x.q * l, depthJ, depthKT: depthJ !== null ? depthJ / kT : null, depthReduced: x.depth };
+    const replicates = reps > 0 ? {
+      count: reps,
+      kappa: Float64Array.from(profile.kappaSamples!, (x) => x * l),
+      tau: profile.tauSamples !== undefined ? Float64Array.from(profile.tauSamples, (x) => x * l) : null,
+    } : null;
+    if (replicates === null) warnings.push("no bootstrap replicates kept with the profile: pinning depths have no 95% interval");
+    const ms = material.saturationMagnetisation;
+    const summary = pinningSummary({
+      scan, h: chain.h, q: system.q, replicates, kappaReduced: inter.kappaReduced, tauReduced: tauRelax, sReduced: sRed, validity,
+      l, energyUnit, kT,
+      depinning: system.order === "ferro" && ms !== null && material.anisotropy !== null ? { anisotropy: material.anisotropy, saturationMagnetisation: ms } : null,
     });
+    pinning = summary.sites;
+    pinningMinor = summary.minor;
+    barriers = summary.barriers;
+    if (pinningMinor.length > 0) warnings.push(`${pinningMinor.length} thermally irrelevant pinning ${pinningMinor.length === 1 ? "site" : "sites"} (95% interval includes 0 or depth below 1 k_B T) listed apart`);
+    if (system.order === "ferro" && ms === null) warnings.push("no saturation magnetisation Ms in the material: no depinning fields");
+    else if (system.order === "ferro") warnings.push("depinning fields from the largest slope of the sampled landscape (1 l apart on the flanks): lower bounds of the quasi-static rigid-wall field, no thermal activation");
     landscape = {
       q: Float64Array.from(scan.q, (x) => x * l),
       energy: scan.energy,
@@ -229,6 +246,9 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
     material,
     segments: models,
     pinning,
+    pinningMinor,
+    barriers,
+    validity,
     landscape,
     texture: {
       state: textureState,

@@ -1,4 +1,4 @@
-import { chainEnergy, normalise, type Chain } from "./chain.js";
+import { chainEnergy, makeChain, normalise, type Chain } from "./chain.js";
 import { relaxChain } from "./relaxChain.js";
 import type { MagneticOrder } from "./types.js";
 
@@ -253,14 +253,29 @@ export function firstOrderPinning(s: Float64Array, kappaReduced: ArrayLike<numbe
   return out;
 }
 
+/** A local minimum of a landscape (reduced units) with the grid indices that set its depth. */
+export interface LandscapeWell {
+  /** Position and energy refined by a parabola through the three nearest points. */
+  readonly q: number;
+  readonly energy: number;
+  /** Lower of the two barriers to the highest points before the neighbouring minima (or the ends). */
+  readonly depth: number;
+  /** Grid index of the minimum, and of the highest point on each side (-1 when none). */
+  readonly k: number;
+  readonly kLeft: number;
+  readonly kRight: number;
+}
+
 /**
  * Pinning sites of a landscape U(q): interior local minima, position and energy refined by a
  * parabola through the three nearest points, depth = the lower of the two barriers to the
  * highest points between this minimum and its neighbouring minima (or the ends). NaN entries
- * split the landscape; depths below minDepth (default 1e-6 of max |U|) are dropped. Sorted deepest first. Reduced units in, reduced out. Cost O(m).
+ * split the landscape; depths below minDepth (default 1e-6 of max |U|) are dropped. Sorted deepest
+ * first. Barriers (maxima: a wall pushed away) are the wells of -U. Reduced units in, reduced out.
+ * Cost O(m).
  * @example pinningSites(q, U)[0].depth // U(far) - U(0) for a single bump
  */
-export function pinningSites(q: Float64Array, u: Float64Array, minDepth?: number): { q: number; depth: number; energy: number }[] {
+export function pinningSites(q: Float64Array, u: Float64Array, minDepth?: number): LandscapeWell[] {
   const m = q.length;
   let scale = 0;
   for (let k = 0; k < m; ++k) if (Number.isFinite(u[k])) scale = Math.max(scale, Math.abs(u[k]));
@@ -271,12 +286,12 @@ export function pinningSites(q: Float64Array, u: Float64Array, minDepth?: number
     if (!Number.isFinite(u[k - 1]) || !Number.isFinite(u[k]) || !Number.isFinite(u[k + 1])) continue;
     if (u[k] < u[k - 1] && u[k] <= u[k + 1]) minima.push(k);
   }
-  const out: { q: number; depth: number; energy: number }[] = [];
+  const out: LandscapeWell[] = [];
   minima.forEach((k, idx) => {
     const stopL = idx > 0 ? minima[idx - 1] : -1, stopR = idx + 1 < minima.length ? minima[idx + 1] : m;
-    let maxL = -Infinity, maxR = -Infinity;
-    for (let j = k - 1; j > stopL && Number.isFinite(u[j]); --j) maxL = Math.max(maxL, u[j]);
-    for (let j = k + 1; j < stopR && Number.isFinite(u[j]); ++j) maxR = Math.max(maxR, u[j]);
+    let maxL = -Infinity, maxR = -Infinity, kL = -1, kR = -1;
+    for (let j = k - 1; j > stopL && Number.isFinite(u[j]); --j) if (u[j] > maxL) { maxL = u[j]; kL = j; }
+    for (let j = k + 1; j < stopR && Number.isFinite(u[j]); ++j) if (u[j] > maxR) { maxR = u[j]; kR = j; }
     // parabola through k-1, k, k+1 (uneven spacing allowed)
     const x0 = q[k - 1], x1 = q[k], x2 = q[k + 1], y0 = u[k - 1], y1 = u[k], y2 = u[k + 1];
     const d0 = (y1 - y0) / (x1 - x0), d1 = (y2 - y1) / (x2 - x1);
@@ -285,13 +300,33 @@ export function pinningSites(q: Float64Array, u: Float64Array, minDepth?: number
     if (a > 0) {
       const b = d0 - a * (x0 + x1);
       qm = Math.min(x2, Math.max(x0, -b / (2 * a)));
-      um = y1 + (qm - x1) * (d0 + a * (qm - x0)) ;
+      um = y1 + (qm - x1) * (d0 + a * (qm - x0));
       um = Math.min(um, y1);
     }
     const depth = Math.min(maxL, maxR) - um;
-    if (depth > floor) out.push({ q: qm, depth, energy: um });
+    if (depth > floor) out.push({ q: qm, depth, energy: um, k, kLeft: kL, kRight: kR });
   });
   return out.sort((x, y) => y.depth - x.depth);
+}
+
+/**
+ * Wall energy U = E(wall) - E(background) of a relaxed window (`keepWalls`) on a chain with other
+ * kappa l, tau l at its nodes, the textures held fixed. Because both textures are constrained
+ * minima, this is the first-order (Hellmann-Feynman) response of U to a change of the geometry
+ * (common practice in perturbation theory; exact to first order in the change, the relaxation of the
+ * textures only enters at second order). Used for the bootstrap replicates of kappa(s), tau(s).
+ * h: the chain's bond lengths (reduced). Cost O(window).
+ */
+export function wallEnergyWith(wall: RelaxedWall, h: Float64Array, q: Float64Array, kappaReduced: ArrayLike<number>, tauReduced: ArrayLike<number>): number {
+  const nodes = wall.nodes, m = nodes.length;
+  const k = new Float64Array(m), t = new Float64Array(m), hb = new Float64Array(m - 1);
+  for (let a = 0; a < m; ++a) {
+    k[a] = kappaReduced[nodes[a]];
+    t[a] = tauReduced[nodes[a]];
+    if (a + 1 < m) hb[a] = h[nodes[a]];
+  }
+  const chain = makeChain(k, t, hb, q, "open", null);
+  return chainEnergy(chain, wall.wall, null) - chainEnergy(chain, wall.background, null);
 }
 
 /**

@@ -38,6 +38,10 @@ export interface Material {
   readonly temperature: number;
   /** Magnon speed c (m/s) to turn reduced frequencies into rad/s; null when not given. */
   readonly magnonSpeed: number | null;
+  /** Saturation magnetisation Ms (A/m), FM; null when not given. */
+  readonly saturationMagnetisation: number | null;
+  /** true when K was not given and is the shape anisotropy of a thin round wire, mu0 Ms^2 / 4. */
+  readonly anisotropyFromShape: boolean;
 }
 
 /**
@@ -156,16 +160,32 @@ export interface StretchModel {
   readonly flags: readonly string[];
 }
 
-/** A pinning site of a domain wall (reduced and SI). */
+/** A pinning site (a local minimum of the wall energy) or a barrier (a local maximum: a wall pushed away), reduced and SI. */
 export interface PinningSite {
+  readonly kind: "site" | "barrier";
   /** Position along the wire (m). */
   readonly s: number;
-  /** Depth: barrier to the lower of the neighbouring maxima, J (null when K*l*area is unknown). */
+  /** Site: depth = barrier to the lower of the neighbouring maxima; barrier: height above the higher
+   *  neighbouring minimum. J (null when K*l*area is unknown). */
   readonly depthJ: number | null;
   /** Depth in units of k_B T at the material temperature. */
   readonly depthKT: number | null;
   /** Depth in reduced units (K l area). */
   readonly depthReduced: number;
+  /** 95% interval of the depth from the bootstrap replicates of kappa(s), tau(s) (reduced, J, k_B T); null without replicates. */
+  readonly depthReducedLo: number | null;
+  readonly depthReducedHi: number | null;
+  readonly depthKTLo: number | null;
+  readonly depthKTHi: number | null;
+  /** false when the interval includes 0 or the depth is below 1 k_B T (thermally irrelevant). */
+  readonly relevant: boolean;
+  /** Why the site is not relevant, or null. */
+  readonly note: string | null;
+  /** Failing validity checks of the model within l/2 of the site (see VALIDITY_TEXT). */
+  readonly flags: readonly string[];
+  /** FM sites with Ms and K known: the field along the wire that pushes the wall out of the site
+   *  over each side, H = max |dU/dq| / (2 mu0 Ms S) (A/m), the smaller of the two, and mu0 H (T). */
+  readonly depinning: { readonly towardPlus: number; readonly towardMinus: number; readonly field: number; readonly fieldTesla: number } | null;
 }
 
 /** Wall-pinning landscape U(q) along the wire. */
@@ -258,7 +278,14 @@ export interface WireModel {
   readonly unit: "m";
   readonly material: Material;
   readonly segments: readonly StretchModel[];
+  /** Pinning sites that matter (interval above 0, at least 1 k_B T), deepest first. */
   readonly pinning: readonly PinningSite[];
+  /** Thermally irrelevant sites (interval includes 0 or below 1 k_B T), deepest first. */
+  readonly pinningMinor: readonly PinningSite[];
+  /** Barriers (local maxima of the wall energy), highest first, with their relevance. */
+  readonly barriers: readonly PinningSite[];
+  /** Per-sample validity mask (bits of VALIDITY_BITS in ./sampleValidity.ts). */
+  readonly validity: Uint8Array;
   readonly landscape: PinningLandscape | null;
   readonly texture: Texture;
   readonly interactions: SampleInteractions;

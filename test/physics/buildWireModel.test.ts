@@ -72,11 +72,15 @@ describe("buildWireModel on an AFM helix (PHYSICS.md sections 3, 4, 6)", () => {
 });
 
 describe("buildWireModel pinning on a planar FM wire with a curvature bump (PHYSICS.md section 5)", () => {
-  it("the wall through -N pins at the bump: site within l/4, depth in J and k_B T, first order within 10%", () => {
+  it("the wall through -N pins at the bump: site within l/4, depth in J and k_B T with a 95% interval, first order within 10%; a tiny bump is listed apart", () => {
     const lf = 10e-9, K = 5e5, t = 20e-9;
-    const fm = parseMaterial({ order: "ferro", exchange: K * lf * lf, anisotropy: K, thickness: t }, "fm.json");
-    const c = 20.1 * lf;
-    const p = makeProfile({ n: 801, length: 40 * lf, kappa: (s) => (0.3 / lf) * Math.exp(-(((s - c) / lf) ** 2)), tau: () => 0, straightBelow: 1e-3 / lf, band: 0.01 / lf });
+    const fm = parseMaterial({ order: "ferro", exchange: K * lf * lf, anisotropy: K, thickness: t, saturationMagnetisation: 8e5 }, "fm.json");
+    const c = 20.1 * lf, c2 = 33 * lf;
+    const p = makeProfile({
+      n: 801, length: 40 * lf, replicates: 40, seed: 3,
+      kappa: (s) => (0.3 / lf) * Math.exp(-(((s - c) / lf) ** 2)) + (0.0005 / lf) * Math.exp(-(((s - c2) / lf) ** 2)),
+      tau: () => 0, straightBelow: 1e-3 / lf, band: 0.01 / lf,
+    });
     const m = buildWireModel(p, segment(p), fm, {});
     expect(m.pinning.length).toBeGreaterThan(0);
     const site = m.pinning[0];
@@ -88,6 +92,23 @@ describe("buildWireModel pinning on a planar FM wire with a curvature bump (PHYS
     const fo = firstOrderPinning(Float64Array.from(p.s, (x) => x / lf), Float64Array.from(p.kappa, (x) => x * lf), Float64Array.of(c / lf, 5), "ferro");
     expect(Math.abs((fo[1] - fo[0]) / site.depthReduced - 1)).toBeLessThan(0.1); // measured ~1.2%
     for (let k = 1; k < m.pinning.length; ++k) expect(m.pinning[k].depthReduced).toBeLessThanOrEqual(m.pinning[k - 1].depthReduced);
+    // 95% interval from the replicates brackets the central depth and stays above 0
+    expect(site.relevant).toBe(true);
+    expect(site.depthReducedLo!).toBeGreaterThan(0);
+    expect(site.depthReducedLo!).toBeLessThanOrEqual(site.depthReduced);
+    expect(site.depthReducedHi!).toBeGreaterThanOrEqual(site.depthReduced);
+    // the bend at the bump has radius l/0.3 = 33 nm < 5 x 20 nm: flagged at the site
+    expect(site.flags.some((f) => /below 5 wire thicknesses/.test(f))).toBe(true);
+    expect(m.validity.some((v) => v !== 0)).toBe(true);
+    // depinning field with Ms (A/m) and mu0 H (T)
+    expect(site.depinning!.field).toBeGreaterThan(0);
+    expect(site.depinning!.fieldTesla).toBeCloseTo(1.25663706212e-6 * site.depinning!.field, 12);
+    // the tiny bump (k0 0.0005: about 0.6 k_B T here) is thermally irrelevant, listed apart
+    const minor = m.pinningMinor.find((x) => Math.abs(x.s - c2) < lf);
+    expect(minor).toBeDefined();
+    expect(minor!.relevant).toBe(false);
+    expect(minor!.note).toMatch(/thermally irrelevant/);
+    expect(m.pinning.every((x) => x.relevant && x.depthKT! >= 1)).toBe(true);
   });
 });
 

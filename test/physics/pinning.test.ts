@@ -1,6 +1,7 @@
 import { describe, expect, it } from "vitest";
 import { makeChain } from "../../src/physics/chain.js";
-import { firstOrderPinning, pinningLandscape, pinningScan, pinningSites, plainSystem, relaxWire } from "../../src/physics/index.js";
+import { firstOrderPinning, pinningLandscape, pinningScan, pinningSites, plainSystem, relaxWire, wallEnergyWith } from "../../src/physics/index.js";
+import { depinningField } from "../../src/physics/pinningSummary.js";
 
 /** A planar wire (tau = 0) with kappa = kb + k0 exp(-(s - c)^2 / w^2), reduced units, spacing h. */
 function bumpWire(order: "ferro" | "antiferro", kb: number, k0: number, w: number, L: number, h = 0.05, c = 0, tau = 0) {
@@ -121,5 +122,57 @@ describe("AFM wall with torsion: both rotation senses (PHYSICS.md section 5, cor
     expect(Math.abs(sa[0].depth / sb[0].depth - 1)).toBeLessThan(0.05); // target 5%
     expect(Math.abs(sa[0].q - sb[0].q)).toBeLessThan(1e-4);
     expect(Math.abs(sa[0].q - 0.4)).toBeLessThan(0.5);
+  });
+});
+
+describe("pinning depths under a change of geometry (first-order response, bootstrap intervals)", () => {
+  it("the kept walls reproduce the landscape on the central geometry exactly (consistency)", () => {
+    const b = bumpWire("ferro", 0, 0.3, 1, 40);
+    const r = pinningLandscape(b.chain, b.s, b.bg.local, b.k, "ferro", { nodes: [b.node(0), b.node(5)], keepWalls: true });
+    const t = new Float64Array(b.k.length);
+    for (let j = 0; j < 2; ++j) expect(wallEnergyWith(r.walls![j]!, b.chain.h, b.chain.q, b.k, t)).toBeCloseTo(r.energy[j], 10);
+  });
+  it("a 5% stronger bump: the fixed-texture depth change matches a full re-relaxation within 10% of the change", () => {
+    // Hellmann-Feynman (common practice): the textures are constrained minima, so the energy change
+    // is first order at fixed texture; the first-order formula (PHYSICS.md section 5) makes the
+    // depth proportional to k0, so the change is ~5% of 0.887
+    const a = bumpWire("ferro", 0, 0.3, 1, 40), c = bumpWire("ferro", 0, 0.315, 1, 40);
+    const nodes = [a.node(0), a.node(12)];
+    const ra = pinningLandscape(a.chain, a.s, a.bg.local, a.k, "ferro", { nodes, keepWalls: true });
+    const rc = pinningLandscape(c.chain, c.s, c.bg.local, c.k, "ferro", { nodes });
+    const t = new Float64Array(a.k.length);
+    const predicted = wallEnergyWith(ra.walls![1]!, a.chain.h, a.chain.q, c.k, t) - wallEnergyWith(ra.walls![0]!, a.chain.h, a.chain.q, c.k, t);
+    const actual = rc.energy[1] - rc.energy[0], before = ra.energy[1] - ra.energy[0];
+    expect(Math.abs(predicted - actual)).toBeLessThan(0.1 * Math.abs(actual - before)); // measured 0.07% of the change
+    expect(actual / before).toBeCloseTo(1.05, 1);
+  });
+});
+
+describe("depinning field from the slope of a landscape", () => {
+  it("first-order landscape of a Gaussian bump: H = max |dU/dq| K / (2 mu0 Ms) against the analytic slope within 1%", () => {
+    // U1(q) = 4 - 2 integral kappa(s) sech(s - q) ds (PHYSICS.md section 5); its slope
+    // dU1/dq = -2 integral kappa(s) sech(s - q) tanh(s - q) ds, integrated here by Simpson's rule
+    const k0 = 0.2, w = 1, L = 60, h = 0.005;
+    const s = Float64Array.from({ length: L / h + 1 }, (_, i) => -L / 2 + i * h);
+    const k = Float64Array.from(s, (x) => k0 * Math.exp(-(x * x) / (w * w)));
+    const q = Float64Array.from({ length: 401 }, (_, i) => -10 + i * 0.05);
+    const u = firstOrderPinning(s, k, q, "ferro");
+    const well = pinningSites(q, u)[0];
+    const slope = (qq: number): number => {
+      const m = 6000, a = -30, b = 30, dh = (b - a) / m;
+      let acc = 0;
+      for (let i = 0; i <= m; ++i) {
+        const x = a + i * dh, f = k0 * Math.exp(-(x * x) / (w * w)) * (1 / Math.cosh(x - qq)) * Math.tanh(x - qq);
+        acc += (i === 0 || i === m ? 1 : i % 2 === 1 ? 4 : 2) * f;
+      }
+      return (-2 * acc * dh) / 3;
+    };
+    let maxSlope = 0;
+    for (let qq = 0; qq <= 5; qq += 0.001) maxSlope = Math.max(maxSlope, slope(qq));
+    const K = 5e5, Ms = 8e5, mu0 = 1.25663706212e-6; // CODATA 2018 mu0
+    const d = depinningField(q, u, well, K, Ms);
+    expect(Math.abs(d.towardPlus / ((maxSlope * K) / (2 * mu0 * Ms)) - 1)).toBeLessThan(0.01); // measured 0.04% (grid 0.05)
+    expect(d.towardMinus).toBeCloseTo(d.towardPlus, 3); // symmetric bump
+    expect(d.fieldTesla).toBeCloseTo(mu0 * d.field, 15);
   });
 });
