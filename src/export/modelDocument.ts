@@ -272,6 +272,8 @@ export function buildModelDocument(a: Analysis, options: ModelDocumentOptions): 
       energyThermal: "k_B T at material.temperature",
       energyReduced: "energy densities in units of K; energies in units of K l area",
       temperature: "K",
+      field: "A/m (fieldMilliTesla: mu0 H in mT)",
+      magnetisation: "A/m",
     },
     source,
     seed: a.seed,

@@ -56,6 +56,7 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
   const inter = interactions(profile, material, system);
   const sRed = Float64Array.from(profile.s, (x) => x / l);
   const validity = sampleValidity(profile, material);
+  if (profile.resolution > l) warnings.push(`resolution length of the geometry fit ${(profile.resolution / l).toPrecision(3)} magnetic lengths: curvature varying on the scale of a wall (l) is smoothed out, so pinning by finer features is missing`);
   const rand = mulberry32(options.seed ?? 1);
   const normal = (): number => {
     let a = rand();

@@ -1,3 +1,4 @@
+import { FLAG_BIAS } from "../types.js";
 import type { Material } from "./types.js";
 
 /** Bits of the per-sample validity mask (0: every check passes or could not be made). */
@@ -6,8 +7,8 @@ export const VALIDITY_BITS = {
   bendVsThickness: 1,
   /** Radius of curvature (or of torsion) below 10 lattice spacings. */
   bendVsLattice: 2,
-  /** Radius of curvature below the resolution length of the geometry fit (the bend is not resolved). */
-  bendVsResolution: 4,
+  /** A curvature feature near the resolution length of the geometry fit (smoothing bias comparable to the band). */
+  featureVsResolution: 4,
   /** Wire thicker than the thin-wire limit (2 exchange lengths FM, 1 magnetic length AFM). */
   thickWire: 8,
 } as const;
@@ -16,7 +17,7 @@ export const VALIDITY_BITS = {
 export const VALIDITY_TEXT: Readonly<Record<keyof typeof VALIDITY_BITS, string>> = {
   bendVsThickness: "curvature or torsion radius below 5 wire thicknesses",
   bendVsLattice: "curvature or torsion radius below 10 lattice spacings",
-  bendVsResolution: "curvature radius below the resolution length of the geometry fit",
+  featureVsResolution: "curvature feature near the resolution length of the fit (smoothing bias comparable to the band)",
   thickWire: "wire thicker than the thin-wire limit (FM: 2 exchange lengths; AFM: 1 magnetic length)",
 };
 
@@ -42,11 +43,13 @@ export function thinWireLimit(m: Pick<Material, "order" | "exchange" | "saturati
  * curvature and torsion radii much larger than the lattice spacing and the thickness; thin wire),
  * bits of VALIDITY_BITS. The curvature radius is 1/kappaHi (the upper end of the 95% band, so a
  * doubtful bend is flagged), the torsion radius 1/max(|tauLo|, |tauHi|); NaN entries are not
- * flagged. Checks whose length is unknown (null) are skipped. SI units. Cost O(n).
+ * flagged. The resolution check takes the fit's own per-sample bias flag (FLAG_BIAS of the
+ * profile: the curvature changes by more than its band when smoothed less). Checks whose length is
+ * unknown (null) are skipped. SI units. Cost O(n).
  * @example sampleValidity(profile, material)[i] & VALIDITY_BITS.bendVsThickness
  */
 export function sampleValidity(
-  p: { readonly kappaHi: Float64Array; readonly tauLo: Float64Array; readonly tauHi: Float64Array; readonly resolution: number },
+  p: { readonly kappaHi: Float64Array; readonly tauLo: Float64Array; readonly tauHi: Float64Array; readonly flags: Uint8Array },
   material: Pick<Material, "order" | "exchange" | "saturationMagnetisation" | "magneticLength" | "thickness" | "latticeSpacing">,
 ): Uint8Array {
   const n = p.kappaHi.length;
@@ -61,7 +64,7 @@ export function sampleValidity(
     let f = thick;
     if (t !== null && r < 5 * t) f |= VALIDITY_BITS.bendVsThickness;
     if (a !== null && r < 10 * a) f |= VALIDITY_BITS.bendVsLattice;
-    if (rk < p.resolution) f |= VALIDITY_BITS.bendVsResolution;
+    if (p.flags[i] & FLAG_BIAS) f |= VALIDITY_BITS.featureVsResolution;
     out[i] = f;
   }
   return out;

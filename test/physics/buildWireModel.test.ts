@@ -68,6 +68,18 @@ describe("buildWireModel on an AFM helix (PHYSICS.md sections 3, 4, 6)", () => {
     expect(m.segments.map((g) => g.kind)).toEqual(["arc"]);
     expect(m.ringLevels![1].lower).toBeCloseTo(0.5411961, 6); // PHYSICS.md section 6 ring table
     expect(Math.abs(m.texture.energyReduced)).toBeLessThan(1e-8);
+    expect(m.ring).toMatchObject({ order: "antiferro", state: "binormal", nearCircular: true, caution: null, closedForm: null });
+  });
+  it("a closed AFM wire far from a circle: n = B still, levels with a caution (spread 5-25%) or none (above 25%)", () => {
+    const k0 = 0.5, L = (2 * Math.PI * l) / k0;
+    const wavy = (a: number) => makeProfile({ n: 400, length: L, closed: true, kappa: (s) => (k0 / l) * (1 + a * Math.cos((4 * Math.PI * s) / L)), tau: () => 0 });
+    const mid = buildWireModel(wavy(0.15), segment(wavy(0.15)), afm, { pinning: false });
+    expect(mid.ring!.state).toBe("binormal");
+    expect(mid.ringLevels).not.toBeNull();
+    expect(mid.ring!.caution).toMatch(/far from a circle/);
+    const far = buildWireModel(wavy(0.5), segment(wavy(0.5)), afm, { pinning: false });
+    expect(far.ringLevels).toBeNull();
+    expect(far.ring!.caution).toMatch(/no ring levels/);
   });
 });
 
