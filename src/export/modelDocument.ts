@@ -30,7 +30,7 @@ export interface MaterialEntry {
   exchange: Num;
   anisotropy: Num;
   magneticLength: number;
-  intrinsic: { constant: number; axis: "tangent" | "normal" | "binormal" } | null;
+  intrinsic: { constant: number; axis: "tangent" | "normal" | "binormal" | "lab"; direction?: number[] } | null;
   latticeSpacing: Num;
   thickness: Num;
   crossSection: Num;
@@ -38,6 +38,7 @@ export interface MaterialEntry {
   magnonSpeed: Num;
   saturationMagnetisation: Num;
   anisotropyFromShape: boolean;
+  appliedField: { field: number; direction: number[] } | null;
 }
 
 /** One stretch in model.json. Physics fields are null for a geometry-only run. */
@@ -172,7 +173,9 @@ export function materialEntry(m: Material, unit: LengthUnit, file: string | null
     exchange: m.exchange === null ? null : jsonNumber(m.exchange),
     anisotropy: m.anisotropy === null ? null : jsonNumber(m.anisotropy),
     magneticLength: jsonNumber(m.magneticLength * k) ?? 0,
-    intrinsic: m.intrinsic === null ? null : { constant: m.intrinsic.constant, axis: m.intrinsic.axis },
+    intrinsic: m.intrinsic === null ? null : m.intrinsic.direction !== undefined
+      ? { constant: m.intrinsic.constant, axis: m.intrinsic.axis, direction: [...m.intrinsic.direction] }
+      : { constant: m.intrinsic.constant, axis: m.intrinsic.axis },
     latticeSpacing: len(m.latticeSpacing),
     thickness: len(m.thickness),
     crossSection: m.crossSection === null ? null : jsonNumber(m.crossSection * k * k),
@@ -180,6 +183,7 @@ export function materialEntry(m: Material, unit: LengthUnit, file: string | null
     magnonSpeed: m.magnonSpeed === null ? null : jsonNumber(m.magnonSpeed),
     saturationMagnetisation: m.saturationMagnetisation === null ? null : jsonNumber(m.saturationMagnetisation),
     anisotropyFromShape: m.anisotropyFromShape,
+    appliedField: m.appliedField === null ? null : { field: m.appliedField.field, direction: [...m.appliedField.direction] },
   };
 }
 

@@ -9,7 +9,7 @@ import { magnonGaps } from "./magnonGaps.js";
 import type { PeriodicOptions } from "./periodicState.js";
 import { firstOrderPinning, pinningScan, type PinningOptions } from "./pinning.js";
 import { pinningSummary } from "./pinningSummary.js";
-import { sampleValidity, validityLines } from "./sampleValidity.js";
+import { MU0, sampleValidity, validityLines } from "./sampleValidity.js";
 import { reducedSystem } from "./reducedSystem.js";
 import { relaxWire, wireChain } from "./relaxWire.js";
 import { ringState, ringWalls } from "./ringState.js";
@@ -154,10 +154,14 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
     };
   });
   // relaxed texture along the real wire: several starts, the lowest kept and named
-  const chain = wireChain(profile, l, system);
+  const perNode = perNodeTerms(profile, material);
+  const chain = { ...wireChain(profile, l, system), field: perNode.field, nodeTensor: perNode.tensor };
+  if (perNode.field !== null || perNode.tensor !== null) {
+    warnings.push(`${perNode.field !== null ? "applied field" : ""}${perNode.field !== null && perNode.tensor !== null ? " and " : ""}${perNode.tensor !== null ? "intrinsic axis fixed in the lab" : ""}: included in the relaxed texture and the pinning landscape only; the stretch labels, tilts, periodic search, per-sample anisotropy and magnon gaps are those without it (the constant-coefficient helix results no longer apply)`);
+  }
   const tauRelax = Float64Array.from(inter.tauReduced, (t) => (Number.isFinite(t) ? t : 0));
   const homStart = relaxStartHomogeneous(system, inter.kappaReduced, tauRelax);
-  const starts = textureStarts(profile, sRed, homStart, periodicCells.map((c) => ({ i0: c.g.i0, i1: c.g.i1, texture: c.texture, halfPeriod: c.halfPeriod })));
+  const starts = textureStarts(profile, sRed, homStart, periodicCells.map((c) => ({ i0: c.g.i0, i1: c.g.i1, texture: c.texture, halfPeriod: c.halfPeriod })), perNode.field !== null && material.appliedField !== null ? [material.appliedField.direction] : []);
   const relaxed = relaxWire(chain, system, inter.kappaReduced, tauRelax, starts);
   if (!relaxed.converged) warnings.push("texture relaxation stopped before convergence");
   const nameOf = (name: string, local: Float64Array): TextureState => {
@@ -286,4 +290,38 @@ function relaxStartHomogeneous(system: ReducedSystem, kappa: ArrayLike<number>, 
     for (let c = 0; c < 3; ++c) v[3 * i + c] = sgn * u[c];
   }
   return v;
+}
+
+/**
+ * Per-node terms of the wire chain from lab-fixed quantities, in local components at each sample:
+ * the Zeeman field h = mu0 Ms H / K (d . T, d . N, d . B) of an applied field (reduced; energy
+ * density -h . m in units of K), and the tensor -(K_i / K) a a^T of an intrinsic axis a fixed in the
+ * lab. null when absent. Cost O(n).
+ */
+function perNodeTerms(profile: Profile, material: Material): { field: Float64Array | null; tensor: Float64Array | null } {
+  const n = profile.n, T = profile.T, N = profile.N, B = profile.B;
+  const local = (d: readonly number[], i: number): [number, number, number] => {
+    const o = 3 * i;
+    return [d[0] * T[o] + d[1] * T[o + 1] + d[2] * T[o + 2], d[0] * N[o] + d[1] * N[o + 1] + d[2] * N[o + 2], d[0] * B[o] + d[1] * B[o + 1] + d[2] * B[o + 2]];
+  };
+  let field: Float64Array | null = null, tensor: Float64Array | null = null;
+  const af = material.appliedField, ms = material.saturationMagnetisation, K = material.anisotropy;
+  if (af !== null && ms !== null && K !== null && af.field > 0) {
+    const h = (MU0 * ms * af.field) / K;
+    field = new Float64Array(3 * n);
+    for (let i = 0; i < n; ++i) {
+      const a = local(af.direction, i);
+      for (let c = 0; c < 3; ++c) field[3 * i + c] = h * a[c];
+    }
+  }
+  const intr = material.intrinsic;
+  if (intr !== null && intr.axis === "lab" && intr.direction !== undefined && K !== null) {
+    const f = -intr.constant / K;
+    tensor = new Float64Array(9 * n);
+    for (let i = 0; i < n; ++i) {
+      const a = local(intr.direction, i);
+      for (let r = 0; r < 3; ++r) for (let c = 0; c < 3; ++c) tensor[9 * i + 3 * r + c] = f * a[r] * a[c];
+    }
+  }
+  return { field, tensor };
 }

@@ -18,7 +18,8 @@ export interface MaterialJson {
   temperature?: number;
   magnonSpeed?: number;
   saturationMagnetisation?: number;
-  intrinsic?: IntrinsicAnisotropy;
+  intrinsic?: { constant: number; axis: IntrinsicAnisotropy["axis"]; direction?: [number, number, number] };
+  appliedField?: { field: number; direction: [number, number, number] };
 }
 
 // strictRequired off: the anyOf/not branches name properties defined at the top level
@@ -30,7 +31,7 @@ export const materialSchema: Readonly<Record<string, unknown>> = schema;
 
 const UNITS: Record<string, string> = {
   exchange: "J/m", anisotropy: "J/m^3", magneticLength: "m", latticeSpacing: "m", thickness: "m",
-  crossSection: "m^2", temperature: "K", magnonSpeed: "m/s", constant: "J/m^3", saturationMagnetisation: "A/m",
+  crossSection: "m^2", temperature: "K", magnonSpeed: "m/s", constant: "J/m^3", saturationMagnetisation: "A/m", field: "A/m",
 };
 
 function fieldName(instancePath: string): string {
@@ -138,7 +139,23 @@ export function parseMaterial(json: unknown, file: string): Material {
     l = Math.sqrt(a! / k!);
   }
   if (!(l > 0) || !Number.isFinite(l)) throw new InputError(file, null, "material.magneticLength", `must be a positive length in m (got ${l})`);
-  const intrinsic = j.intrinsic ?? null;
+  const unitVector = (d: readonly number[] | undefined, field: string): [number, number, number] => {
+    const n = d === undefined ? 0 : Math.hypot(d[0], d[1], d[2]);
+    if (!(n > 0) || !Number.isFinite(n)) throw new InputError(file, null, field, `must be a non-zero lab direction [x, y, z] (got ${show(d)})`);
+    return [d![0] / n, d![1] / n, d![2] / n];
+  };
+  let intrinsic: IntrinsicAnisotropy | null = null;
+  if (j.intrinsic !== undefined) {
+    if (j.intrinsic.axis === "lab") intrinsic = { constant: j.intrinsic.constant, axis: "lab", direction: unitVector(j.intrinsic.direction, "material.intrinsic.direction") };
+    else if (j.intrinsic.direction !== undefined) throw new InputError(file, null, "material.intrinsic.direction", `only with axis "lab" (got axis ${show(j.intrinsic.axis)})`);
+    else intrinsic = { constant: j.intrinsic.constant, axis: j.intrinsic.axis };
+  }
+  let appliedField: Material["appliedField"] = null;
+  if (j.appliedField !== undefined) {
+    if (j.order !== "ferro") throw new InputError(file, null, "material.appliedField", "applies to order \"ferro\" only (the AFM sigma model has no linear Zeeman term)");
+    if (ms === null) throw new InputError(file, null, "material.appliedField", "needs saturationMagnetisation (A/m) for the Zeeman energy mu0 Ms H");
+    appliedField = { field: j.appliedField.field, direction: unitVector(j.appliedField.direction, "material.appliedField.direction") };
+  }
   if (intrinsic !== null && k === null) {
     throw new InputError(file, null, "material.intrinsic", "needs the anisotropy K (J/m^3) to compare the intrinsic constant with");
   }
@@ -157,6 +174,7 @@ export function parseMaterial(json: unknown, file: string): Material {
     magnonSpeed: j.magnonSpeed ?? null,
     saturationMagnetisation: ms,
     anisotropyFromShape: fromShape,
+    appliedField,
   };
 }
 

@@ -101,7 +101,13 @@ function windowChain(chain: Chain, nodes: Int32Array, fixed: Uint8Array): Chain 
     w[k] += 0.5 * h[k];
     w[k + 1] += 0.5 * h[k];
   }
-  return { n: m, rot, h, w, q: chain.q, closure: "open", fixed };
+  const pick = (src: Float64Array | null | undefined, stride: number): Float64Array | null => {
+    if (src === null || src === undefined) return null;
+    const out = new Float64Array(stride * m);
+    for (let k = 0; k < m; ++k) out.set(src.subarray(stride * nodes[k], stride * nodes[k] + stride), stride * k);
+    return out;
+  };
+  return { n: m, rot, h, w, q: chain.q, closure: "open", fixed, field: pick(chain.field, 3), nodeTensor: pick(chain.nodeTensor, 9) };
 }
 
 /**
@@ -114,6 +120,8 @@ function windowChain(chain: Chain, nodes: Int32Array, fixed: Uint8Array): Chain 
  * keeping the lower at every q, because torsion splits the two senses (PHYSICS.md section 5,
  * correction: 4 pi |tau cos theta0 - kappa sin theta0| at first order) and a mirror image
  * (tau -> -tau) swaps them. Warm starts from the previous q of the same sense (shifted).
+ * With a Zeeman field on the chain (open wires) the reversed domain beyond the window is added, so
+ * U(q) carries the field's slope 2 h . bg per unit length of wall displacement.
  * bg must be the relaxed wall-free texture (local components) of the same chain.
  * Reduced energies (K l per cross-section). Positions where no wall is computed hold NaN.
  * Cost: (number of q) x (a few hundred iterations on 2 window/h nodes).
@@ -149,6 +157,13 @@ export function pinningLandscape(
   const prev: (WallTrack | null)[] = senses.map(() => null);
   const walls: (RelaxedWall | null)[] | null = options.keepWalls ? new Array<RelaxedWall | null>(index.length).fill(null) : null;
   let iterations = 0;
+  // With a field, the reversed domain beyond the window (open wire: from the window's right end to
+  // the wire's end, -bg instead of bg) costs 2 w_i h_i . bg_i per node: suffix sums of that.
+  const zeemanTail = new Float64Array(n + 1);
+  if (chain.field && !closed) {
+    const f = chain.field;
+    for (let i = n - 1; i >= 0; --i) zeemanTail[i] = zeemanTail[i + 1] + 2 * chain.w[i] * (f[3 * i] * bg[3 * i] + f[3 * i + 1] * bg[3 * i + 1] + f[3 * i + 2] * bg[3 * i + 2]);
+  }
   for (let k = 0; k < index.length; ++k) {
     const iq = index[k];
     const kq = kappaReduced[iq];
@@ -210,7 +225,7 @@ export function pinningLandscape(
       // depths need ~1e-7 relative: stop when the energy changes by < 1e-10 relative over 10 steps
       const r = relaxChain(sub, v, { gradientTolerance: (options.tolerance ?? 1e-6) * hMin, energyTolerance: 1e-10, maxIterations: 20000 });
       iterations += r.iterations;
-      const e = r.energy - eBg;
+      const e = r.energy - eBg + (closed ? 0 : zeemanTail[nodes[m - 1] + 1]);
       bySense[si][k] = e;
       prev[si] = { centre: iq, nodes, v };
       if (e < bestE) { bestE = e; bestV = v; bestSense = senses[si]; }

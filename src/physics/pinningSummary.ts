@@ -94,6 +94,7 @@ export function pinningSummary(input: PinningSummaryInput): { sites: PinningSite
     if (e !== undefined) return e;
     e = new Float64Array(R);
     const rep = input.replicates!;
+    const central = wallEnergyWith(wall, input.h, input.q, input.kappaReduced, Float64Array.from(input.tauReduced, (t) => (Number.isFinite(t) ? t : 0)));
     for (let r = 0; r < R; ++r) {
       for (const i of wall.nodes) {
         const kv = rep.kappa[r * n + i];
@@ -101,7 +102,8 @@ export function pinningSummary(input: PinningSummaryInput): { sites: PinningSite
         const tv = rep.tau?.[r * n + i];
         repT[i] = tv !== undefined && Number.isFinite(tv) ? tv : Number.isFinite(input.tauReduced[i]) ? input.tauReduced[i] : 0;
       }
-      e[r] = wallEnergyWith(wall, input.h, input.q, repK, repT);
+      // the change of U on replicate r (the per-node field and tensor terms do not depend on the geometry and cancel)
+      e[r] = wallEnergyWith(wall, input.h, input.q, repK, repT) - central;
     }
     memo.set(k, e);
     return e;
@@ -117,8 +119,8 @@ export function pinningSummary(input: PinningSummaryInput): { sites: PinningSite
       const gridDepth = Math.min(w.kLeft >= 0 ? u[w.kLeft] : Infinity, w.kRight >= 0 ? u[w.kRight] : Infinity) - u[w.k];
       const d = new Float64Array(R);
       for (let r = 0; r < R; ++r) {
-        const left = eL !== null ? sign * eL[r] : Infinity, right = eR !== null ? sign * eR[r] : Infinity;
-        d[r] = w.depth + (Math.min(left, right) - sign * ek[r] - gridDepth);
+        const left = eL !== null ? u[w.kLeft] + sign * eL[r] : Infinity, right = eR !== null ? u[w.kRight] + sign * eR[r] : Infinity;
+        d[r] = w.depth + (Math.min(left, right) - (u[w.k] + sign * ek[r]) - gridDepth);
       }
       d.sort();
       lo = quantile(d, 0.025);

@@ -15,7 +15,8 @@ export interface PeriodicCell {
  * Start textures for the whole-wire relaxation besides the local homogeneous state
  * (../shared/PHYSICS.md sections 3-4: relaxers must try several starts):
  * - lab-uniform: the vector fixed in the lab along the two leading principal directions of the
- *   tangents (eigenvectors of sum T T^T), in local components (d . T, d . N, d . B); on a closed FM
+ *   tangents (eigenvectors of sum T T^T) and along `labDirections` (an applied field), in local
+ *   components (d . T, d . N, d . B); on a closed FM
  *   wire this relaxes to the onion state (two walls), on an open wire to a lab-fixed texture;
  * - periodic: each given cell (the best texture of `periodicState`) tiled along its stretch, the
  *   vector reversed every half-period; the local homogeneous state elsewhere (`homogeneous`).
@@ -27,6 +28,7 @@ export function textureStarts(
   sReduced: ArrayLike<number>,
   homogeneous: Float64Array,
   cells: readonly PeriodicCell[],
+  labDirections: readonly (readonly number[])[] = [],
 ): NamedStart[] {
   const n = profile.n, T = profile.T, N = profile.N, B = profile.B;
   const m = new Float64Array(9);
@@ -34,9 +36,9 @@ export function textureStarts(
     for (let a = 0; a < 3; ++a) for (let b = 0; b < 3; ++b) m[3 * a + b] += T[3 * i + a] * T[3 * i + b];
   const eig = symEigen3(m);
   const out: NamedStart[] = [];
-  // the two largest eigenvalues (ascending order: rows 2 and 1)
-  for (const row of [2, 1]) {
-    const d = [eig.vectors[3 * row], eig.vectors[3 * row + 1], eig.vectors[3 * row + 2]];
+  // the two largest eigenvalues (ascending order: rows 2 and 1), then the caller's directions
+  const dirs = [2, 1].map((row) => [eig.vectors[3 * row], eig.vectors[3 * row + 1], eig.vectors[3 * row + 2]]).concat(labDirections.map((d) => [...d]));
+  for (const d of dirs) {
     const v = new Float64Array(3 * n);
     for (let i = 0; i < n; ++i) {
       const o = 3 * i;

@@ -15,7 +15,16 @@ export type LocalAxis = "tangent" | "normal" | "binormal";
 export interface IntrinsicAnisotropy {
   /** J/m^3; positive for an easy axis, negative for a hard axis. */
   readonly constant: number;
-  readonly axis: LocalAxis;
+  /** An axis of the local frame, or "lab": the fixed lab direction `direction`. */
+  readonly axis: LocalAxis | "lab";
+  /** Unit vector in lab coordinates when axis is "lab". */
+  readonly direction?: readonly [number, number, number];
+}
+
+/** A uniform applied field (FM): magnitude H in A/m along a lab direction (unit vector). */
+export interface AppliedField {
+  readonly field: number;
+  readonly direction: readonly [number, number, number];
 }
 
 /** A validated material. Unknown quantities are null (never invented). */
@@ -42,6 +51,8 @@ export interface Material {
   readonly saturationMagnetisation: number | null;
   /** true when K was not given and is the shape anisotropy of a thin round wire, mu0 Ms^2 / 4. */
   readonly anisotropyFromShape: boolean;
+  /** Applied field of the experiment (FM, needs Ms), null when none. */
+  readonly appliedField: AppliedField | null;
 }
 
 /**

@@ -184,3 +184,16 @@ describe("the exported texture is the labelled ground state", () => {
     expect(g.period).toBeNull();
   });
 });
+
+describe("buildWireModel with an applied field and Ms", () => {
+  it("a straight FM wire in a field along it: texture energy -L (1 + h), h = mu0 Ms H / K, and a warning", () => {
+    const lf = 10e-9, Ms = 8e5, H = 2e4;
+    const mat = parseMaterial({ order: "ferro", exchange: 1.3e-11, saturationMagnetisation: Ms, appliedField: { field: H, direction: [1, 0, 0] } }, "fm.json");
+    const l0 = mat.magneticLength;
+    const p = makeProfile({ n: 201, length: 20 * l0, kappa: () => 0, tau: () => 0, straightBelow: 1e-3 / lf });
+    const m = buildWireModel(p, segment(p), mat, { pinning: false });
+    const h = (1.25663706212e-6 * Ms * H) / mat.anisotropy!; // mu0 CODATA 2018
+    expect(m.texture.energyReduced / (-20 * (1 + h)) - 1).toBeCloseTo(0, 8);
+    expect(m.warnings.some((w) => /applied field: included in the relaxed texture/.test(w))).toBe(true);
+  });
+});
