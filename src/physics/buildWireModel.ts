@@ -7,7 +7,7 @@ import { interactions } from "./interactions.js";
 import { symEigen3 } from "./linalg.js";
 import { magnonGaps } from "./magnonGaps.js";
 import type { PeriodicOptions } from "./periodicState.js";
-import { firstOrderPinning, pinningScan, type PinningOptions } from "./pinning.js";
+import { firstOrderPinning, mergeLandscapes, pinningLandscape, pinningScan, type PinningOptions } from "./pinning.js";
 import { pinningSummary } from "./pinningSummary.js";
 import { MU0, sampleValidity, validityLines } from "./sampleValidity.js";
 import { reducedSystem } from "./reducedSystem.js";
@@ -210,7 +210,7 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
   let pinning: PinningSite[] = [], pinningMinor: PinningSite[] = [], barriers: PinningSite[] = [];
   if (options.pinning !== false) {
     if (models.some((m) => m.state === "periodic")) warnings.push("a stretch has a periodic ground state: the wall landscape there is taken on the relaxed texture and is indicative only");
-    const scan = pinningScan(chain, sRed, relaxed.local, inter.kappaReduced, system.order, { ...(options.pinning ?? {}), keepWalls: true });
+    let scan = pinningScan(chain, sRed, relaxed.local, inter.kappaReduced, system.order, { ...(options.pinning ?? {}), keepWalls: true });
     const fo = firstOrderPinning(sRed, inter.kappaReduced, scan.q, system.order);
     const replicates = reps > 0 ? {
       count: reps,
@@ -219,17 +219,38 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
     } : null;
     if (replicates === null) warnings.push("no bootstrap replicates kept with the profile: pinning depths have no 95% interval");
     const ms = material.saturationMagnetisation;
-    const summary = pinningSummary({
+    const depinning = system.order === "ferro" && ms !== null && material.anisotropy !== null ? { anisotropy: material.anisotropy, saturationMagnetisation: ms } : null;
+    const summarise = () => pinningSummary({
       scan, h: chain.h, q: system.q, replicates, kappaReduced: inter.kappaReduced, tauReduced: tauRelax, sReduced: sRed, validity,
-      l, energyUnit, kT,
-      depinning: system.order === "ferro" && ms !== null && material.anisotropy !== null ? { anisotropy: material.anisotropy, saturationMagnetisation: ms } : null,
+      l, energyUnit, kT, depinning,
     });
+    let summary = summarise();
+    if (depinning !== null && summary.sites.length > 0) {
+      // depinning fields need the steepest slope: sample the flanks (3 l each side) of the five
+      // deepest sites at the fine step too, then summarise again
+      const fine = options.pinning?.fine ?? 0.25;
+      const have = new Set(scan.index);
+      const extra = new Set<number>();
+      for (const site of summary.sites.slice(0, 5)) {
+        const sq = site.s / l;
+        for (let i = 0; i < profile.n; ++i) {
+          if (Math.abs(sRed[i] - sq) > 3 || have.has(i)) continue;
+          const prevKept = [...extra].some((j) => Math.abs(sRed[j] - sRed[i]) < 0.999 * fine) || [...have].some((j) => Math.abs(sRed[j] - sRed[i]) < 0.999 * fine);
+          if (!prevKept) extra.add(i);
+        }
+      }
+      if (extra.size > 0) {
+        const more = pinningLandscape(chain, sRed, relaxed.local, inter.kappaReduced, system.order, { ...(options.pinning ?? {}), nodes: [...extra].sort((a, b) => a - b), keepWalls: true });
+        scan = mergeLandscapes([scan, more]);
+        summary = summarise();
+      }
+    }
     pinning = summary.sites;
     pinningMinor = summary.minor;
     barriers = summary.barriers;
     if (pinningMinor.length > 0) warnings.push(`${pinningMinor.length} thermally irrelevant pinning ${pinningMinor.length === 1 ? "site" : "sites"} (95% interval includes 0 or depth below 1 k_B T) listed apart`);
     if (system.order === "ferro" && ms === null) warnings.push("no saturation magnetisation Ms in the material: no depinning fields");
-    else if (system.order === "ferro") warnings.push("depinning fields from the largest slope of the sampled landscape (1 l apart on the flanks): lower bounds of the quasi-static rigid-wall field, no thermal activation");
+    else if (system.order === "ferro") warnings.push("depinning fields from the largest slope of the sampled landscape (0.25 l apart within 3 l of the five deepest sites, 1 l elsewhere): quasi-static rigid-wall fields at zero temperature, no thermal activation");
     landscape = {
       q: Float64Array.from(scan.q, (x) => x * l),
       energy: scan.energy,
@@ -269,7 +290,7 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
     gapProfile: gp,
     ringLevels: ringL,
     ring,
-    warnings: ["model estimates, not measurements: thin-wire limit, curvature and torsion radii much larger than the lattice spacing and the thickness, no field, no damping", ...warnings],
+    warnings: ["model estimates, not measurements: thin-wire limit, curvature and torsion radii much larger than the lattice spacing and the thickness, no damping, no applied field unless the material gives one; not modelled: intrinsic DMI, FM spin waves, thermal activation beyond the k_B T unit", ...warnings],
   };
 }
 

@@ -386,18 +386,32 @@ export function pinningScan(
   }
   const fineNodes = [...extra].sort((a, b) => a - b);
   const second = fineNodes.length > 0 ? pinningLandscape(chain, s, bg, kappaReduced, order, { ...options, nodes: fineNodes }) : null;
-  const parts = second !== null ? [first, second] : [first];
+  return mergeLandscapes(second !== null ? [first, second] : [first]);
+}
+
+/**
+ * Merge landscapes computed at different wall positions of the same chain into one, in node order
+ * (positions present twice keep the first). All parts must have the same senses and all or none
+ * kept walls. Cost O(m log m).
+ */
+export function mergeLandscapes(parts: readonly WallLandscape[]): WallLandscape {
   const all: { part: WallLandscape; k: number }[] = [];
-  for (const part of parts) for (let k = 0; k < part.index.length; ++k) all.push({ part, k });
+  const seen = new Set<number>();
+  for (const part of parts) for (let k = 0; k < part.index.length; ++k) {
+    if (seen.has(part.index[k])) continue;
+    seen.add(part.index[k]);
+    all.push({ part, k });
+  }
   all.sort((x, y) => x.part.index[x.k] - y.part.index[y.k]);
   const pick = <T>(f: (x: { part: WallLandscape; k: number }) => T): T[] => all.map(f);
+  const first = parts[0];
   return {
     index: Int32Array.from(pick((x) => x.part.index[x.k])),
     q: Float64Array.from(pick((x) => x.part.q[x.k])),
     energy: Float64Array.from(pick((x) => x.part.energy[x.k])),
     bySense: first.bySense.map((_, si) => Float64Array.from(pick((x) => x.part.bySense[si][x.k]))),
     sense: Int8Array.from(pick((x) => x.part.sense[x.k])),
-    walls: first.walls !== null ? pick((x) => x.part.walls![x.k]) : null,
-    iterations: first.iterations + (second?.iterations ?? 0),
+    walls: parts.every((p) => p.walls !== null) ? pick((x) => x.part.walls![x.k]) : null,
+    iterations: parts.reduce((acc, p) => acc + p.iterations, 0),
   };
 }
