@@ -205,3 +205,24 @@ describe("buildWireModel with an applied field and Ms", () => {
     expect(m.warnings.some((w) => /applied field: included in the relaxed texture/.test(w))).toBe(true);
   });
 });
+
+describe("mirror-image AFM wires with a curvature dip (PHYSICS.md section 5, correction)", () => {
+  it("kb 0.7, dip (w 2, k0 -0.1), tau +0.3 / -0.3: the same deepest site, same place, depth within 5%", () => {
+    const c = 20.3 * l;
+    const wire = (t: number) => makeProfile({
+      n: 401, length: 40 * l, replicates: 20, seed: 4,
+      kappa: (s) => (0.7 - 0.1 * Math.exp(-(((s - c) / (2 * l)) ** 2))) / l, tau: () => t / l, band: 0.005 / l,
+    });
+    const a = wire(0.3), b = wire(-0.3);
+    // the stretch labels are not under test here: a short periodic search keeps the test quick
+    const quick = { periodic: { pMax: 20, scan: 4, refine: 0, extrapolate: false } } as const;
+    const ma = buildWireModel(a, segment(a), afm, quick), mb = buildWireModel(b, segment(b), afm, quick);
+    const deepest = (m: typeof ma) => [...m.pinning, ...m.pinningMinor].sort((x, y) => y.depthReduced - x.depthReduced)[0];
+    const sa = deepest(ma), sb = deepest(mb);
+    expect(Math.abs(sa.s - c)).toBeLessThan(0.25 * l); // target l/4
+    expect(Math.abs(sa.s - sb.s)).toBeLessThan(0.05 * l);
+    expect(Math.abs(sa.depthReduced / sb.depthReduced - 1)).toBeLessThan(0.05); // target 5%; measured 0 (0.22703 both)
+    expect(sa.depthReducedLo!).toBeLessThanOrEqual(sa.depthReduced);
+    expect(sa.depthReducedHi!).toBeGreaterThanOrEqual(sa.depthReduced);
+  });
+});
