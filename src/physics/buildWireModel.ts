@@ -210,6 +210,7 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
   let pinning: PinningSite[] = [], pinningMinor: PinningSite[] = [], barriers: PinningSite[] = [];
   if (options.pinning !== false) {
     if (models.some((m) => m.state === "periodic")) warnings.push("a stretch has a periodic ground state: the wall landscape there is taken on the relaxed texture and is indicative only");
+    if (textureState === "onion" || textureState === "multidomain") warnings.push(`the ring's ground state (${textureState}) already holds walls: the landscape of one more wall on it is indicative only`);
     let scan = pinningScan(chain, sRed, relaxed.local, inter.kappaReduced, system.order, { ...(options.pinning ?? {}), keepWalls: true });
     const fo = firstOrderPinning(sRed, inter.kappaReduced, scan.q, system.order);
     const replicates = reps > 0 ? {
