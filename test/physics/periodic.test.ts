@@ -46,6 +46,17 @@ describe("phase boundary: classification 2% either side of the PHYSICS.md table 
     expect(periodicState(af, 0.98 * kc, t, FAST).margin).toBeLessThan(0);
     expect(periodicState(af, 1.02 * kc, t, FAST).margin).toBeGreaterThan(0);
   });
+  // small-curvature boundary, PHYSICS.md section 4 (corrected; own derivation): kink-energy roots
+  // kappa_c = 0.155044, 0.298892, 0.424770 at tau 0.1, 0.2, 0.3; asymptote
+  // kappa_c = (pi/2) tau [1 - (1/2 + pi^2/12) tau^2 + O(tau^4)]
+  it("the small-curvature asymptote matches the kink-energy root at tau 0.1 within 0.1% (O(tau^4) beyond)", () => {
+    const asym = (t: number) => (Math.PI / 2) * t * (1 - (0.5 + (Math.PI * Math.PI) / 12) * t * t);
+    expect(Math.abs(asym(0.1) / 0.155044 - 1)).toBeLessThan(1e-3); // measured 0.03%
+  });
+  it.each([[0.2, 0.298892], [0.3, 0.42477]])("AFM tau %s: periodic 3% below the kink-energy root %s, homogeneous 3% above", (t, kc) => {
+    expect(periodicState(af, 0.97 * kc, t, FAST).margin).toBeLessThan(0);
+    expect(periodicState(af, 1.03 * kc, t, FAST).margin).toBeGreaterThan(0);
+  });
   it.each([[0, 2 / Math.PI], [0.5, 0.902], [1.0, 1.5]])("FM tau %s: homogeneous at 0.98 kappa_c, periodic at 1.02 kappa_c (%s)", (t, kc) => {
     expect(periodicState(fm, 0.98 * kc, t, FAST).margin).toBeGreaterThan(0);
     expect(periodicState(fm, 1.02 * kc, t, FAST).margin).toBeLessThan(0);
