@@ -36,10 +36,15 @@ export interface WireModelOptions {
 
 /**
  * The whole physics stage for one wire: per stretch the reduced parameters, the effective DMI and
- * anisotropy, the homogeneous tilt, the two labels with probabilities, AFM magnon gaps and validity
- * flags; along the wire the relaxed texture, the wall-pinning landscape and sites (ranked deepest
- * first, in J and k_B T), the per-sample interactions for a chain export, the local AFM gap profile
- * and ring levels. Methods and sources: ../shared/PHYSICS.md (see each called function).
+ * anisotropy, the homogeneous tilt, the two labels with probabilities (closed FM wires: vortex or
+ * onion, decided on the whole wire), the full period where the periodic state may win, AFM magnon
+ * gaps and validity flags; along the wire the per-sample validity mask, the relaxed texture (the
+ * lowest of several starts, named, with the metastable alternatives), the ring state of a closed
+ * wire, the wall-pinning landscape with its sites (deepest first, in J and k_B T, 95% intervals
+ * from the bootstrap replicates, thermally irrelevant ones apart, depinning fields with Ms) and
+ * barriers, the per-sample interactions for a chain export, the local AFM gap profile and ring
+ * levels. An applied field and a lab-fixed intrinsic axis enter the relaxation and the landscape.
+ * Methods and sources: ../shared/PHYSICS.md (see each called function).
  * Units: SI in and out (lengths m, kappa and tau 1/m, energies J); reduced quantities are named so.
  * Energies in J need K and the cross-section (else null, with a warning). Deterministic (seeded).
  * Cost: seconds (a periodic search per stretch and corner, one relaxation, ~L/l wall relaxations).
