@@ -217,7 +217,19 @@ export function pinningLandscape(
     for (let a = 0; a < sub.h.length; ++a) hMin = Math.min(hMin, sub.h[a]);
     const eBg = chainEnergy({ ...sub, fixed: null }, vb, null);
     let bestE = Infinity, bestV: Float64Array | null = null, bestSense = 0;
+    // a planar window (every bond rotates about B) with no per-node terms is symmetric under
+    // u_B -> -u_B, which maps the wall through +N onto the one through -N: compute one sense
+    let planar = senses.length > 1 && !chain.field && !chain.nodeTensor && chain.q[2] === 0 && chain.q[5] === 0;
+    for (let a = 0; planar && a + 1 < m; ++a) {
+      const o = 9 * nodes[a], r = chain.rot;
+      if (r[o + 2] !== 0 || r[o + 5] !== 0 || r[o + 6] !== 0 || r[o + 7] !== 0) planar = false;
+    }
     for (let si = 0; si < senses.length; ++si) {
+      if (planar && si > 0) {
+        bySense[si][k] = bySense[0][k];
+        prev[si] = null;
+        continue;
+      }
       const v = wallStart(bg, iq, vb, sPos, c0, width, senses[si], prev[si]);
       if (fixed[0]) { v[0] = vb[0]; v[1] = vb[1]; v[2] = vb[2]; }
       if (fixed[m - 1]) { v[3 * m - 3] = -vb[3 * m - 3]; v[3 * m - 2] = -vb[3 * m - 2]; v[3 * m - 1] = -vb[3 * m - 1]; }

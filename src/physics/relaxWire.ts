@@ -57,8 +57,8 @@ export interface RelaxedTexture {
  * Several starts because a single start can stick in a metastable texture (PHYSICS.md section 3:
  * on a closed FM ring the vortex and the onion are both local minima). Every start gets a capped
  * run (500 iterations); starts that end at the same energy (1e-7 relative) are merged (the first
- * name is kept); the lowest is relaxed to convergence and the others are polished (at most 5000
- * more iterations) and returned in `alternatives`, lowest first: the metastable textures with their
+ * name is kept); the lowest is relaxed to convergence and the others are polished (at most 1500
+ * more iterations; `converged` says whether they got there) and returned in `alternatives`, lowest first: the metastable textures with their
  * energies. Reduced energies (units of K l per cross-section). Cost: a few hundred to a few
  * thousand O(n) iterations per start.
  * @example relaxWire(chain, system, k, t).energy // -L for a straight FM wire of length L (in l)
@@ -112,7 +112,7 @@ export function relaxWire(
     runs.push({ name: st.name, local: st.local, energy: r.energy, iterations: r.iterations, converged: r.converged });
   }
   runs.sort((a, b) => a.energy - b.energy);
-  const polished = runs.map((run, k) => polish(chain, run, gtol, k === 0 ? 4 : 1, k === 0 ? 20000 : 5000));
+  const polished = runs.map((run, k) => polish(chain, run, gtol, k === 0 ? 4 : 1, k === 0 ? 20000 : 1500));
   // polishing can merge states or reorder them
   polished.sort((a, b) => a.energy - b.energy);
   const distinct: RelaxedTexture[] = [];

@@ -110,6 +110,18 @@ describe("AFM wall with torsion: both rotation senses (PHYSICS.md section 5, cor
     // the issue's review figure for the lower sense, 0.242 (measured 0.24225)
     expect(Math.abs(da / 0.242 - 1)).toBeLessThan(0.01);
   });
+  it("planar wire (tau = 0): the two senses are degenerate; relaxing both (forced) agrees with the one-sense shortcut", () => {
+    const b = bumpWire("antiferro", 0.5, 0.1, 2, 50, 0.1);
+    const nodes = [b.node(0), b.node(3)];
+    const quick = pinningLandscape(b.chain, b.s, b.bg.local, b.k, "antiferro", { nodes });
+    // a zero field on the chain disables the symmetry shortcut without changing the energy
+    const forced = pinningLandscape({ ...b.chain, field: new Float64Array(3 * b.chain.n) }, b.s, b.bg.local, b.k, "antiferro", { nodes });
+    for (let j = 0; j < 2; ++j) {
+      expect(quick.bySense[1][j]).toBe(quick.bySense[0][j]);
+      expect(Math.abs(forced.bySense[1][j] - forced.bySense[0][j])).toBeLessThan(1e-7);
+      expect(Math.abs(forced.energy[j] - quick.energy[j])).toBeLessThan(1e-7);
+    }
+  });
   it("mirror images (tau -> -tau) give the same landscape and the same deepest site (symmetry)", () => {
     const xs = [-8, -6, -4, -3, -2, -1, -0.5, 0, 0.5, 1, 2, 3, 4, 6, 8];
     const a = bumpWire("antiferro", 0.5, -0.1, 2, 60, 0.1, 0.4, 0.3);
