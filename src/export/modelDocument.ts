@@ -18,7 +18,7 @@ export const MODEL_NOTE =
 /** Where the model stops being valid (shown in the report too). */
 export const MODEL_VALIDITY =
   "valid for a thin wire whose curvature and torsion radii are much larger than the lattice spacing and the wire thickness, " +
-  "for stretches several magnetic lengths long, with no applied field and no damping; the geometry is only known down to the fit's resolution length, " +
+  "for stretches several magnetic lengths long, with no damping and no applied field unless the material gives one; the geometry is only known down to the fit's resolution length, " +
   "so curvature varying on shorter scales is smoothed out";
 
 type Num = number | null;
