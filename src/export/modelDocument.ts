@@ -1,4 +1,5 @@
-import type { Material, StretchModel, WireModel } from "../physics/types.js";
+import { VALIDITY_BITS, VALIDITY_TEXT } from "../physics/sampleValidity.js";
+import type { Material, PinningSite, StretchModel, TextureState, WireModel } from "../physics/types.js";
 import { PER_METRE, type LengthUnit } from "../types.js";
 import type { Analysis } from "./analyzeTrace.js";
 import { composeWarnings } from "./composeWarnings.js";
@@ -21,7 +22,7 @@ export const MODEL_NOTE =
 /** Where the model stops being valid (shown in the report too). */
 export const MODEL_VALIDITY =
   "valid for a thin wire whose curvature and torsion radii are much larger than the lattice spacing and the wire thickness, " +
-  "for stretches several magnetic lengths long, with no applied field and no damping; the geometry is only known down to the fit's resolution length, " +
+  "for stretches several magnetic lengths long, with no damping and no applied field unless the material gives one; the geometry is only known down to the fit's resolution length, " +
   "so curvature varying on shorter scales is smoothed out";
 
 type Num = number | null;
@@ -35,12 +36,15 @@ export interface MaterialEntry {
   exchange: Num;
   anisotropy: Num;
   magneticLength: number;
-  intrinsic: { constant: number; axis: "tangent" | "normal" | "binormal" } | null;
+  intrinsic: { constant: number; axis: "tangent" | "normal" | "binormal" | "lab"; direction?: number[] } | null;
   latticeSpacing: Num;
   thickness: Num;
   crossSection: Num;
   temperature: number;
   magnonSpeed: Num;
+  saturationMagnetisation: Num;
+  anisotropyFromShape: boolean;
+  appliedField: { field: number; direction: number[] } | null;
 }
 
 /** One stretch in model.json. Physics fields are null for a geometry-only run. */
@@ -50,7 +54,7 @@ export interface SegmentEntry {
   kind: "straight" | "arc" | "helix" | "irregular";
   kappa: Num; kappaLo: Num; kappaHi: Num; tau: Num; tauLo: Num; tauHi: Num;
   kappaReduced: Num; tauReduced: Num;
-  state: "homogeneous" | "periodic" | null;
+  state: "homogeneous" | "periodic" | "vortex" | "onion" | null;
   homogeneousStability: "stable" | "metastable" | "unstable" | null;
   tiltDeg: Num;
   probabilities: { homogeneous: Num; periodic: Num; stable: Num; metastable: Num; unstable: Num } | null;
@@ -64,6 +68,40 @@ export interface SegmentEntry {
     lower0: Num; upper0: Num; kMin: Num; lowerMin: Num; depth: Num; unstable: boolean; note: string | null; omega0: Num;
   } | null;
   flags: string[];
+}
+
+/** A pinning site or barrier in model.json (lengths in `unit`). */
+export interface PinningEntry {
+  rank: number; kind: "site" | "barrier"; s: number; depthJ: Num; depthKT: Num; depthReduced: Num;
+  depthReducedLo: Num; depthReducedHi: Num; depthKTLo: Num; depthKTHi: Num;
+  relevant: boolean; note: string | null; flags: string[];
+  depinning: { towardPlus: Num; towardMinus: Num; field: Num; fieldMilliTesla: Num } | null;
+}
+
+function pinningEntry(x: PinningSite, i: number, k: number): PinningEntry {
+  const J = (v: number | null): Num => (v === null ? null : jsonNumber(v));
+  return {
+    rank: i + 1, kind: x.kind, s: jsonNumber(x.s * k) ?? 0, depthJ: J(x.depthJ), depthKT: J(x.depthKT), depthReduced: J(x.depthReduced),
+    depthReducedLo: J(x.depthReducedLo), depthReducedHi: J(x.depthReducedHi), depthKTLo: J(x.depthKTLo), depthKTHi: J(x.depthKTHi),
+    relevant: x.relevant, note: x.note, flags: [...x.flags],
+    depinning: x.depinning === null ? null : {
+      towardPlus: J(x.depinning.towardPlus), towardMinus: J(x.depinning.towardMinus), field: J(x.depinning.field), fieldMilliTesla: J(x.depinning.fieldTesla * 1000),
+    },
+  };
+}
+
+/** Runs of samples with the same non-zero validity code, as arc-length ranges in `unit`. */
+function validityRanges(mask: Uint8Array, s: Float64Array, k: number): { code: number; s0: number; s1: number }[] {
+  const out: { code: number; s0: number; s1: number }[] = [];
+  let i = 0;
+  while (i < mask.length) {
+    const c = mask[i];
+    let j = i;
+    while (j + 1 < mask.length && mask[j + 1] === c) j++;
+    if (c !== 0) out.push({ code: c, s0: jsonNumber(s[i] * k) ?? 0, s1: jsonNumber(s[j] * k) ?? 0 });
+    i = j + 1;
+  }
+  return out;
 }
 
 /** The model.json document (see src/export/schemas/model.schema.json). */
@@ -85,9 +123,19 @@ export interface ModelDocument {
   };
   material: MaterialEntry | null;
   segments: SegmentEntry[];
-  pinning: { rank: number; s: number; depthJ: Num; depthKT: Num; depthReduced: Num }[];
-  texture: { energyReduced: Num; energyJ: Num; iterations: number; converged: boolean } | null;
+  pinning: PinningEntry[];
+  pinningMinor: PinningEntry[];
+  barriers: PinningEntry[];
+  validityMap: { checks: { code: number; meaning: string }[]; ranges: { code: number; s0: number; s1: number }[] } | null;
+  texture: {
+    state: TextureState; energyReduced: Num; energyJ: Num; iterations: number; converged: boolean;
+    alternatives: { state: TextureState; energyReduced: Num; energyJ: Num; aboveGroundReduced: Num; converged: boolean }[];
+  } | null;
   ringLevels: { j: number; lower: Num; upper: Num }[] | null;
+  ring: {
+    order: "ferro" | "antiferro"; state: TextureState | "binormal"; kappaCircleReduced: Num; kappaMeanReduced: Num; kappaSpread: Num;
+    nearCircular: boolean; closedForm: { vortex: Num; onion: Num; state: "vortex" | "onion" } | null; caution: string | null;
+  } | null;
   warnings: string[];
   outputs: {
     profile: string;
@@ -163,12 +211,17 @@ export function materialEntry(m: Material, unit: LengthUnit, file: string | null
     exchange: m.exchange === null ? null : jsonNumber(m.exchange),
     anisotropy: m.anisotropy === null ? null : jsonNumber(m.anisotropy),
     magneticLength: jsonNumber(m.magneticLength * k) ?? 0,
-    intrinsic: m.intrinsic === null ? null : { constant: m.intrinsic.constant, axis: m.intrinsic.axis },
+    intrinsic: m.intrinsic === null ? null : m.intrinsic.direction !== undefined
+      ? { constant: m.intrinsic.constant, axis: m.intrinsic.axis, direction: [...m.intrinsic.direction] }
+      : { constant: m.intrinsic.constant, axis: m.intrinsic.axis },
     latticeSpacing: len(m.latticeSpacing),
     thickness: len(m.thickness),
     crossSection: m.crossSection === null ? null : jsonNumber(m.crossSection * k * k),
     temperature: m.temperature,
     magnonSpeed: m.magnonSpeed === null ? null : jsonNumber(m.magnonSpeed),
+    saturationMagnetisation: m.saturationMagnetisation === null ? null : jsonNumber(m.saturationMagnetisation),
+    anisotropyFromShape: m.anisotropyFromShape,
+    appliedField: m.appliedField === null ? null : { field: m.appliedField.field, direction: [...m.appliedField.direction] },
   };
 }
 
@@ -266,6 +319,8 @@ export function buildModelDocument(a: Analysis, options: ModelDocumentOptions): 
       energyThermal: "k_B T at material.temperature",
       energyReduced: "energy densities in units of K; energies in units of K l area",
       temperature: "K",
+      field: "A/m (fieldMilliTesla: mu0 H in mT)",
+      magnetisation: "A/m",
     },
     source,
     seed: a.seed,
@@ -281,20 +336,31 @@ export function buildModelDocument(a: Analysis, options: ModelDocumentOptions): 
     },
     material: a.material === null ? null : materialEntry(a.material, unit, options.materialFile ?? null, options.materialNote ?? null),
     segments: a.segments.map((_, i) => segmentEntry(a, i, model?.segments[i] ?? null, unit)),
-    pinning: (model?.pinning ?? []).map((s, i) => ({
-      rank: i + 1,
-      s: jsonNumber(s.s * k) ?? 0,
-      depthJ: s.depthJ === null ? null : jsonNumber(s.depthJ),
-      depthKT: s.depthKT === null ? null : jsonNumber(s.depthKT),
-      depthReduced: jsonNumber(s.depthReduced),
-    })),
+    pinning: (model?.pinning ?? []).map((x, i) => pinningEntry(x, i, k)),
+    pinningMinor: (model?.pinningMinor ?? []).map((x, i) => pinningEntry(x, i, k)),
+    barriers: (model?.barriers ?? []).map((x, i) => pinningEntry(x, i, k)),
+    validityMap: model === null ? null : {
+      checks: (Object.keys(VALIDITY_BITS) as (keyof typeof VALIDITY_BITS)[]).map((key) => ({ code: VALIDITY_BITS[key], meaning: VALIDITY_TEXT[key] })),
+      ranges: validityRanges(model.validity, p.s, k),
+    },
     texture: model === null ? null : {
+      state: model.texture.state,
       energyReduced: jsonNumber(model.texture.energyReduced),
       energyJ: model.texture.energyJ === null ? null : jsonNumber(model.texture.energyJ),
       iterations: model.texture.iterations,
       converged: model.texture.converged,
+      alternatives: model.texture.alternatives.map((x) => ({
+        state: x.state, energyReduced: jsonNumber(x.energyReduced), energyJ: x.energyJ === null ? null : jsonNumber(x.energyJ),
+        aboveGroundReduced: jsonNumber(x.aboveGroundReduced), converged: x.converged,
+      })),
     },
     ringLevels: model?.ringLevels?.map((r) => ({ j: r.j, lower: jsonNumber(r.lower), upper: jsonNumber(r.upper) })) ?? null,
+    ring: model?.ring == null ? null : {
+      order: model.ring.order, state: model.ring.state, kappaCircleReduced: jsonNumber(model.ring.kappaCircleReduced),
+      kappaMeanReduced: jsonNumber(model.ring.kappaMeanReduced), kappaSpread: jsonNumber(model.ring.kappaSpread), nearCircular: model.ring.nearCircular,
+      closedForm: model.ring.closedForm === null ? null : { vortex: jsonNumber(model.ring.closedForm.vortex), onion: jsonNumber(model.ring.closedForm.onion), state: model.ring.closedForm.state },
+      caution: model.ring.caution,
+    },
     warnings,
     outputs: {
       profile: o.profile,

@@ -5,13 +5,17 @@ import { gapProfile } from "./gapProfile.js";
 import { homogeneousState } from "./homogeneousState.js";
 import { interactions } from "./interactions.js";
 import { symEigen3 } from "./linalg.js";
-import { magnonGaps, ringLevels } from "./magnonGaps.js";
+import { magnonGaps } from "./magnonGaps.js";
 import type { PeriodicOptions } from "./periodicState.js";
-import { firstOrderPinning, pinningScan, pinningSites, type PinningOptions } from "./pinning.js";
+import { firstOrderPinning, mergeLandscapes, pinningLandscape, pinningScan, type PinningOptions } from "./pinning.js";
+import { pinningSummary } from "./pinningSummary.js";
+import { MU0, sampleValidity, validityLines } from "./sampleValidity.js";
 import { reducedSystem } from "./reducedSystem.js";
 import { relaxWire, wireChain } from "./relaxWire.js";
+import { ringState, ringWalls } from "./ringState.js";
+import { textureStarts } from "./textureStarts.js";
 import { stretchLabels, stretchProbabilities, type StretchContext } from "./stretchLabels.js";
-import type { Material, PinningLandscape, PinningSite, StretchModel, WireModel } from "./types.js";
+import type { GroundState, Material, PinningLandscape, PinningSite, ReducedSystem, Stability, StretchModel, TextureAlternative, TextureState, WireModel } from "./types.js";
 
 /** Boltzmann constant (J/K), exact in the 2019 SI. */
 export const BOLTZMANN = 1.380649e-23;
@@ -22,7 +26,7 @@ export interface WireModelOptions {
   readonly seed?: number;
   /** Seeded draws per stretch without replicates (default 200). */
   readonly draws?: number;
-  /** Periodic-state search settings (default hMax 0.25, scan 10, refine 6). */
+  /** Periodic-state search settings (default hMax 0.2 as PHYSICS.md section 4 asks, scan 10, refine 6). */
   readonly periodic?: PeriodicOptions;
   /** Pinning landscape settings (reduced lengths), or false to skip it. */
   readonly pinning?: false | (PinningOptions & { readonly coarse?: number; readonly fine?: number });
@@ -32,10 +36,15 @@ export interface WireModelOptions {
 
 /**
  * The whole physics stage for one wire: per stretch the reduced parameters, the effective DMI and
- * anisotropy, the homogeneous tilt, the two labels with probabilities, AFM magnon gaps and validity
- * flags; along the wire the relaxed texture, the wall-pinning landscape and sites (ranked deepest
- * first, in J and k_B T), the per-sample interactions for a chain export, the local AFM gap profile
- * and ring levels. Methods and sources: ../shared/PHYSICS.md (see each called function).
+ * anisotropy, the homogeneous tilt, the two labels with probabilities (closed FM wires: vortex or
+ * onion, decided on the whole wire), the full period where the periodic state may win, AFM magnon
+ * gaps and validity flags; along the wire the per-sample validity mask, the relaxed texture (the
+ * lowest of several starts, named, with the metastable alternatives), the ring state of a closed
+ * wire, the wall-pinning landscape with its sites (deepest first, in J and k_B T, 95% intervals
+ * from the bootstrap replicates, thermally irrelevant ones apart, depinning fields with Ms) and
+ * barriers, the per-sample interactions for a chain export, the local AFM gap profile and ring
+ * levels. An applied field and a lab-fixed intrinsic axis enter the relaxation and the landscape.
+ * Methods and sources: ../shared/PHYSICS.md (see each called function).
  * Units: SI in and out (lengths m, kappa and tau 1/m, energies J); reduced quantities are named so.
  * Energies in J need K and the cross-section (else null, with a warning). Deterministic (seeded).
  * Cost: seconds (a periodic search per stretch and corner, one relaxation, ~L/l wall relaxations).
@@ -45,12 +54,14 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
   const l = material.magneticLength;
   const system = reducedSystem(material);
   const warnings: string[] = [];
-  const periodicOptions: PeriodicOptions = { hMax: 0.25, scan: 10, refine: 6, ...options.periodic };
+  const periodicOptions: PeriodicOptions = { hMax: 0.2, scan: 10, refine: 6, ...options.periodic };
   const energyUnit = material.anisotropy !== null && material.crossSection !== null ? material.anisotropy * l * material.crossSection : null;
   if (energyUnit === null) warnings.push("energies in J need anisotropy (J/m^3) and thickness or crossSection (m, m^2): only reduced energies are given");
   const kT = BOLTZMANN * material.temperature;
   const inter = interactions(profile, material, system);
   const sRed = Float64Array.from(profile.s, (x) => x / l);
+  const validity = sampleValidity(profile, material);
+  if (profile.resolution > l) warnings.push(`resolution length of the geometry fit ${(profile.resolution / l).toPrecision(3)} magnetic lengths: curvature varying on the scale of a wall (l) is smoothed out, so pinning by finer features is missing`);
   const rand = mulberry32(options.seed ?? 1);
   const normal = (): number => {
     let a = rand();
@@ -58,15 +69,12 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
     return Math.sqrt(-2 * Math.log(a)) * Math.cos(2 * Math.PI * rand());
   };
   const ringWire = profile.closed && segments.length === 1 && segments[0].kind === "arc";
-  const models: StretchModel[] = segments.map((g) => {
-    const flags: string[] = [];
-    const kr = g.kappa * l, tr = Number.isFinite(g.tau) ? g.tau * l : NaN;
-    const context: StretchContext = g.kind === "straight" ? "straight" : g.kind === "helix" ? "helix" : ringWire ? "ring" : g.kind === "arc" ? "arc" : "helix";
-    const tUse = context === "helix" ? (Number.isFinite(tr) ? tr : 0) : 0;
-    const hom = homogeneousState(system, kr, tUse);
-    const labels = stretchLabels(system, context, kr, tUse, periodicOptions);
-    // replicate means of the stretch (bootstrap), else seeded draws within the bands
-    const reps = profile.kappaSamples !== undefined && profile.replicates > 0 ? profile.replicates : 0;
+  // a closed FM wire: vortex or onion, decided on the whole closed wire (PHYSICS.md section 3)
+  const ferroRing = profile.closed && system.order === "ferro";
+  const whole: Segment = { s0: profile.s[0], s1: profile.s[0] + profile.length, i0: 0, i1: profile.n, kind: "arc", kappa: mean(profile.kappa), kappaLo: mean(profile.kappaLo), kappaHi: mean(profile.kappaHi), tau: 0, tauLo: 0, tauHi: 0 };
+  const reps = profile.kappaSamples !== undefined && profile.replicates > 0 ? profile.replicates : 0;
+  /** Replicate means of a stretch (bootstrap), else seeded draws within the bands. */
+  const replicateMeans = (g: Segment, kr: number, tr: number): { kS: Float64Array; tS: Float64Array } => {
     const nr = reps > 0 ? reps : options.draws ?? 200;
     const kS = new Float64Array(nr), tS = new Float64Array(nr);
     for (let r = 0; r < nr; ++r) {
@@ -85,17 +93,40 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
         tS[r] = Number.isFinite(tr) ? tr + (((g.tauHi - g.tauLo) * l) / 3.92) * normal() : 0;
       }
     }
-    const prob = stretchProbabilities(system, context, kS, tS, periodicOptions);
+    return { kS, tS };
+  };
+  const ringKappa = whole.kappa * l;
+  const ringProb = ferroRing ? (() => {
+    const r = replicateMeans(whole, ringKappa, 0);
+    return stretchProbabilities(system, "ring", r.kS, r.tS, periodicOptions);
+  })() : null;
+  const ringLabels = ferroRing ? stretchLabels(system, "ring", ringKappa, 0, periodicOptions) : null;
+  const periodicCells: { g: Segment; texture: Float64Array; halfPeriod: number }[] = [];
+  const models: StretchModel[] = segments.map((g): StretchModel => {
+    const flags: string[] = [];
+    const kr = g.kappa * l, tr = Number.isFinite(g.tau) ? g.tau * l : NaN;
+    const context: StretchContext = ferroRing ? "ring" : g.kind === "straight" ? "straight" : g.kind === "helix" ? "helix" : ringWire ? "ring" : g.kind === "arc" ? "arc" : "helix";
+    const tUse = context === "helix" ? (Number.isFinite(tr) ? tr : 0) : 0;
+    const hom = homogeneousState(system, kr, tUse);
+    const labels = ringLabels ?? stretchLabels(system, context, kr, tUse, periodicOptions);
+    const { kS, tS } = replicateMeans(g, kr, tr);
+    const prob = ringProb ?? stretchProbabilities(system, context, kS, tS, periodicOptions);
     if (prob.uncertain) flags.push("uncertain: the band straddles the phase boundary or the stability line");
     if (labels.stability === "metastable") flags.push("metastable: a periodic texture has lower energy than the linearly stable homogeneous state");
-    if (context === "ring" && system.order === "ferro" && labels.state === "periodic") flags.push("ring onion state (two walls), reported as periodic");
+    // full period (2 x the energy's half-period), only where the periodic state wins or may win
+    const mayBePeriodic = labels.state === "periodic" || prob.periodic > 0;
+    const period = labels.periodic !== null && mayBePeriodic && !ferroRing ? 2 * labels.periodic.period * l : null;
+    if (labels.periodic !== null && mayBePeriodic && !ferroRing) periodicCells.push({ g, texture: labels.periodic.texture, halfPeriod: labels.periodic.period });
+    if (labels.state === "periodic" && period !== null && g.s1 - g.s0 < period) flags.push(`periodic label on a stretch shorter than one period (${((g.s1 - g.s0) / period).toPrecision(2)} periods): the texture there is set by the neighbours and the ends`);
+    if (labels.periodic?.atUpperBound && mayBePeriodic) flags.push("periodic texture at the longest period searched: a dilute kink lattice, period only a lower bound");
     // validity
     const len = g.s1 - g.s0;
     if (len < (options.shortStretch ?? 3) * l) flags.push(`short: ${(len / l).toPrecision(3)} magnetic lengths (< ${options.shortStretch ?? 3}); the constant-parameter model is doubtful`);
     if (len < profile.resolution) flags.push("shorter than the resolution length of the geometry fit");
-    const radius = g.kappa > 0 ? 1 / g.kappaHi : Infinity;
-    if (material.thickness !== null && radius < 5 * material.thickness) flags.push(`curvature radius ${radius.toExponential(2)} m not well above the thickness (model validity)`);
-    if (material.latticeSpacing !== null && radius < 10 * material.latticeSpacing) flags.push(`curvature radius ${radius.toExponential(2)} m not well above the lattice spacing (model validity)`);
+    // per-sample validity: a sharp bend inside a stretch is flagged even when the mean is fine
+    let nBad = 0;
+    for (let i = g.i0; i < g.i1; ++i) if (validity[i] !== 0) nBad++;
+    for (const line of validityLines(validity, g.i0, g.i1)) flags.push(`validity: ${line} (${nBad} of ${g.i1 - g.i0} samples fail a check)`);
     if (g.kind === "helix" && Number.isFinite(g.tauLo) && g.tauLo <= 0 && g.tauHi >= 0) flags.push("torsion not resolved (band contains 0)");
     if ((g.kind === "arc" || g.kind === "irregular") && Number.isFinite(g.tauHi - g.tauLo) && (g.tauHi - g.tauLo) * l > 0.2) flags.push("torsion not resolved (wide band)");
     if (g.kind === "irregular") flags.push("irregular: geometry not constant; stretch labels use the mean");
@@ -117,7 +148,7 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
       uncertain: prob.uncertain,
       energyReduced: hom.energy,
       periodicEnergyReduced: labels.periodic?.energy ?? null,
-      period: labels.periodic !== null ? labels.periodic.period * l : null,
+      period,
       dmi: material.exchange !== null ? 2 * material.exchange * Math.hypot(g.kappa, Number.isFinite(g.tau) && context === "helix" ? g.tau : 0) : null,
       dmiReduced: Math.hypot(kr, tUse),
       anisotropyConstants: Array.from(eig.values, (v) => (material.anisotropy !== null ? v * material.anisotropy : v)),
@@ -127,26 +158,105 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
       flags,
     };
   });
-  // relaxed texture along the real wire
-  const chain = wireChain(profile, l, system);
-  const relaxed = relaxWire(chain, system, inter.kappaReduced, Float64Array.from(inter.tauReduced, (t) => (Number.isFinite(t) ? t : 0)));
+  // relaxed texture along the real wire: several starts, the lowest kept and named
+  const perNode = perNodeTerms(profile, material);
+  const chain = { ...wireChain(profile, l, system), field: perNode.field, nodeTensor: perNode.tensor };
+  if (perNode.field !== null || perNode.tensor !== null) {
+    warnings.push(`${perNode.field !== null ? "applied field" : ""}${perNode.field !== null && perNode.tensor !== null ? " and " : ""}${perNode.tensor !== null ? "intrinsic axis fixed in the lab" : ""}: included in the relaxed texture and the pinning landscape only; the stretch labels, tilts, periodic search, per-sample anisotropy and magnon gaps are those without it (the constant-coefficient helix results no longer apply)`);
+  }
+  const tauRelax = Float64Array.from(inter.tauReduced, (t) => (Number.isFinite(t) ? t : 0));
+  const homStart = relaxStartHomogeneous(system, inter.kappaReduced, tauRelax);
+  const starts = textureStarts(profile, sRed, homStart, periodicCells.map((c) => ({ i0: c.g.i0, i1: c.g.i1, texture: c.texture, halfPeriod: c.halfPeriod })), perNode.field !== null && material.appliedField !== null ? [material.appliedField.direction] : []);
+  const relaxed = relaxWire(chain, system, inter.kappaReduced, tauRelax, starts);
   if (!relaxed.converged) warnings.push("texture relaxation stopped before convergence");
+  const nameOf = (name: string, local: Float64Array): TextureState => {
+    if (ferroRing) {
+      const walls = ringWalls(local);
+      return walls === 0 ? "vortex" : walls === 2 ? "onion" : "multidomain";
+    }
+    return name === "periodic" ? "periodic" : name === "lab-uniform" ? "lab-uniform" : name === "homogeneous" ? "homogeneous" : "local-uniform";
+  };
+  const textureState = nameOf(relaxed.name, relaxed.local);
+  const alternatives: TextureAlternative[] = relaxed.alternatives.map((x) => ({
+    state: nameOf(x.name, x.local),
+    energyReduced: x.energy,
+    energyJ: energyUnit !== null ? x.energy * energyUnit : null,
+    aboveGroundReduced: x.energy - relaxed.energy,
+    converged: x.converged,
+  }));
   const lab = new Float64Array(3 * profile.n);
   for (let i = 0; i < profile.n; ++i)
     for (let c = 0; c < 3; ++c)
       lab[3 * i + c] = relaxed.local[3 * i] * profile.T[3 * i + c] + relaxed.local[3 * i + 1] * profile.N[3 * i + c] + relaxed.local[3 * i + 2] * profile.B[3 * i + c];
+  const ring = profile.closed ? ringState(system.order, inter.kappaReduced, profile.length / l, relaxed.local, textureState) : null;
+  if (ring?.caution) warnings.push(ring.caution);
+  if (ferroRing && ring !== null) {
+    // every stretch of a closed FM wire carries the ring's state; the vortex is metastable when the
+    // onion wins and the vortex is still among the relaxed local minima
+    const ringLabel: GroundState = textureState === "vortex" ? "vortex" : "onion";
+    const vortexAlt = alternatives.some((x) => x.state === "vortex");
+    const stability: Stability = ringLabel === "vortex" ? "stable" : vortexAlt ? "metastable" : "unstable";
+    if (textureState === "multidomain") warnings.push("closed FM wire: the lowest texture found has more than two walls (labelled onion)");
+    if (ring.nearCircular && ring.closedForm !== null && ring.closedForm.state !== ringLabel) {
+      warnings.push(`closed FM wire: the relaxed texture is the ${ringLabel} but the circle of the same length (kappa l = ${ring.kappaCircleReduced.toPrecision(3)}) prefers the ${ring.closedForm.state}`);
+    }
+    for (let k = 0; k < models.length; ++k) {
+      const fl = models[k].flags.filter((f) => !f.startsWith("metastable"));
+      if (stability === "metastable") fl.push("metastable: the vortex is a local minimum above the onion ground state of the ring");
+      models[k] = { ...models[k], state: ringLabel, homogeneousStability: stability, flags: fl };
+    }
+  } else {
+    const anyPeriodic = models.some((m) => m.state === "periodic");
+    if (anyPeriodic && textureState !== "periodic") warnings.push(`a stretch is labelled periodic but the lowest texture found on the whole wire is ${textureState} (the finite wire's ends and neighbours decide)`);
+    if (!anyPeriodic && textureState === "periodic") warnings.push("the lowest texture found on the whole wire is the tiled periodic texture although no stretch is labelled periodic (band straddling the boundary)");
+  }
   // pinning landscape
   let landscape: PinningLandscape | null = null;
-  let pinning: PinningSite[] = [];
+  let pinning: PinningSite[] = [], pinningMinor: PinningSite[] = [], barriers: PinningSite[] = [];
   if (options.pinning !== false) {
     if (models.some((m) => m.state === "periodic")) warnings.push("a stretch has a periodic ground state: the wall landscape there is taken on the relaxed texture and is indicative only");
-    const scan = pinningScan(chain, sRed, relaxed.local, inter.kappaReduced, system.order, options.pinning ?? {});
+    if (textureState === "onion" || textureState === "multidomain") warnings.push(`the ring's ground state (${textureState}) already holds walls: the landscape of one more wall on it is indicative only`);
+    let scan = pinningScan(chain, sRed, relaxed.local, inter.kappaReduced, system.order, { ...(options.pinning ?? {}), keepWalls: true });
     const fo = firstOrderPinning(sRed, inter.kappaReduced, scan.q, system.order);
-    const sites = pinningSites(scan.q, scan.energy);
-    pinning = sites.map((x) => {
-      const depthJ = energyUnit !== null ? x.depth * energyUnit : null;
-      return { s: x.q * l, depthJ, depthKT: depthJ !== null ? depthJ / kT : null, depthReduced: x.depth };
+    const replicates = reps > 0 ? {
+      count: reps,
+      kappa: Float64Array.from(profile.kappaSamples!, (x) => x * l),
+      tau: profile.tauSamples !== undefined ? Float64Array.from(profile.tauSamples, (x) => x * l) : null,
+    } : null;
+    if (replicates === null) warnings.push("no bootstrap replicates kept with the profile: pinning depths have no 95% interval");
+    const ms = material.saturationMagnetisation;
+    const depinning = system.order === "ferro" && ms !== null && material.anisotropy !== null ? { anisotropy: material.anisotropy, saturationMagnetisation: ms } : null;
+    const summarise = () => pinningSummary({
+      scan, h: chain.h, q: system.q, replicates, kappaReduced: inter.kappaReduced, tauReduced: tauRelax, sReduced: sRed, validity,
+      l, energyUnit, kT, depinning,
     });
+    let summary = summarise();
+    if (depinning !== null && summary.sites.length > 0) {
+      // depinning fields need the steepest slope: sample the flanks (3 l each side) of the five
+      // deepest sites at the fine step too, then summarise again
+      const fine = options.pinning?.fine ?? 0.25;
+      const have = new Set(scan.index);
+      const extra = new Set<number>();
+      for (const site of summary.sites.slice(0, 5)) {
+        const sq = site.s / l;
+        for (let i = 0; i < profile.n; ++i) {
+          if (Math.abs(sRed[i] - sq) > 3 || have.has(i)) continue;
+          const prevKept = [...extra].some((j) => Math.abs(sRed[j] - sRed[i]) < 0.999 * fine) || [...have].some((j) => Math.abs(sRed[j] - sRed[i]) < 0.999 * fine);
+          if (!prevKept) extra.add(i);
+        }
+      }
+      if (extra.size > 0) {
+        const more = pinningLandscape(chain, sRed, relaxed.local, inter.kappaReduced, system.order, { ...(options.pinning ?? {}), nodes: [...extra].sort((a, b) => a - b), keepWalls: true });
+        scan = mergeLandscapes([scan, more]);
+        summary = summarise();
+      }
+    }
+    pinning = summary.sites;
+    pinningMinor = summary.minor;
+    barriers = summary.barriers;
+    if (pinningMinor.length > 0) warnings.push(`${pinningMinor.length} thermally irrelevant pinning ${pinningMinor.length === 1 ? "site" : "sites"} (95% interval includes 0 or depth below 1 k_B T) listed apart`);
+    if (system.order === "ferro" && ms === null) warnings.push("no saturation magnetisation Ms in the material: no depinning fields");
+    else if (system.order === "ferro") warnings.push("depinning fields from the largest slope of the sampled landscape (0.25 l apart within 3 l of the five deepest sites, 1 l elsewhere): quasi-static rigid-wall fields at zero temperature, no thermal activation");
     landscape = {
       q: Float64Array.from(scan.q, (x) => x * l),
       energy: scan.energy,
@@ -154,7 +264,7 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
       sites: pinning,
       method: system.order === "ferro"
         ? "constrained relaxation of a head-to-head wall through -N (window relaxation); firstOrder: 4 - 2 (kappa * sech)(q)"
-        : "constrained relaxation of a wall between +-B through +N (window relaxation); no first-order estimate; skipped where kappa l < 0.1",
+        : "constrained relaxation of a wall between the two easy directions, through +N and through -N, the lower kept at every position (window relaxation); no first-order estimate; skipped where kappa l < 0.1",
     };
     const afmMin = (options.pinning ?? {}).afmMinKappa ?? 0.1;
     if (system.order === "antiferro" && inter.kappaReduced.some((k) => !(k >= afmMin))) warnings.push(`AFM wall not localised where kappa l < ${afmMin} (near-straight): no pinning landscape there`);
@@ -162,15 +272,19 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
   }
   const gp = system.order === "antiferro" ? gapProfile(system, sRed, inter.kappaReduced, inter.tauReduced) : null;
   if (gp !== null && gp.valid.some((v) => v === 0)) warnings.push("local magnon gap profile not valid everywhere (geometry not slowly varying, nearly straight or unstable): see gapProfile.valid");
-  const ringL = system.order === "antiferro" && ringWire ? ringLevels(segments[0].kappa * l, 6) : null;
-  if (profile.closed && system.order === "antiferro" && !ringWire) warnings.push("closed wire that is not one arc: no ring levels (the local gap profile applies where valid)");
+  const ringL = ring?.levels !== null && ring?.levels !== undefined ? [...ring.levels] : null;
   return {
     unit: "m",
     material,
     segments: models,
     pinning,
+    pinningMinor,
+    barriers,
+    validity,
     landscape,
     texture: {
+      state: textureState,
+      alternatives,
       local: relaxed.local,
       lab,
       energyReduced: relaxed.energy,
@@ -181,6 +295,60 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
     interactions: inter,
     gapProfile: gp,
     ringLevels: ringL,
-    warnings: ["model estimates, not measurements: thin-wire limit, curvature and torsion radii much larger than the lattice spacing and the thickness, no field, no damping", ...warnings],
+    ring,
+    warnings: ["model estimates, not measurements: thin-wire limit, curvature and torsion radii much larger than the lattice spacing and the thickness, no damping, no applied field unless the material gives one; not modelled: intrinsic DMI, FM spin waves, thermal activation beyond the k_B T unit", ...warnings],
   };
+}
+
+/** Mean of the finite entries (NaN when none). */
+function mean(a: ArrayLike<number>): number {
+  let acc = 0, m = 0;
+  for (let i = 0; i < a.length; ++i) if (Number.isFinite(a[i])) { acc += a[i]; m++; }
+  return m > 0 ? acc / m : NaN;
+}
+
+/** The local homogeneous state per sample, sign continuous (the same start `relaxWire` builds). */
+function relaxStartHomogeneous(system: ReducedSystem, kappa: ArrayLike<number>, tau: ArrayLike<number>): Float64Array {
+  const n = kappa.length;
+  const v = new Float64Array(3 * n);
+  for (let i = 0; i < n; ++i) {
+    const u = homogeneousState(system, kappa[i], tau[i]).u;
+    const sgn = i > 0 && u[0] * v[3 * i - 3] + u[1] * v[3 * i - 2] + u[2] * v[3 * i - 1] < 0 ? -1 : 1;
+    for (let c = 0; c < 3; ++c) v[3 * i + c] = sgn * u[c];
+  }
+  return v;
+}
+
+/**
+ * Per-node terms of the wire chain from lab-fixed quantities, in local components at each sample:
+ * the Zeeman field h = mu0 Ms H / K (d . T, d . N, d . B) of an applied field (reduced; energy
+ * density -h . m in units of K), and the tensor -(K_i / K) a a^T of an intrinsic axis a fixed in the
+ * lab. null when absent. Cost O(n).
+ */
+function perNodeTerms(profile: Profile, material: Material): { field: Float64Array | null; tensor: Float64Array | null } {
+  const n = profile.n, T = profile.T, N = profile.N, B = profile.B;
+  const local = (d: readonly number[], i: number): [number, number, number] => {
+    const o = 3 * i;
+    return [d[0] * T[o] + d[1] * T[o + 1] + d[2] * T[o + 2], d[0] * N[o] + d[1] * N[o + 1] + d[2] * N[o + 2], d[0] * B[o] + d[1] * B[o + 1] + d[2] * B[o + 2]];
+  };
+  let field: Float64Array | null = null, tensor: Float64Array | null = null;
+  const af = material.appliedField, ms = material.saturationMagnetisation, K = material.anisotropy;
+  if (af !== null && ms !== null && K !== null && af.field > 0) {
+    const h = (MU0 * ms * af.field) / K;
+    field = new Float64Array(3 * n);
+    for (let i = 0; i < n; ++i) {
+      const a = local(af.direction, i);
+      for (let c = 0; c < 3; ++c) field[3 * i + c] = h * a[c];
+    }
+  }
+  const intr = material.intrinsic;
+  if (intr !== null && intr.axis === "lab" && intr.direction !== undefined && K !== null) {
+    const f = -intr.constant / K;
+    tensor = new Float64Array(9 * n);
+    for (let i = 0; i < n; ++i) {
+      const a = local(intr.direction, i);
+      for (let r = 0; r < 3; ++r) for (let c = 0; c < 3; ++c) tensor[9 * i + 3 * r + c] = f * a[r] * a[c];
+    }
+  }
+  return { field, tensor };
 }

@@ -3,7 +3,7 @@ import { bondRotation } from "./linalg.js";
 /**
  * A discretised wire in local-frame components (internal to the physics stage).
  * Energy (reduced, units of K l per cross-section), exact for the discrete chain:
- *   E = sum_b |c_j - R_b c_i|^2 / h_b + sum_i w_i c_i^T Q c_i
+ *   E = sum_b |c_j - R_b c_i|^2 / h_b + sum_i w_i c_i^T Q c_i  (+ the optional per-node terms)
  * for bonds b = (i -> j = i + 1) with the frame rotation R_b = exp(-h_b [D_b]x) (D the Darboux
  * vector (tau, 0, kappa) at the bond midpoint), node weights w_i (the length each node represents)
  * and the material tensor Q (local, constant along the wire). |c_j - R c_i|^2 = 2 - 2 c_j . R c_i
@@ -23,6 +23,11 @@ export interface Chain {
   readonly closure: "open" | "periodic" | "antiperiodic";
   /** 1 where the node is held fixed (its gradient is zeroed). */
   readonly fixed: Uint8Array | null;
+  /** Optional per-node terms (local components): a Zeeman field h (3 per node; energy
+   *  -sum_i w_i h_i . c_i, h = mu0 Ms H / K) and an extra anisotropy tensor (9 per node, row-major,
+   *  energy sum_i w_i c_i^T P_i c_i, e.g. an intrinsic axis fixed in the lab). */
+  readonly field?: Float64Array | null;
+  readonly nodeTensor?: Float64Array | null;
 }
 
 /**
@@ -75,6 +80,7 @@ let scratch = new Float64Array(0);
  */
 export function chainEnergy(chain: Chain, v: Float64Array, g: Float64Array | null): number {
   const { n, rot, h, w, q, closure, fixed } = chain;
+  const field = chain.field ?? null, pt = chain.nodeTensor ?? null;
   const nb = closure === "open" ? n - 1 : n;
   const q0 = q[0], q1 = q[1], q2 = q[2], q4 = q[4], q5 = q[5], q8 = q[8];
   if (scratch.length < 4 * n) scratch = new Float64Array(4 * n);
@@ -93,6 +99,26 @@ export function chainEnergy(chain: Chain, v: Float64Array, g: Float64Array | nul
       g[3 * i] += 2 * wi * (q0 * a + q1 * b + q2 * cc);
       g[3 * i + 1] += 2 * wi * (q1 * a + q4 * b + q5 * cc);
       g[3 * i + 2] += 2 * wi * (q2 * a + q5 * b + q8 * cc);
+    }
+    if (field !== null) {
+      const hx = field[3 * i], hy = field[3 * i + 1], hz = field[3 * i + 2];
+      e -= wi * (hx * a + hy * b + hz * cc);
+      if (g !== null) {
+        g[3 * i] -= wi * hx;
+        g[3 * i + 1] -= wi * hy;
+        g[3 * i + 2] -= wi * hz;
+      }
+    }
+    if (pt !== null) {
+      const o = 9 * i;
+      // symmetric tensor: P c
+      const pa = pt[o] * a + pt[o + 1] * b + pt[o + 2] * cc, pb = pt[o + 3] * a + pt[o + 4] * b + pt[o + 5] * cc, pc = pt[o + 6] * a + pt[o + 7] * b + pt[o + 8] * cc;
+      e += wi * (a * pa + b * pb + cc * pc);
+      if (g !== null) {
+        g[3 * i] += 2 * wi * pa;
+        g[3 * i + 1] += 2 * wi * pb;
+        g[3 * i + 2] += 2 * wi * pc;
+      }
     }
   }
   for (let bnd = 0; bnd < nb; ++bnd) {

@@ -14,7 +14,7 @@ export { periodicState, type PeriodicOptions, type PeriodicResult } from "./peri
 export { phaseBoundary } from "./phaseBoundary.js";
 export { stretchLabels, stretchProbabilities, type StretchContext } from "./stretchLabels.js";
 export { interactions, type FrameColumns } from "./interactions.js";
-export { wireChain, relaxWire, type WireColumns } from "./relaxWire.js";
-export { pinningLandscape, pinningScan, firstOrderPinning, pinningSites, type PinningOptions } from "./pinning.js";
+export { wireChain, relaxWire, type WireColumns, type NamedStart, type RelaxedTexture } from "./relaxWire.js";
+export { pinningLandscape, pinningScan, mergeLandscapes, firstOrderPinning, pinningSites, type PinningOptions, type RelaxedWall, type WallLandscape, type LandscapeWell, wallEnergyWith } from "./pinning.js";
 export { gapProfile } from "./gapProfile.js";
 export { buildWireModel, BOLTZMANN, type WireModelOptions } from "./buildWireModel.js";

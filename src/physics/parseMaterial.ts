@@ -2,6 +2,7 @@ import { Ajv2020 } from "ajv/dist/2020.js";
 import type { ErrorObject, ValidateFunction } from "ajv/dist/2020.js";
 import { InputError } from "../errors.js";
 import schema from "./schemas/material.schema.json" with { type: "json" };
+import { MU0 } from "./sampleValidity.js";
 import type { IntrinsicAnisotropy, MagneticOrder, Material } from "./types.js";
 
 /** The material JSON as written by a user (see schemas/material.schema.json). */
@@ -16,7 +17,9 @@ export interface MaterialJson {
   crossSection?: number;
   temperature?: number;
   magnonSpeed?: number;
-  intrinsic?: IntrinsicAnisotropy;
+  saturationMagnetisation?: number;
+  intrinsic?: { constant: number; axis: IntrinsicAnisotropy["axis"]; direction?: [number, number, number] };
+  appliedField?: { field: number; direction: [number, number, number] };
 }
 
 // strictRequired off: the anyOf/not branches name properties defined at the top level
@@ -28,7 +31,7 @@ export const materialSchema: Readonly<Record<string, unknown>> = schema;
 
 const UNITS: Record<string, string> = {
   exchange: "J/m", anisotropy: "J/m^3", magneticLength: "m", latticeSpacing: "m", thickness: "m",
-  crossSection: "m^2", temperature: "K", magnonSpeed: "m/s", constant: "J/m^3",
+  crossSection: "m^2", temperature: "K", magnonSpeed: "m/s", constant: "J/m^3", saturationMagnetisation: "A/m", field: "A/m",
 };
 
 function fieldName(instancePath: string): string {
@@ -83,7 +86,7 @@ function message(err: ErrorObject, json: unknown): { field: string; problem: str
     case "additionalProperties":
       return { field, problem: `unknown property '${err.params.additionalProperty}'` };
     case "anyOf":
-      return { field, problem: "give exchange (J/m) and anisotropy (J/m^3), or magneticLength (m)" };
+      return { field, problem: "give exchange (J/m) and anisotropy (J/m^3), or magneticLength (m), or (FM) exchange and saturationMagnetisation (A/m)" };
     case "not":
       return { field, problem: "give at most two of exchange, anisotropy and magneticLength (they are tied by l = sqrt(A/K))" };
     default:
@@ -95,7 +98,10 @@ function message(err: ErrorObject, json: unknown): { field: string; problem: str
  * Validate a parsed material JSON against schemas/material.schema.json (ajv, draft 2020-12) and
  * complete it: l = sqrt(A/K) from exchange and anisotropy, or A = K l^2 / K = A / l^2 when one of
  * them accompanies the magnetic length; cross-section pi thickness^2 / 4 (round wire) when not given;
- * temperature 300 K by default. Units: SI throughout.
+ * temperature 300 K by default. FM with a saturation magnetisation Ms and no K: K = mu0 Ms^2 / 4, the
+ * shape anisotropy of a thin round wire (demagnetising factors 0 along the axis, 1/2 across;
+ * Osborn, Phys. Rev. 67, 351 (1945), limit of a long cylinder; from memory), flagged
+ * anisotropyFromShape. Units: SI throughout.
  * @throws {InputError} naming the file and the field, with the expected unit and range, for the
  *   first problem found, e.g. `mat.json: material.exchange: must be a positive number in J/m,
  *   range (0, 1e-8] (got -1)`. An intrinsic term without K raises too (its size is relative to K).
@@ -118,6 +124,12 @@ export function parseMaterial(json: unknown, file: string): Material {
   }
   const j = json;
   let a = j.exchange ?? null, k = j.anisotropy ?? null;
+  const ms = j.saturationMagnetisation ?? null;
+  if (ms !== null && j.order !== "ferro") throw new InputError(file, null, "material.saturationMagnetisation", "applies to order \"ferro\" only (the AFM chain has no net magnetisation)");
+  // K not given: the shape anisotropy of a thin round wire, mu0 Ms^2 / 4
+  const fromShape = k === null && ms !== null && (a === null || j.magneticLength === undefined);
+  if (fromShape) k = (MU0 * ms! * ms!) / 4;
+  if (fromShape && j.intrinsic !== undefined) throw new InputError(file, null, "material.anisotropy", "give K explicitly with an intrinsic term (the shape value mu0 Ms^2 / 4 is only used alone)");
   let l: number;
   if (j.magneticLength !== undefined) {
     l = j.magneticLength;
@@ -127,7 +139,23 @@ export function parseMaterial(json: unknown, file: string): Material {
     l = Math.sqrt(a! / k!);
   }
   if (!(l > 0) || !Number.isFinite(l)) throw new InputError(file, null, "material.magneticLength", `must be a positive length in m (got ${l})`);
-  const intrinsic = j.intrinsic ?? null;
+  const unitVector = (d: readonly number[] | undefined, field: string): [number, number, number] => {
+    const n = d === undefined ? 0 : Math.hypot(d[0], d[1], d[2]);
+    if (!(n > 0) || !Number.isFinite(n)) throw new InputError(file, null, field, `must be a non-zero lab direction [x, y, z] (got ${show(d)})`);
+    return [d![0] / n, d![1] / n, d![2] / n];
+  };
+  let intrinsic: IntrinsicAnisotropy | null = null;
+  if (j.intrinsic !== undefined) {
+    if (j.intrinsic.axis === "lab") intrinsic = { constant: j.intrinsic.constant, axis: "lab", direction: unitVector(j.intrinsic.direction, "material.intrinsic.direction") };
+    else if (j.intrinsic.direction !== undefined) throw new InputError(file, null, "material.intrinsic.direction", `only with axis "lab" (got axis ${show(j.intrinsic.axis)})`);
+    else intrinsic = { constant: j.intrinsic.constant, axis: j.intrinsic.axis };
+  }
+  let appliedField: Material["appliedField"] = null;
+  if (j.appliedField !== undefined) {
+    if (j.order !== "ferro") throw new InputError(file, null, "material.appliedField", "applies to order \"ferro\" only (the AFM sigma model has no linear Zeeman term)");
+    if (ms === null) throw new InputError(file, null, "material.appliedField", "needs saturationMagnetisation (A/m) for the Zeeman energy mu0 Ms H");
+    appliedField = { field: j.appliedField.field, direction: unitVector(j.appliedField.direction, "material.appliedField.direction") };
+  }
   if (intrinsic !== null && k === null) {
     throw new InputError(file, null, "material.intrinsic", "needs the anisotropy K (J/m^3) to compare the intrinsic constant with");
   }
@@ -144,6 +172,9 @@ export function parseMaterial(json: unknown, file: string): Material {
     crossSection,
     temperature: j.temperature ?? 300,
     magnonSpeed: j.magnonSpeed ?? null,
+    saturationMagnetisation: ms,
+    anisotropyFromShape: fromShape,
+    appliedField,
   };
 }
 

@@ -1,4 +1,4 @@
-import { chainEnergy, normalise, type Chain } from "./chain.js";
+import { chainEnergy, makeChain, normalise, type Chain } from "./chain.js";
 import { relaxChain } from "./relaxChain.js";
 import type { MagneticOrder } from "./types.js";
 
@@ -20,6 +20,74 @@ export interface PinningOptions {
   readonly nodes?: ArrayLike<number>;
   /** Gradient tolerance per unit node spacing of the window relaxations (default 1e-6). */
   readonly tolerance?: number;
+  /** Keep the relaxed wall and background textures of every window (for the replicate depths). */
+  readonly keepWalls?: boolean;
+}
+
+/** The relaxed wall of one window: window node indices, wall and background textures (3 per node). */
+export interface RelaxedWall {
+  readonly nodes: Int32Array;
+  readonly wall: Float64Array;
+  readonly background: Float64Array;
+  readonly fixed: Uint8Array;
+}
+
+/** Landscape along a list of wall positions (reduced units; NaN where no wall is computed). */
+export interface WallLandscape {
+  /** Node index of every wall position. */
+  readonly index: Int32Array;
+  readonly q: Float64Array;
+  /** The lower of the senses computed at each position. */
+  readonly energy: Float64Array;
+  /** Energy of each sense (FM: [-N]; AFM: [+N, -N]). */
+  readonly bySense: readonly Float64Array[];
+  /** Sense of the kept wall: +1 through +N, -1 through -N, 0 where none. */
+  readonly sense: Int8Array;
+  /** Relaxed walls when `keepWalls` was asked for, else null. */
+  readonly walls: readonly (RelaxedWall | null)[] | null;
+  readonly iterations: number;
+}
+
+interface WallTrack { readonly centre: number; readonly nodes: Int32Array; readonly v: Float64Array }
+
+/**
+ * Start texture of a window: a tanh wall from bg to -bg whose centre points along sign * N
+ * (orthogonalised against bg at the centre), or the previous relaxed wall of the same sense
+ * shifted to the new centre (warm start). The centre node holds the centre direction.
+ */
+function wallStart(bg: Float64Array, iq: number, vb: Float64Array, sPos: Float64Array, c0: number, width: number, sign: number, prev: WallTrack | null): Float64Array {
+  const m = sPos.length;
+  const bq = 3 * iq;
+  let wx = -bg[bq + 1] * sign * bg[bq], wy = sign * (1 - bg[bq + 1] * bg[bq + 1]), wz = -bg[bq + 1] * sign * bg[bq + 2];
+  let wn = Math.hypot(wx, wy, wz);
+  if (wn < 1e-6) {
+    // bg along N: rotate through the binormal instead
+    wx = 0; wy = 0; wz = sign; wn = 1;
+  }
+  wx /= wn; wy /= wn; wz /= wn;
+  const v = new Float64Array(3 * m);
+  for (let a = 0; a < m; ++a) {
+    const bx = vb[3 * a], by = vb[3 * a + 1], bz = vb[3 * a + 2];
+    // centre direction transported only approximately: orthogonalise the global w against bg here
+    const dot = wx * bx + wy * by + wz * bz;
+    let ux = wx - dot * bx, uy = wy - dot * by, uz = wz - dot * bz;
+    const un = Math.hypot(ux, uy, uz) || 1;
+    ux /= un; uy /= un; uz /= un;
+    const phi = 0.5 * Math.PI * (1 + Math.tanh(sPos[a] / width));
+    const c = Math.cos(phi), sn = Math.sin(phi);
+    v[3 * a] = c * bx + sn * ux;
+    v[3 * a + 1] = c * by + sn * uy;
+    v[3 * a + 2] = c * bz + sn * uz;
+  }
+  if (prev !== null) {
+    const pc0 = prev.nodes.indexOf(prev.centre);
+    for (let a = 0; a < m; ++a) {
+      const pa = a - c0 + pc0; // same offset from the wall centre
+      if (pa >= 0 && pa < prev.nodes.length) for (let c = 0; c < 3; ++c) v[3 * a + c] = prev.v[3 * pa + c];
+    }
+  }
+  v[3 * c0] = wx; v[3 * c0 + 1] = wy; v[3 * c0 + 2] = wz;
+  return v;
 }
 
 /** Gather a window of a chain (node indices, consecutive along the chain) into an open chain. */
@@ -33,16 +101,27 @@ function windowChain(chain: Chain, nodes: Int32Array, fixed: Uint8Array): Chain 
     w[k] += 0.5 * h[k];
     w[k + 1] += 0.5 * h[k];
   }
-  return { n: m, rot, h, w, q: chain.q, closure: "open", fixed };
+  const pick = (src: Float64Array | null | undefined, stride: number): Float64Array | null => {
+    if (src === null || src === undefined) return null;
+    const out = new Float64Array(stride * m);
+    for (let k = 0; k < m; ++k) out.set(src.subarray(stride * nodes[k], stride * nodes[k] + stride), stride * k);
+    return out;
+  };
+  return { n: m, rot, h, w, q: chain.q, closure: "open", fixed, field: pick(chain.field, 3), nodeTensor: pick(chain.nodeTensor, 9) };
 }
 
 /**
  * Domain-wall energy landscape U(q) along a wire by constrained relaxation (the general algorithm
  * of ../shared/PHYSICS.md section 5): for each wall position q (a node), the texture in a window
  * around q starts as a wall between the background texture bg and -bg (tanh profile), the node at
- * q is held at the wall-centre direction (FM: -N, the pinned sense; AFM: +N, both senses
- * degenerate), the window ends are held at +-bg, and the rest is relaxed by L-BFGS;
- * U(q) = E_window(wall) - E_window(bg). Warm starts from the previous q (shifted).
+ * q is held at the wall-centre direction, the window ends are held at +-bg, and the rest is
+ * relaxed by L-BFGS; U(q) = E_window(wall) - E_window(bg). Senses: FM through -N only (the pinned
+ * sense of a planar wire; torsion does not split it at first order); AFM through +N and through -N,
+ * keeping the lower at every q, because torsion splits the two senses (PHYSICS.md section 5,
+ * correction: 4 pi |tau cos theta0 - kappa sin theta0| at first order) and a mirror image
+ * (tau -> -tau) swaps them. Warm starts from the previous q of the same sense (shifted).
+ * With a Zeeman field on the chain (open wires) the reversed domain beyond the window is added, so
+ * U(q) carries the field's slope 2 h . bg per unit length of wall displacement.
  * bg must be the relaxed wall-free texture (local components) of the same chain.
  * Reduced energies (K l per cross-section). Positions where no wall is computed hold NaN.
  * Cost: (number of q) x (a few hundred iterations on 2 window/h nodes).
@@ -54,7 +133,7 @@ export function pinningLandscape(
   kappaReduced: ArrayLike<number>,
   order: MagneticOrder,
   options: PinningOptions = {},
-): { index: Int32Array; q: Float64Array; energy: Float64Array; iterations: number } {
+): WallLandscape {
   const n = chain.n;
   const closed = chain.closure !== "open";
   let hMean = 0;
@@ -71,13 +150,25 @@ export function pinningLandscape(
     index = Int32Array.from(indices);
   }
   const energy = new Float64Array(index.length).fill(NaN);
-  let prev: { centre: number; nodes: Int32Array; v: Float64Array } | null = null;
+  // FM: the pinned sense only (through -N, PHYSICS.md section 5); AFM: both senses, the lower kept
+  const senses = order === "ferro" ? [-1] : [1, -1];
+  const bySense = senses.map(() => new Float64Array(index.length).fill(NaN));
+  const sense = new Int8Array(index.length);
+  const prev: (WallTrack | null)[] = senses.map(() => null);
+  const walls: (RelaxedWall | null)[] | null = options.keepWalls ? new Array<RelaxedWall | null>(index.length).fill(null) : null;
   let iterations = 0;
+  // With a field, the reversed domain beyond the window (open wire: from the window's right end to
+  // the wire's end, -bg instead of bg) costs 2 w_i h_i . bg_i per node: suffix sums of that.
+  const zeemanTail = new Float64Array(n + 1);
+  if (chain.field && !closed) {
+    const f = chain.field;
+    for (let i = n - 1; i >= 0; --i) zeemanTail[i] = zeemanTail[i + 1] + 2 * chain.w[i] * (f[3 * i] * bg[3 * i] + f[3 * i + 1] * bg[3 * i + 1] + f[3 * i + 2] * bg[3 * i + 2]);
+  }
   for (let k = 0; k < index.length; ++k) {
     const iq = index[k];
     const kq = kappaReduced[iq];
     if (order === "antiferro" && !(kq >= afmMin)) {
-      prev = null;
+      prev.fill(null);
       continue;
     }
     const half = options.window ?? Math.min(60, order === "ferro" ? 6 : 6 / Math.max(kq, 0.2));
@@ -114,65 +205,50 @@ export function pinningLandscape(
     if (!leftOpen) fixed[0] = 1;
     if (!rightOpen) fixed[m - 1] = 1;
     const sub = windowChain(chain, nodes, fixed);
-    // wall-centre direction: -N (FM) or +N (AFM), orthogonalised against bg at q
-    const sign = order === "ferro" ? -1 : 1;
-    const bq = 3 * iq;
-    let wx = -bg[bq + 1] * sign * bg[bq], wy = sign * (1 - bg[bq + 1] * bg[bq + 1]), wz = -bg[bq + 1] * sign * bg[bq + 2];
-    let wn = Math.hypot(wx, wy, wz);
-    if (wn < 1e-6) {
-      // bg along N: rotate through the binormal instead
-      wx = 0; wy = 0; wz = 1; wn = 1;
-    }
-    wx /= wn; wy /= wn; wz /= wn;
     const width = order === "ferro" ? 1 : 1 / Math.max(kq, 0.2);
-    const v = new Float64Array(3 * m);
-    const vb = new Float64Array(3 * m);
-    let sRel = 0;
     const sPos = new Float64Array(m);
+    let sRel = 0;
     for (let a = c0 - 1; a >= 0; --a) { sRel -= sub.h[a]; sPos[a] = sRel; }
     sRel = 0;
     for (let a = c0 + 1; a < m; ++a) { sRel += sub.h[a - 1]; sPos[a] = sRel; }
-    for (let a = 0; a < m; ++a) {
-      const g = 3 * nodes[a];
-      const bx = bg[g], by = bg[g + 1], bz = bg[g + 2];
-      vb[3 * a] = bx; vb[3 * a + 1] = by; vb[3 * a + 2] = bz;
-      // centre direction transported only approximately: orthogonalise the global w against bg here
-      const dot = wx * bx + wy * by + wz * bz;
-      let ux = wx - dot * bx, uy = wy - dot * by, uz = wz - dot * bz;
-      const un = Math.hypot(ux, uy, uz) || 1;
-      ux /= un; uy /= un; uz /= un;
-      const phi = 0.5 * Math.PI * (1 + Math.tanh(sPos[a] / width));
-      const c = Math.cos(phi), sn = Math.sin(phi);
-      v[3 * a] = c * bx + sn * ux;
-      v[3 * a + 1] = c * by + sn * uy;
-      v[3 * a + 2] = c * bz + sn * uz;
-    }
-    // warm start: the previous relaxed wall, shifted to the new centre
-    if (prev !== null) {
-      const pc0 = prev.nodes.indexOf(prev.centre);
-      for (let a = 0; a < m; ++a) {
-        const pa = a - c0 + pc0; // same offset from the wall centre
-        if (pa >= 0 && pa < prev.nodes.length) {
-          for (let c = 0; c < 3; ++c) v[3 * a + c] = prev.v[3 * pa + c];
-        }
-      }
-    }
-    v[3 * c0] = wx; v[3 * c0 + 1] = wy; v[3 * c0 + 2] = wz;
-    if (fixed[0]) { v[0] = vb[0]; v[1] = vb[1]; v[2] = vb[2]; }
-    if (fixed[m - 1]) { v[3 * m - 3] = -vb[3 * m - 3]; v[3 * m - 2] = -vb[3 * m - 2]; v[3 * m - 1] = -vb[3 * m - 1]; }
-    normalise(v);
+    const vb = new Float64Array(3 * m);
+    for (let a = 0; a < m; ++a) for (let c = 0; c < 3; ++c) vb[3 * a + c] = bg[3 * nodes[a] + c];
     let hMin = Infinity;
     for (let a = 0; a < sub.h.length; ++a) hMin = Math.min(hMin, sub.h[a]);
-    // depths need ~1e-7 relative: stop when the energy changes by < 1e-10 relative over 10 steps
-    const r = relaxChain(sub, v, { gradientTolerance: (options.tolerance ?? 1e-6) * hMin, energyTolerance: 1e-10, maxIterations: 20000 });
-    iterations += r.iterations;
     const eBg = chainEnergy({ ...sub, fixed: null }, vb, null);
-    energy[k] = r.energy - eBg;
-    prev = { centre: iq, nodes, v };
+    let bestE = Infinity, bestV: Float64Array | null = null, bestSense = 0;
+    // a planar window (every bond rotates about B) with no per-node terms is symmetric under
+    // u_B -> -u_B, which maps the wall through +N onto the one through -N: compute one sense
+    let planar = senses.length > 1 && !chain.field && !chain.nodeTensor && chain.q[2] === 0 && chain.q[5] === 0;
+    for (let a = 0; planar && a + 1 < m; ++a) {
+      const o = 9 * nodes[a], r = chain.rot;
+      if (r[o + 2] !== 0 || r[o + 5] !== 0 || r[o + 6] !== 0 || r[o + 7] !== 0) planar = false;
+    }
+    for (let si = 0; si < senses.length; ++si) {
+      if (planar && si > 0) {
+        bySense[si][k] = bySense[0][k];
+        prev[si] = null;
+        continue;
+      }
+      const v = wallStart(bg, iq, vb, sPos, c0, width, senses[si], prev[si]);
+      if (fixed[0]) { v[0] = vb[0]; v[1] = vb[1]; v[2] = vb[2]; }
+      if (fixed[m - 1]) { v[3 * m - 3] = -vb[3 * m - 3]; v[3 * m - 2] = -vb[3 * m - 2]; v[3 * m - 1] = -vb[3 * m - 1]; }
+      normalise(v);
+      // depths need ~1e-7 relative: stop when the energy changes by < 1e-10 relative over 10 steps
+      const r = relaxChain(sub, v, { gradientTolerance: (options.tolerance ?? 1e-6) * hMin, energyTolerance: 1e-10, maxIterations: 20000 });
+      iterations += r.iterations;
+      const e = r.energy - eBg + (closed ? 0 : zeemanTail[nodes[m - 1] + 1]);
+      bySense[si][k] = e;
+      prev[si] = { centre: iq, nodes, v };
+      if (e < bestE) { bestE = e; bestV = v; bestSense = senses[si]; }
+    }
+    energy[k] = bestE;
+    sense[k] = bestSense;
+    if (walls !== null && bestV !== null) walls[k] = { nodes, wall: bestV, background: vb, fixed };
   }
   const q = new Float64Array(index.length);
   for (let k = 0; k < index.length; ++k) q[k] = s[index[k]];
-  return { index, q, energy, iterations };
+  return { index, q, energy, bySense, sense, walls, iterations };
 }
 
 /**
@@ -204,14 +280,29 @@ export function firstOrderPinning(s: Float64Array, kappaReduced: ArrayLike<numbe
   return out;
 }
 
+/** A local minimum of a landscape (reduced units) with the grid indices that set its depth. */
+export interface LandscapeWell {
+  /** Position and energy refined by a parabola through the three nearest points. */
+  readonly q: number;
+  readonly energy: number;
+  /** Lower of the two barriers to the highest points before the neighbouring minima (or the ends). */
+  readonly depth: number;
+  /** Grid index of the minimum, and of the highest point on each side (-1 when none). */
+  readonly k: number;
+  readonly kLeft: number;
+  readonly kRight: number;
+}
+
 /**
  * Pinning sites of a landscape U(q): interior local minima, position and energy refined by a
  * parabola through the three nearest points, depth = the lower of the two barriers to the
  * highest points between this minimum and its neighbouring minima (or the ends). NaN entries
- * split the landscape; depths below minDepth (default 1e-6 of max |U|) are dropped. Sorted deepest first. Reduced units in, reduced out. Cost O(m).
+ * split the landscape; depths below minDepth (default 1e-6 of max |U|) are dropped. Sorted deepest
+ * first. Barriers (maxima: a wall pushed away) are the wells of -U. Reduced units in, reduced out.
+ * Cost O(m).
  * @example pinningSites(q, U)[0].depth // U(far) - U(0) for a single bump
  */
-export function pinningSites(q: Float64Array, u: Float64Array, minDepth?: number): { q: number; depth: number; energy: number }[] {
+export function pinningSites(q: Float64Array, u: Float64Array, minDepth?: number): LandscapeWell[] {
   const m = q.length;
   let scale = 0;
   for (let k = 0; k < m; ++k) if (Number.isFinite(u[k])) scale = Math.max(scale, Math.abs(u[k]));
@@ -222,12 +313,12 @@ export function pinningSites(q: Float64Array, u: Float64Array, minDepth?: number
     if (!Number.isFinite(u[k - 1]) || !Number.isFinite(u[k]) || !Number.isFinite(u[k + 1])) continue;
     if (u[k] < u[k - 1] && u[k] <= u[k + 1]) minima.push(k);
   }
-  const out: { q: number; depth: number; energy: number }[] = [];
+  const out: LandscapeWell[] = [];
   minima.forEach((k, idx) => {
     const stopL = idx > 0 ? minima[idx - 1] : -1, stopR = idx + 1 < minima.length ? minima[idx + 1] : m;
-    let maxL = -Infinity, maxR = -Infinity;
-    for (let j = k - 1; j > stopL && Number.isFinite(u[j]); --j) maxL = Math.max(maxL, u[j]);
-    for (let j = k + 1; j < stopR && Number.isFinite(u[j]); ++j) maxR = Math.max(maxR, u[j]);
+    let maxL = -Infinity, maxR = -Infinity, kL = -1, kR = -1;
+    for (let j = k - 1; j > stopL && Number.isFinite(u[j]); --j) if (u[j] > maxL) { maxL = u[j]; kL = j; }
+    for (let j = k + 1; j < stopR && Number.isFinite(u[j]); ++j) if (u[j] > maxR) { maxR = u[j]; kR = j; }
     // parabola through k-1, k, k+1 (uneven spacing allowed)
     const x0 = q[k - 1], x1 = q[k], x2 = q[k + 1], y0 = u[k - 1], y1 = u[k], y2 = u[k + 1];
     const d0 = (y1 - y0) / (x1 - x0), d1 = (y2 - y1) / (x2 - x1);
@@ -236,13 +327,33 @@ export function pinningSites(q: Float64Array, u: Float64Array, minDepth?: number
     if (a > 0) {
       const b = d0 - a * (x0 + x1);
       qm = Math.min(x2, Math.max(x0, -b / (2 * a)));
-      um = y1 + (qm - x1) * (d0 + a * (qm - x0)) ;
+      um = y1 + (qm - x1) * (d0 + a * (qm - x0));
       um = Math.min(um, y1);
     }
     const depth = Math.min(maxL, maxR) - um;
-    if (depth > floor) out.push({ q: qm, depth, energy: um });
+    if (depth > floor) out.push({ q: qm, depth, energy: um, k, kLeft: kL, kRight: kR });
   });
   return out.sort((x, y) => y.depth - x.depth);
+}
+
+/**
+ * Wall energy U = E(wall) - E(background) of a relaxed window (`keepWalls`) on a chain with other
+ * kappa l, tau l at its nodes, the textures held fixed. Because both textures are constrained
+ * minima, this is the first-order (Hellmann-Feynman) response of U to a change of the geometry
+ * (common practice in perturbation theory; exact to first order in the change, the relaxation of the
+ * textures only enters at second order). Used for the bootstrap replicates of kappa(s), tau(s).
+ * h: the chain's bond lengths (reduced). Cost O(window).
+ */
+export function wallEnergyWith(wall: RelaxedWall, h: Float64Array, q: Float64Array, kappaReduced: ArrayLike<number>, tauReduced: ArrayLike<number>): number {
+  const nodes = wall.nodes, m = nodes.length;
+  const k = new Float64Array(m), t = new Float64Array(m), hb = new Float64Array(m - 1);
+  for (let a = 0; a < m; ++a) {
+    k[a] = kappaReduced[nodes[a]];
+    t[a] = tauReduced[nodes[a]];
+    if (a + 1 < m) hb[a] = h[nodes[a]];
+  }
+  const chain = makeChain(k, t, hb, q, "open", null);
+  return chainEnergy(chain, wall.wall, null) - chainEnergy(chain, wall.background, null);
 }
 
 /**
@@ -259,7 +370,7 @@ export function pinningScan(
   kappaReduced: ArrayLike<number>,
   order: MagneticOrder,
   options: PinningOptions & { readonly coarse?: number; readonly fine?: number } = {},
-): { index: Int32Array; q: Float64Array; energy: Float64Array; iterations: number } {
+): WallLandscape {
   const n = chain.n;
   let hMean = 0;
   for (let i = 0; i < chain.h.length; ++i) hMean += chain.h[i];
@@ -287,14 +398,32 @@ export function pinningScan(
   }
   const fineNodes = [...extra].sort((a, b) => a - b);
   const second = fineNodes.length > 0 ? pinningLandscape(chain, s, bg, kappaReduced, order, { ...options, nodes: fineNodes }) : null;
-  const all: { i: number; q: number; e: number }[] = [];
-  for (let k = 0; k < idx.length; ++k) all.push({ i: idx[k], q: first.q[k], e: e[k] });
-  if (second !== null) for (let k = 0; k < second.index.length; ++k) all.push({ i: second.index[k], q: second.q[k], e: second.energy[k] });
-  all.sort((a, b) => a.i - b.i);
+  return mergeLandscapes(second !== null ? [first, second] : [first]);
+}
+
+/**
+ * Merge landscapes computed at different wall positions of the same chain into one, in node order
+ * (positions present twice keep the first). All parts must have the same senses and all or none
+ * kept walls. Cost O(m log m).
+ */
+export function mergeLandscapes(parts: readonly WallLandscape[]): WallLandscape {
+  const all: { part: WallLandscape; k: number }[] = [];
+  const seen = new Set<number>();
+  for (const part of parts) for (let k = 0; k < part.index.length; ++k) {
+    if (seen.has(part.index[k])) continue;
+    seen.add(part.index[k]);
+    all.push({ part, k });
+  }
+  all.sort((x, y) => x.part.index[x.k] - y.part.index[y.k]);
+  const pick = <T>(f: (x: { part: WallLandscape; k: number }) => T): T[] => all.map(f);
+  const first = parts[0];
   return {
-    index: Int32Array.from(all.map((x) => x.i)),
-    q: Float64Array.from(all.map((x) => x.q)),
-    energy: Float64Array.from(all.map((x) => x.e)),
-    iterations: first.iterations + (second?.iterations ?? 0),
+    index: Int32Array.from(pick((x) => x.part.index[x.k])),
+    q: Float64Array.from(pick((x) => x.part.q[x.k])),
+    energy: Float64Array.from(pick((x) => x.part.energy[x.k])),
+    bySense: first.bySense.map((_, si) => Float64Array.from(pick((x) => x.part.bySense[si][x.k]))),
+    sense: Int8Array.from(pick((x) => x.part.sense[x.k])),
+    walls: parts.every((p) => p.walls !== null) ? pick((x) => x.part.walls![x.k]) : null,
+    iterations: parts.reduce((acc, p) => acc + p.iterations, 0),
   };
 }

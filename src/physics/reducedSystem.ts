@@ -13,7 +13,8 @@ export function reducedSystem(material: Pick<Material, "order" | "intrinsic" | "
   const q = new Float64Array(9);
   q[0] = material.order === "ferro" ? -1 : 1;
   const intr = material.intrinsic;
-  if (intr !== null && material.anisotropy !== null && material.anisotropy > 0) {
+  // a lab-fixed axis varies along the wire in local components: a per-node term of the chain
+  if (intr !== null && intr.axis !== "lab" && material.anisotropy !== null && material.anisotropy > 0) {
     const a = AXIS_INDEX[intr.axis];
     q[4 * a] -= intr.constant / material.anisotropy;
   }

@@ -31,25 +31,47 @@ export function wireChain(p: WireColumns, l: number, system: ReducedSystem, fixe
   return makeChain(kr, tr, h, system.q, p.closed ? "periodic" : "open", fixed);
 }
 
+/** A named start texture (local components, 3 per node). */
+export interface NamedStart {
+  readonly name: string;
+  readonly local: Float64Array;
+}
+
+/** One relaxed texture of the wire. */
+export interface RelaxedTexture {
+  /** Name of the start it was relaxed from (the caller's name, or homogeneous / uniform-T / uniform-B / uniform-N). */
+  readonly name: string;
+  readonly local: Float64Array;
+  /** Reduced energy (units of K l per cross-section). */
+  readonly energy: number;
+  readonly iterations: number;
+  readonly converged: boolean;
+}
+
 /**
  * Relax the texture along the measured kappa(s), tau(s): minimise the 1D energy
  * E = integral (|u'|^2 + u^T Q u) ds of ../shared/PHYSICS.md sections 1-2 on the chain of
  * `wireChain` by L-BFGS (./relaxChain.ts), from several starts: the local homogeneous state of
- * each sample (sign kept continuous along the chain), the uniform local state T (FM) or B (AFM),
- * and N (AFM). Returns the lowest, with local components (3 per node) and the reduced energy
- * (units of K l per cross-section). Several starts because a single start can stick in a
- * metastable winding texture (PHYSICS.md section 3). Each start runs at most 500 iterations; the
- * lowest is then relaxed to convergence. Cost: a few hundred to a few thousand O(n) iterations.
- * @example relaxWire(chain, system).energy // -L for a straight FM wire of length L (in l)
+ * each sample (sign kept continuous along the chain), the uniform local state T (FM) or B and N
+ * (AFM), and the caller's `extraStarts` (lab-uniform textures, periodic textures of stretches).
+ * Several starts because a single start can stick in a metastable texture (PHYSICS.md section 3:
+ * on a closed FM ring the vortex and the onion are both local minima). Every start gets a capped
+ * run (500 iterations); starts that end at the same energy (1e-7 relative) are merged (the first
+ * name is kept); the lowest is relaxed to convergence and the others are polished (at most 1500
+ * more iterations; `converged` says whether they got there) and returned in `alternatives`, lowest first: the metastable textures with their
+ * energies. Reduced energies (units of K l per cross-section). Cost: a few hundred to a few
+ * thousand O(n) iterations per start.
+ * @example relaxWire(chain, system, k, t).energy // -L for a straight FM wire of length L (in l)
  */
 export function relaxWire(
   chain: Chain,
   system: ReducedSystem,
   kappaReduced: ArrayLike<number>,
   tauReduced: ArrayLike<number>,
-): { local: Float64Array; energy: number; iterations: number; converged: boolean } {
+  extraStarts: readonly NamedStart[] = [],
+): RelaxedTexture & { readonly alternatives: readonly RelaxedTexture[] } {
   const n = chain.n;
-  const startSet: Float64Array[] = [];
+  const startSet: NamedStart[] = [];
   // start 1: local homogeneous state, sign continuous along the bonds
   const hom = new Float64Array(3 * n);
   for (let i = 0; i < n; ++i) {
@@ -64,7 +86,7 @@ export function relaxWire(
     }
     for (let c = 0; c < 3; ++c) hom[3 * i + c] = sgn * u[c];
   }
-  startSet.push(hom);
+  startSet.push({ name: "homogeneous", local: hom });
   const uniform = (a: number, b: number, c: number): Float64Array => {
     const v = new Float64Array(3 * n);
     for (let i = 0; i < n; ++i) {
@@ -74,21 +96,38 @@ export function relaxWire(
     }
     return v;
   };
-  if (system.order === "ferro") startSet.push(uniform(1, 0, 0.01));
-  else startSet.push(uniform(0.01, 0, 1), uniform(0.01, 1, 0.01));
-  // every start gets a capped run; only the lowest is then relaxed to convergence
-  const gtol = 1e-9 * Math.max(1e-3, minH(chain));
-  let best = { local: startSet[0], energy: Infinity, iterations: 0, converged: false };
-  for (const v of startSet) {
-    const r = relaxChain(chain, v, { gradientTolerance: gtol, maxIterations: 500 });
-    if (r.energy < best.energy) best = { local: v, energy: r.energy, iterations: r.iterations, converged: r.converged };
+  if (system.order === "ferro") startSet.push({ name: "uniform-T", local: uniform(1, 0, 0.01) });
+  else startSet.push({ name: "uniform-B", local: uniform(0.01, 0, 1) }, { name: "uniform-N", local: uniform(0.01, 1, 0.01) });
+  for (const x of extraStarts) {
+    if (x.local.length !== 3 * n) throw new RangeError(`relaxWire: start ${x.name} has ${x.local.length / 3} nodes, expected ${n}`);
+    startSet.push({ name: x.name, local: Float64Array.from(x.local) });
   }
-  // polish the lowest; on long chains the gradient target can sit below the round-off of the
-  // energy sum, so a polish round that no longer moves the energy (1e-11 relative) also counts
-  for (let round = 0; round < 4 && !best.converged; ++round) {
-    const r = relaxChain(chain, best.local, { gradientTolerance: gtol, maxIterations: 20000 });
+  // every start gets a capped run; only distinct results are polished
+  const gtol = 1e-9 * Math.max(1e-3, minH(chain));
+  const runs: RelaxedTexture[] = [];
+  for (const st of startSet) {
+    const r = relaxChain(chain, st.local, { gradientTolerance: gtol, maxIterations: 500 });
+    const same = runs.find((x) => Math.abs(x.energy - r.energy) <= 1e-7 * Math.max(1, Math.abs(r.energy)));
+    if (same !== undefined) continue;
+    runs.push({ name: st.name, local: st.local, energy: r.energy, iterations: r.iterations, converged: r.converged });
+  }
+  runs.sort((a, b) => a.energy - b.energy);
+  const polished = runs.map((run, k) => polish(chain, run, gtol, k === 0 ? 4 : 1, k === 0 ? 20000 : 1500));
+  // polishing can merge states or reorder them
+  polished.sort((a, b) => a.energy - b.energy);
+  const distinct: RelaxedTexture[] = [];
+  for (const p of polished) if (!distinct.some((x) => Math.abs(x.energy - p.energy) <= 1e-7 * Math.max(1, Math.abs(p.energy)))) distinct.push(p);
+  return { ...distinct[0], alternatives: distinct.slice(1) };
+}
+
+/** Relax a capped run further; a round that no longer moves the energy (1e-11 relative) also counts
+ *  as converged (on long chains the gradient target can sit below the round-off of the energy sum). */
+function polish(chain: Chain, run: RelaxedTexture, gtol: number, rounds: number, maxIterations: number): RelaxedTexture {
+  let best = run;
+  for (let round = 0; round < rounds && !best.converged; ++round) {
+    const r = relaxChain(chain, best.local, { gradientTolerance: gtol, maxIterations });
     const still = Math.abs(r.energy - best.energy) <= 1e-11 * Math.max(1, Math.abs(r.energy));
-    best = { local: best.local, energy: r.energy, iterations: best.iterations + r.iterations, converged: r.converged || still };
+    best = { ...best, energy: r.energy, iterations: best.iterations + r.iterations, converged: r.converged || still };
   }
   return { ...best, energy: chainEnergy(chain, best.local, null) };
 }

@@ -15,7 +15,16 @@ export type LocalAxis = "tangent" | "normal" | "binormal";
 export interface IntrinsicAnisotropy {
   /** J/m^3; positive for an easy axis, negative for a hard axis. */
   readonly constant: number;
-  readonly axis: LocalAxis;
+  /** An axis of the local frame, or "lab": the fixed lab direction `direction`. */
+  readonly axis: LocalAxis | "lab";
+  /** Unit vector in lab coordinates when axis is "lab". */
+  readonly direction?: readonly [number, number, number];
+}
+
+/** A uniform applied field (FM): magnitude H in A/m along a lab direction (unit vector). */
+export interface AppliedField {
+  readonly field: number;
+  readonly direction: readonly [number, number, number];
 }
 
 /** A validated material. Unknown quantities are null (never invented). */
@@ -38,6 +47,12 @@ export interface Material {
   readonly temperature: number;
   /** Magnon speed c (m/s) to turn reduced frequencies into rad/s; null when not given. */
   readonly magnonSpeed: number | null;
+  /** Saturation magnetisation Ms (A/m), FM; null when not given. */
+  readonly saturationMagnetisation: number | null;
+  /** true when K was not given and is the shape anisotropy of a thin round wire, mu0 Ms^2 / 4. */
+  readonly anisotropyFromShape: boolean;
+  /** Applied field of the experiment (FM, needs Ms), null when none. */
+  readonly appliedField: AppliedField | null;
 }
 
 /**
@@ -91,7 +106,19 @@ export interface MagnonGaps {
   readonly unstable: boolean;
 }
 
-export type GroundState = "homogeneous" | "periodic";
+/**
+ * Ground-state label of a stretch: homogeneous or periodic (open wires, AFM rings); on a closed FM
+ * wire the whole ring decides: vortex (m along T all round) or onion (two head-to-head walls).
+ */
+export type GroundState = "homogeneous" | "periodic" | "vortex" | "onion";
+
+/**
+ * What a relaxed texture is: homogeneous (relaxed from the local homogeneous state), periodic (from
+ * the periodic texture of the stretches labelled periodic), lab-uniform (from a direction fixed in
+ * the lab), local-uniform (from a fixed local axis); on a closed FM wire vortex, onion (2 walls) or
+ * multidomain (4 or more walls), counted from the sign changes of m . T.
+ */
+export type TextureState = "homogeneous" | "periodic" | "lab-uniform" | "local-uniform" | "vortex" | "onion" | "multidomain";
 export type Stability = "stable" | "metastable" | "unstable";
 
 /** Per-stretch result in model.json. Lengths in m, kappa and tau in 1/m. */
@@ -123,8 +150,13 @@ export interface StretchModel {
   readonly uncertain: boolean;
   /** Homogeneous energy density (reduced, units of K) and, when K is known, in J/m^3. */
   readonly energyReduced: number;
-  /** Best periodic energy density found (reduced) and its period (m); null when not searched. */
+  /** Best periodic energy density found (reduced); null when not searched. */
   readonly periodicEnergyReduced: number | null;
+  /**
+   * Full period of the periodic texture (m): twice the half-period over which the energy repeats
+   * (the vector reverses after a half-period). Only where the periodic state wins or is within the
+   * bands of winning; null otherwise.
+   */
   readonly period: number | null;
   /** Geometric DMI magnitude 2 A sqrt(kappa^2 + tau^2) (J/m^2), null when A is unknown. */
   readonly dmi: number | null;
@@ -139,16 +171,32 @@ export interface StretchModel {
   readonly flags: readonly string[];
 }
 
-/** A pinning site of a domain wall (reduced and SI). */
+/** A pinning site (a local minimum of the wall energy) or a barrier (a local maximum: a wall pushed away), reduced and SI. */
 export interface PinningSite {
+  readonly kind: "site" | "barrier";
   /** Position along the wire (m). */
   readonly s: number;
-  /** Depth: barrier to the lower of the neighbouring maxima, J (null when K*l*area is unknown). */
+  /** Site: depth = barrier to the lower of the neighbouring maxima; barrier: height above the higher
+   *  neighbouring minimum. J (null when K*l*area is unknown). */
   readonly depthJ: number | null;
   /** Depth in units of k_B T at the material temperature. */
   readonly depthKT: number | null;
   /** Depth in reduced units (K l area). */
   readonly depthReduced: number;
+  /** 95% interval of the depth from the bootstrap replicates of kappa(s), tau(s) (reduced, J, k_B T); null without replicates. */
+  readonly depthReducedLo: number | null;
+  readonly depthReducedHi: number | null;
+  readonly depthKTLo: number | null;
+  readonly depthKTHi: number | null;
+  /** false when the interval includes 0 or the depth is below 1 k_B T (thermally irrelevant). */
+  readonly relevant: boolean;
+  /** Why the site is not relevant, or null. */
+  readonly note: string | null;
+  /** Failing validity checks of the model within l/2 of the site (see VALIDITY_TEXT). */
+  readonly flags: readonly string[];
+  /** FM sites with Ms and K known: the field along the wire that pushes the wall out of the site
+   *  over each side, H = max |dU/dq| / (2 mu0 Ms S) (A/m), the smaller of the two, and mu0 H (T). */
+  readonly depinning: { readonly towardPlus: number; readonly towardMinus: number; readonly field: number; readonly fieldTesla: number } | null;
 }
 
 /** Wall-pinning landscape U(q) along the wire. */
@@ -163,8 +211,22 @@ export interface PinningLandscape {
   readonly method: string;
 }
 
-/** The relaxed texture along the wire. */
+/** A relaxed texture other than the lowest: a metastable state of the whole wire. */
+export interface TextureAlternative {
+  readonly state: TextureState;
+  readonly energyReduced: number;
+  readonly energyJ: number | null;
+  /** energyReduced minus the ground texture's energy (reduced, >= 0). */
+  readonly aboveGroundReduced: number;
+  readonly converged: boolean;
+}
+
+/** The relaxed texture along the wire: the lowest of several relaxations. */
 export interface Texture {
+  /** What the exported (lowest) texture is. */
+  readonly state: TextureState;
+  /** The other distinct textures found (metastable), lowest first. */
+  readonly alternatives: readonly TextureAlternative[];
   /** Unit vectors in local (T, N, B) components, interleaved 3 per sample. */
   readonly local: Float64Array;
   /** The same in lab components, interleaved. */
@@ -201,16 +263,46 @@ export interface GapProfile {
   readonly valid: Uint8Array;
 }
 
+/** Ring state of a closed wire (reduced units unless stated). */
+export interface RingModel {
+  readonly order: MagneticOrder;
+  /** FM: vortex | onion | multidomain from the relaxed texture; AFM: binormal (n = +-B all round) or the texture state. */
+  readonly state: TextureState | "binormal";
+  /** 2 pi l / L: the curvature of the circle of the same length. */
+  readonly kappaCircleReduced: number;
+  /** Mean and relative spread (standard deviation / mean) of kappa l along the wire. */
+  readonly kappaMeanReduced: number;
+  readonly kappaSpread: number;
+  /** Spread below 5%: closed forms of a circle apply. */
+  readonly nearCircular: boolean;
+  /** FM: closed-form energies per unit length of the circle of the same length (units of K), and
+   *  the closed-form label (vortex below kappa l = 0.65690, onion above); null for an AFM. */
+  readonly closedForm: { readonly vortex: number; readonly onion: number; readonly state: "vortex" | "onion" } | null;
+  /** AFM: magnon levels of the circle of the same length (null for an FM or far from a circle). */
+  readonly levels: readonly { readonly j: number; readonly lower: number; readonly upper: number }[] | null;
+  /** Why the circle's closed forms are only indicative here, or null. */
+  readonly caution: string | null;
+}
+
 /** Everything the CLI writes into model.json (lengths in m). */
 export interface WireModel {
   readonly unit: "m";
   readonly material: Material;
   readonly segments: readonly StretchModel[];
+  /** Pinning sites that matter (interval above 0, at least 1 k_B T), deepest first. */
   readonly pinning: readonly PinningSite[];
+  /** Thermally irrelevant sites (interval includes 0 or below 1 k_B T), deepest first. */
+  readonly pinningMinor: readonly PinningSite[];
+  /** Barriers (local maxima of the wall energy), highest first, with their relevance. */
+  readonly barriers: readonly PinningSite[];
+  /** Per-sample validity mask (bits of VALIDITY_BITS in ./sampleValidity.ts). */
+  readonly validity: Uint8Array;
   readonly landscape: PinningLandscape | null;
   readonly texture: Texture;
   readonly interactions: SampleInteractions;
   readonly gapProfile: GapProfile | null;
   readonly ringLevels: { readonly j: number; readonly lower: number; readonly upper: number }[] | null;
+  /** Closed wires: the ring state (null for an open wire). */
+  readonly ring: RingModel | null;
   readonly warnings: readonly string[];
 }

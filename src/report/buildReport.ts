@@ -312,7 +312,8 @@ ${ring}</section>`;
   const cols = hasModel ? 8 : 5;
   const tableRows = segs.map((g) => {
     const st = g.state === null ? "n/a"
-      : g.state === "homogeneous" ? `homogeneous (${g.homogeneousStability})` : `periodic (homogeneous ${g.homogeneousStability})`;
+      : g.state === "homogeneous" ? `homogeneous (${g.homogeneousStability})`
+      : g.state === "vortex" || g.state === "onion" ? `ring ${g.state} (vortex ${g.homogeneousStability})` : `periodic (homogeneous ${g.homogeneousStability})`;
     const probs = g.probabilities === null ? "" : `<br><span class="small">p(periodic) ${num(g.probabilities.periodic)}${g.uncertain ? ", uncertain" : ""}</span>`;
     const main = `<tr class="stretch"><td class="num">${g.index + 1}</td><td>${escapeHtml(g.kind)}</td><td class="num">${sPos(g.s0)}\u2013${sPos(g.s1)}</td>` +
       `<td class="num">${band(g.kappa, g.kappaLo, g.kappaHi)}</td><td class="num">${band(g.tau, g.tauLo, g.tauHi)}</td>` +

@@ -29,7 +29,20 @@ describe("effective interactions per sample (PHYSICS.md section 2)", () => {
       vals.forEach((v, e) => expect(r.anisotropyConstants[3 * i + e] / mat.anisotropy!).toBeCloseTo(v, 12));
     }
   });
-  it("AFM: hard axis near T, easy axis near the Darboux direction (biaxial)", () => {
+  it.each([[1, 0.5, 14.8724], [2, 1, 22.5], [0.25, 2, 80.6001]])("AFM (%s, %s): the easy axis is the homogeneous state, at theta = %s deg from B toward T, not the Darboux direction (PHYSICS.md section 2, corrected)", (k, t, theta) => {
+    // PHYSICS.md sections 2-3 (own derivation): easy axis in the T-B plane at theta from B,
+    // theta = 1/2 atan2(2 kappa tau, 1 + kappa^2 - tau^2); the Darboux direction is atan(tau/kappa) from B
+    const q = anisotropyTensor(new Float64Array(9), plainSystem("antiferro"), k, t);
+    const ref = new EigenvalueDecomposition(new Matrix([[q[0], q[1], q[2]], [q[3], q[4], q[5]], [q[6], q[7], q[8]]]), { assumeSymmetric: true });
+    const vals = [...ref.realEigenvalues];
+    const low = vals.indexOf(Math.min(...vals));
+    const v = [0, 1, 2].map((r) => ref.eigenvectorMatrix.get(r, low));
+    const angle = (Math.atan2(Math.abs(v[0]), Math.abs(v[2])) * 180) / Math.PI;
+    expect(Math.abs(angle - theta)).toBeLessThan(1e-3);
+    expect(Math.abs(v[1])).toBeLessThan(1e-12); // in the T-B plane
+    expect(Math.abs(angle - (Math.atan2(t, k) * 180) / Math.PI)).toBeGreaterThan(2); // not the Darboux direction
+  });
+  it("AFM: hard axis near T, easy axis in the T-B plane (biaxial)", () => {
     const i = 50;
     const axis = (e: number) => [0, 1, 2].map((c) => r.anisotropyAxesLab[9 * i + 3 * e + c]);
     const dot = (a: number[], b: ArrayLike<number>, o: number) => Math.abs(a[0] * b[o] + a[1] * b[o + 1] + a[2] * b[o + 2]);

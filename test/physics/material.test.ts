@@ -40,14 +40,14 @@ describe("parseMaterial", () => {
   it("rejects a bad order, unknown properties, missing lengths and an over-determined material", () => {
     expect(msg({ order: "fm", magneticLength: 5e-9 })).toBe('mat.json: material.order: must be one of "ferro", "antiferro" (got "fm")');
     expect(msg({ order: "ferro", magneticLength: 5e-9, extra: 1 })).toBe("mat.json: material: unknown property 'extra'");
-    expect(msg({ order: "ferro" })).toBe("mat.json: material: give exchange (J/m) and anisotropy (J/m^3), or magneticLength (m)");
+    expect(msg({ order: "ferro" })).toBe("mat.json: material: give exchange (J/m) and anisotropy (J/m^3), or magneticLength (m), or (FM) exchange and saturationMagnetisation (A/m)");
     expect(msg({ magneticLength: 5e-9 })).toBe("mat.json: material.order: missing required property");
     expect(msg({ order: "ferro", magneticLength: 5e-9, exchange: 1e-11, anisotropy: 1e5 })).toMatch(/give at most two of exchange, anisotropy and magneticLength/);
     expect(msg([1])).toBe("mat.json: material: must be a JSON object (got an array)");
     expect(msg(null)).toBe("mat.json: material: must be a JSON object (got null)");
   });
   it("checks the intrinsic term and needs K to scale it", () => {
-    expect(msg({ order: "ferro", magneticLength: 5e-9, intrinsic: { constant: 1e4, axis: "up" } })).toBe('mat.json: material.intrinsic.axis: must be one of "tangent", "normal", "binormal" (got "up")');
+    expect(msg({ order: "ferro", magneticLength: 5e-9, intrinsic: { constant: 1e4, axis: "up" } })).toBe('mat.json: material.intrinsic.axis: must be one of "tangent", "normal", "binormal", "lab" (got "up")');
     expect(msg({ order: "ferro", magneticLength: 5e-9, intrinsic: { constant: 1e4, axis: "normal" } })).toMatch(/material\.intrinsic: needs the anisotropy K/);
     const m = parseMaterial({ order: "antiferro", exchange: 1e-12, anisotropy: 1e5, intrinsic: { constant: 2e4, axis: "binormal" } }, "m.json");
     // reduced tensor: +T T^T - (K_i/K) B B^T
