@@ -87,5 +87,5 @@ describe("twistline demo, end to end", () => {
     expect(finalLines[0]).toMatch(/^twistline: demo: 4 wires in [\d.]+ s; open .*coil.report\.html/);
     expect((await run(["demo", "--out", dir])).code).toBe(1);
     expect((await run(["demo", "--out", dir, "--force", "--quiet"])).code).toBe(0);
-  });
+  }, 240_000); // four wires with the full physics stage: ~32 s alone on this machine, longer when CI shares it
 });

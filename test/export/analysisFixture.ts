@@ -13,7 +13,7 @@ import { makeProfile } from "../support/profiles.js";
 /** Invented soft ferromagnet: A = 1.3e-11 J/m, K = 2e5 J/m^3 (l = 8.06 nm), 4 nm thick. */
 export const MATERIAL_JSON = { order: "ferro", exchange: 1.3e-11, anisotropy: 2e5, thickness: 4e-9 } as const;
 
-export function analysisFixture(options: { material?: boolean; pinning?: boolean; file?: string } = {}): Analysis {
+export function analysisFixture(options: { material?: boolean; pinning?: boolean; file?: string; temperature?: number } = {}): Analysis {
   const l = 8.06e-9;
   const profile = {
     ...makeProfile({
@@ -27,7 +27,7 @@ export function analysisFixture(options: { material?: boolean; pinning?: boolean
     dims: 3, source: profile.source, diagnostics: [],
   };
   const segments = segment(profile);
-  const material = options.material === false ? null : parseMaterial({ ...MATERIAL_JSON }, "material.json");
+  const material = options.material === false ? null : parseMaterial({ ...MATERIAL_JSON, ...(options.temperature !== undefined ? { temperature: options.temperature } : {}) }, "material.json");
   const model = material === null ? null : buildWireModel(profile, segments, material, options.pinning === false ? { pinning: false } : {});
   return { trace, profile, segments, material, model, seed: 1, timings: { profile: 0, segment: 0, model: 0 } };
 }
