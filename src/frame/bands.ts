@@ -191,7 +191,9 @@ export function fitBands(
   }
 
   const rowOf = (i: number) => (trace.rows ? trace.rows[i] : i + 1);
-  const inputRow = Int32Array.from(samples.traceIndex, (i) => (i < 0 ? -1 : rowOf(i)));
+  const inputRow = new Int32Array(m);
+  const rows = trace.rows;
+  for (let j = 0; j < m; ++j) { const i = samples.traceIndex[j]; inputRow[j] = i < 0 ? -1 : rows ? rows[i] : i + 1; }
   const downweighted: number[] = [];
   for (let i = 0; i < fit.w.length; ++i) if (fit.w[i] < 0.5) downweighted.push(start.kept[i]);
   if (downweighted.length > 0) diagnostics.push(`robust fit: ${downweighted.length} point(s) downweighted as outliers (first at ${trace.rows ? "row" : "point"} ${rowOf(downweighted[0])})`);

@@ -241,7 +241,9 @@ function sampleAt(trace: Trace, start: Start, fit: PassesResult, set: Settings):
   // Foot points of an ordered trace are nearly always in order already: sort only when they are not.
   let sorted = true;
   for (let i = 1; i < m && sorted; ++i) sorted = u[i] >= u[i - 1];
-  const order = sorted ? Uint32Array.from({ length: m }, (_, i) => i) : Uint32Array.from({ length: m }, (_, i) => i).sort((a, b) => u[a] - u[b] || a - b);
+  const order = new Uint32Array(m);
+  for (let i = 0; i < m; ++i) order[i] = i;
+  if (!sorted) order.sort((a, b) => u[a] - u[b] || a - b);
   const su = new Float64Array(m), s = new Float64Array(m), traceIndex = new Int32Array(m);
   for (let j = 0; j < m; ++j) { su[j] = u[order[j]]; traceIndex[j] = start.kept[order[j]]; }
   const s0 = arcAt(table, su[0], closed);

@@ -140,16 +140,16 @@ export function grossOutliers(y: Float64Array, closed: boolean): Uint8Array {
     d[i] = Math.hypot(y[3 * i] - px, y[3 * i + 1] - py, y[3 * i + 2] - pz);
   }
   const medStep = medianOf(stepLengths(y));
-  const scale = Math.max(medianOf(d), OUTLIER_SCALE_FLOOR * medStep);
+  const scale = Math.max(medianInPlace(d.slice()), OUTLIER_SCALE_FLOOR * medStep);
   if (!(scale > 0)) return keep;
   // Second opinion, from the path itself: the detour a point forces, |p_a p_i| + |p_i p_b| - |p_a p_b|
   // with a, b its neighbours (the smaller over +-1 and +-2); an end point's distance off the line
   // through its two neighbours. A point on the way (the start of a long straight segment, the far
-  // end of one) forces no detour and is kept even where its neighbourhood median is far.
+  // end of one) forces no detour and is kept even where its neighbourhood median is far. Its scale
+  // comes from at most 20000 points spread along the trace; only candidates are judged.
   const dist = (a: number, b: number) => Math.hypot(y[3 * a] - y[3 * b], y[3 * a + 1] - y[3 * b + 1], y[3 * a + 2] - y[3 * b + 2]);
   const idx = (j: number) => (closed ? (j + n) % n : j);
-  const detour = new Float64Array(n);
-  for (let i = 0; i < n; ++i) {
+  const detour = (i: number): number => {
     let best = Infinity;
     for (let k = 1; k <= 2; ++k) {
       const a = idx(i - k), b = idx(i + k);
@@ -157,19 +157,20 @@ export function grossOutliers(y: Float64Array, closed: boolean): Uint8Array {
       const v = dist(a, i) + dist(i, b) - dist(a, b);
       if (v < best) best = v;
     }
-    if (best === Infinity) {
-      const a = i === 0 ? 1 : n - 2, b = i === 0 ? 2 : n - 3;
-      const ux = y[3 * a] - y[3 * b], uy = y[3 * a + 1] - y[3 * b + 1], uz = y[3 * a + 2] - y[3 * b + 2];
-      const ul = Math.hypot(ux, uy, uz) || 1;
-      const vx = y[3 * i] - y[3 * a], vy = y[3 * i + 1] - y[3 * a + 1], vz = y[3 * i + 2] - y[3 * a + 2];
-      const perp = Math.hypot(vy * uz - vz * uy, vz * ux - vx * uz, vx * uy - vy * ux) / ul;
-      // Along the line (within 0.5 rad) the end point continues the wire, however far it is.
-      best = perp > Math.sin(0.5) * Math.hypot(vx, vy, vz) ? perp : 0;
-    }
-    detour[i] = best;
-  }
-  const detourScale = Math.max(medianOf(detour), OUTLIER_SCALE_FLOOR * medStep);
-  for (let i = 0; i < n; ++i) if (d[i] > OUTLIER_CUT * scale && detour[i] > OUTLIER_CUT * detourScale) keep[i] = 0;
+    if (best !== Infinity) return best;
+    const a = i === 0 ? 1 : n - 2, b = i === 0 ? 2 : n - 3;
+    const ux = y[3 * a] - y[3 * b], uy = y[3 * a + 1] - y[3 * b + 1], uz = y[3 * a + 2] - y[3 * b + 2];
+    const ul = Math.hypot(ux, uy, uz) || 1;
+    const vx = y[3 * i] - y[3 * a], vy = y[3 * i + 1] - y[3 * a + 1], vz = y[3 * i + 2] - y[3 * a + 2];
+    const perp = Math.hypot(vy * uz - vz * uy, vz * ux - vx * uz, vx * uy - vy * ux) / ul;
+    // Along the line (within 0.5 rad) the end point continues the wire, however far it is.
+    return perp > Math.sin(0.5) * Math.hypot(vx, vy, vz) ? perp : 0;
+  };
+  const stride = Math.max(1, Math.ceil(n / 20_000));
+  const sample = new Float64Array(Math.ceil(n / stride));
+  for (let i = 0, c = 0; i < n; i += stride) sample[c++] = detour(i);
+  const detourScale = Math.max(medianInPlace(sample), OUTLIER_SCALE_FLOOR * medStep);
+  for (let i = 0; i < n; ++i) if (d[i] > OUTLIER_CUT * scale && detour(i) > OUTLIER_CUT * detourScale) keep[i] = 0;
   return keep;
 }
 
