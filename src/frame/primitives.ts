@@ -473,10 +473,12 @@ function summarise(kind: "circle" | "helix", nm: Normalised, fit: LmResult, free
  * Goodness of fit against a known noise level sigma (per coordinate, m): chi^2 = SSR / sigma^2 on
  * 2n - p degrees of freedom, upper tail by the Wilson-Hilferty cube-root approximation (Wilson &
  * Hilferty, PNAS 17, 684 (1931); from memory). Rejected when the tail probability is below `alpha`
- * (default 0.001) AND the RMS residual exceeds `practical` (default 1.5) times sigma, so that a
- * significant but tiny misfit on a long, dense stretch keeps its label. sigma NaN or <= 0: untested.
+ * (default 0.001) AND the RMS residual exceeds `practical` (default 1.5) times sigma AND
+ * `relative` (default 0.05) of the radius (a line: of its half-length), so that a significant but
+ * small misfit (a slightly elliptic ring, a coil's smooth pitch change) keeps its label: the model
+ * is first order in the curvature, and 5% is within its validity. sigma NaN or <= 0: untested.
  */
-export function checkFit(fit: PrimitiveFit, sigma: number, options: { alpha?: number; practical?: number } = {}): FitCheck {
+export function checkFit(fit: PrimitiveFit, sigma: number, options: { alpha?: number; practical?: number; relative?: number } = {}): FitCheck {
   const dof = fit.dof;
   if (!(sigma > 0) || !Number.isFinite(sigma) || dof < 1) {
     return { verdict: "untested", chi2: NaN, dof, ratio: NaN, reason: "noise level unknown: the shape is not tested" };
@@ -487,7 +489,11 @@ export function checkFit(fit: PrimitiveFit, sigma: number, options: { alpha?: nu
   const z = (Math.cbrt(chi2 / dof) - (1 - w)) / Math.sqrt(w);
   const alpha = options.alpha ?? 0.001, practical = options.practical ?? 1.5;
   const zCrit = normalUpperQuantile(alpha);
-  if (z > zCrit && ratio > practical) {
+  // practical size of the misfit relative to the shape: the radius, or a line's extent
+  let extent = fit.radius.value;
+  if (fit.kind === "line") { extent = 0; for (let i = 0; i < fit.t.length; ++i) extent = Math.max(extent, Math.abs(fit.t[i])); }
+  const relative = options.relative ?? 0.05;
+  if (z > zCrit && ratio > practical && fit.rms > relative * extent) {
     return { verdict: "rejected", chi2, dof, ratio, reason: `${fit.kind} misfit: residual RMS ${ratio.toFixed(2)} x the noise (chi-square ${chi2.toFixed(1)} on ${dof} degrees of freedom)` };
   }
   return { verdict: "confirmed", chi2, dof, ratio, reason: `${fit.kind} fits to the noise: residual RMS ${ratio.toFixed(2)} x the noise` };
