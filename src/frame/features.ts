@@ -26,11 +26,12 @@ export interface CurvaturePeak {
  * resolution lengths (the baseline: a peak narrower than half the window does not move it) by more
  * than `sigmas` noise SDs; kept when the half-height width is under 2.5 resolution lengths and
  * under half the wire. The support extends to where the excess falls below 10% of the peak height
- * (or 2 noise SDs). Common practice (peak finding above a robust baseline); thresholds chosen here.
+ * (or 2 noise SDs) while it keeps falling, and the peak must turn the wire by at least `minAngle`
+ * (default 5 degrees: the side lobes of a smoothed sharp bend turn it by 1-2). Common practice (peak finding above a robust baseline); thresholds chosen here.
  * `bounds` is unused by the search (kept for the caller's stretch bookkeeping).
  * @example curvaturePeaks(s, kappa, [0, n], sdKappa, resolution, 6)
  */
-export function curvaturePeaks(s: Float64Array, kappa: Float64Array, _bounds: readonly number[], sigmaK: number, resolution: number, sigmas: number): CurvaturePeak[] {
+export function curvaturePeaks(s: Float64Array, kappa: Float64Array, _bounds: readonly number[], sigmaK: number, resolution: number, sigmas: number, minAngle = (5 * Math.PI) / 180): CurvaturePeak[] {
   const out: CurvaturePeak[] = [];
   const n = kappa.length;
   if (n < 5) return out;
@@ -54,11 +55,14 @@ export function curvaturePeaks(s: Float64Array, kappa: Float64Array, _bounds: re
     while (h1 < n && ex(h1) > h / 2) ++h1;
     const cut = Math.max(0.1 * h, 2 * sigmaK);
     let i0 = h0, i1 = h1;
-    while (i0 > 0 && ex(i0 - 1) > cut) --i0;
-    while (i1 < n && ex(i1) > cut) ++i1;
+    // (descending only: the support stops at a local minimum, so a side lobe never swallows a peak)
+    while (i0 > 0 && ex(i0 - 1) > cut && ex(i0 - 1) <= ex(i0)) --i0;
+    while (i1 < n && ex(i1) > cut && ex(i1) <= ex(i1 - 1)) ++i1;
     const width = s[h1 - 1] - s[h0];
-    if (width < 2.5 * resolution && width < 0.5 * (s[n - 1] - s[0])) out.push({ i0, i1, ipeak: ip, h0, h1, excess: h, base: base[ip] });
-    i = Math.max(j, i1);
+    let turning = 0;
+    for (let q = i0; q + 1 < i1; ++q) turning += 0.5 * (ex(q) + ex(q + 1)) * (s[q + 1] - s[q]);
+    if (width < 2.5 * resolution && width < 0.5 * (s[n - 1] - s[0]) && turning >= minAngle) out.push({ i0, i1, ipeak: ip, h0, h1, excess: h, base: base[ip] });
+    i = j;
   }
   return out;
 }

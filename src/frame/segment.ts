@@ -18,8 +18,10 @@ export interface SegmentOptions {
    * then refitted by its primitive (line, circle, helix) on them, and local bends get a circle fit.
    */
   readonly points?: Float64Array;
-  /** Height of a curvature peak above its stretch, in noise SDs of kappa, that makes a bend (default 6). */
+  /** Height of a curvature peak above its surroundings, in noise SDs of kappa, that makes a bend (default 6). */
   readonly bendSigmas?: number;
+  /** Smallest turning angle of a bend (rad, default 5 degrees). */
+  readonly bendMinAngle?: number;
   /** Noise SD per coordinate of the points (m) for the shape test (default: the profile's sigma). */
   readonly pointNoise?: number;
 }
@@ -91,9 +93,10 @@ export function samplePoints(trace: Trace, profile: Profile): Float64Array | nul
  * Closed wires: the cut partition pays one more change point (the seam); the whole wire as one
  * stretch competes with it, so a near-constant ring is one stretch (`wholeRing`), not two cut at
  * the start point.
- * Bends: a curvature peak above `bendSigmas` noise SDs over its stretch's median, whose half-height
- * width is under half the stretch and under 5 resolution lengths, becomes a stretch of its own (so
- * it is never inside "straight") and a named feature (`findFeatures`).
+ * Bends: a curvature peak above `bendSigmas` noise SDs over a running median (`curvaturePeaks`),
+ * narrower than 2.5 resolution lengths at half height and turning by at least `bendMinAngle`, becomes
+ * a stretch of its own (its half-height region, so it is never inside "straight") and a named
+ * feature (`findFeatures`). Not within one resolution length of an open end.
  * Labels (from the noise SDs, so independent of the bootstrap): "straight" when most samples have
  * undefined torsion or the 95% band of the mean kappa reaches 0; "irregular" when the reduced
  * chi-square exceeds irregularChi2 and the RMS variation of (kappa, tau) exceeds irregularRelative of
@@ -207,9 +210,31 @@ export function segmentWire(profile: Profile, options: SegmentOptions = {}): { s
   }
   // local bends become stretches of their own
   // (not within one resolution length of an open end, where the fit's curvature is biased)
-  const peaks = curvaturePeaks(s, kv, bounds, sigmaK, res, options.bendSigmas ?? 6).filter((p) => !(flags[p.ipeak] & FLAG_END));
-  if (peaks.length > 0) bounds = splitAtPeaks(bounds, peaks, minSamples);
-  const isPeak = new Set(peaks.map((p) => p.i0));
+  const peaks = curvaturePeaks(s, kv, bounds, sigmaK, res, options.bendSigmas ?? 6, options.bendMinAngle ?? (5 * Math.PI) / 180).filter((p) => !(flags[p.ipeak] & FLAG_END));
+  if (peaks.length > 0) {
+    bounds = splitAtPeaks(bounds, peaks, minSamples);
+    const peakAt = (k: number) => peaks.some((p) => bounds[k] <= p.ipeak && p.ipeak < bounds[k + 1]);
+    // a flank left between a bend and a change point (shorter than 2 minLen: the smoothed bend's
+    // shoulders reach about one resolution length out) joins its other neighbour
+    for (let k = 0; k + 1 < bounds.length; ++k) {
+      if (peakAt(k) || s[Math.min(n - 1, bounds[k + 1] - 1)] - s[bounds[k]] + ds >= 2 * minLen) continue;
+      if (k > 0 && peakAt(k - 1) && k + 2 < bounds.length && !peakAt(k + 1)) { bounds.splice(k + 1, 1); --k; }
+      else if (k + 2 < bounds.length && peakAt(k + 1) && k > 0 && !peakAt(k - 1)) { bounds.splice(k, 1); --k; }
+    }
+    // and neighbours that are not bends are joined again by the criterion of the fit
+    for (;;) {
+      let best = -1, bestRise = beta;
+      for (let k = 0; k + 2 < bounds.length; ++k) {
+        if (peakAt(k) || peakAt(k + 1)) continue;
+        const rise = cost(bounds[k], bounds[k + 2]) - cost(bounds[k], bounds[k + 1]) - cost(bounds[k + 1], bounds[k + 2]);
+        if (rise < bestRise) { best = k; bestRise = rise; }
+      }
+      if (best < 0) break;
+      bounds.splice(best + 1, 1);
+    }
+  }
+  const isPeak = new Set<number>();
+  for (let k = 0; k + 1 < bounds.length; ++k) if (peaks.some((p) => bounds[k] <= p.ipeak && p.ipeak < bounds[k + 1])) isPeak.add(bounds[k]);
   const points = options.points !== undefined && options.points.length === 3 * n ? options.points : null;
   const noise = options.pointNoise ?? profile.sigma;
   const out: Segment[] = [];
@@ -286,7 +311,7 @@ function splitAtPeaks(bounds: number[], peaks: readonly CurvaturePeak[], minSamp
     let k = 0;
     while (k + 2 < bounds.length && bounds[k + 1] <= p.ipeak) ++k;
     const a = bounds[k], b = bounds[k + 1];
-    const lo = p.i0 - a < minSamples ? a : p.i0, hi = b - p.i1 < minSamples ? b : p.i1;
+    const lo = p.h0 - a < minSamples ? a : p.h0, hi = b - p.h1 < minSamples ? b : p.h1;
     set.add(lo); set.add(hi);
   }
   return [...set].sort((x, y) => x - y);

@@ -1,0 +1,113 @@
+import { describe, expect, it } from "vitest";
+import { fitProfile } from "../../src/frame/profile.js";
+import { samplePoints, segmentWire } from "../../src/frame/segment.js";
+import { readTraceFile } from "../../src/import/readTrace.js";
+import { toTrace } from "../../src/index.js";
+import type { Trace } from "../../src/types.js";
+import { bendCurve, circleCurve, rigidMotion, sampleCurve } from "../support/curves.js";
+
+const NM = 1e-9;
+
+function analyse(trace: Trace, bootstrap: number) {
+  const p = fitProfile(trace, { bootstrap, keepSamples: bootstrap > 0 });
+  const points = samplePoints(trace, p);
+  expect(points).not.toBeNull();
+  return { p, ...segmentWire(p, { points: points! }) };
+}
+
+describe("segmentWire on the invented demo wires (fixtures/demo, truth in fixtures/demo/make.ts)", () => {
+  for (const name of ["coil", "meander", "ring"]) {
+    it(`${name}: stretches and labels are identical with bootstrap 0 and 200`, async () => {
+      const trace = await readTraceFile(`fixtures/demo/${name}.csv`);
+      const a = analyse(trace, 0), b = analyse(trace, 200);
+      expect(b.segments.map((g) => [g.i0, g.i1, g.kind])).toEqual(a.segments.map((g) => [g.i0, g.i1, g.kind]));
+      expect(b.features.map((f) => [f.kind, f.s])).toEqual(a.features.map((f) => [f.kind, f.s]));
+    });
+  }
+  it("meander: the sharp 90 degree bend of radius 10 nm is its own arc stretch and a named bend at s = 596 nm", async () => {
+    const { p, segments, features } = analyse(await readTraceFile("fixtures/demo/meander.csv"), 0);
+    // invented truth: 200 nm straight, U-turn of radius 60 nm (pi 60 nm long), 200 nm straight, then
+    // the bend (pi/2 10 nm long): its middle at 200 + 60 pi + 200 + 5 pi/2 = 596.4 nm
+    const sTrue = (200 + 60 * Math.PI + 200 + (5 * Math.PI) / 2) * NM;
+    expect(segments.map((g) => g.kind)).toEqual(["straight", "arc", "straight", "arc", "straight"]);
+    const bends = features.filter((f) => f.kind === "bend");
+    expect(bends.length).toBe(1);
+    const [bend] = bends;
+    expect(Math.abs(bend.s - sTrue)).toBeLessThan(p.resolution);
+    expect(Math.abs((bend.turningAngle! * 180) / Math.PI - 90)).toBeLessThan(5); // measured 91 deg
+    expect(Math.abs(bend.radius!.value / (10 * NM) - 1)).toBeLessThan(0.1); // measured 9.64 nm
+    expect(segments[bend.within].kind).toBe("arc");
+    expect(segments[bend.before].kind).toBe("straight");
+    expect(segments[bend.after].kind).toBe("straight");
+    // the U-turn's circle: radius 60 nm inside its interval (measured 60.1 [59.9, 60.2] nm)
+    const u = segments[1].shape!;
+    expect(u.primitive).toBe("circle");
+    expect(u.radius.lo).toBeLessThan(60.3 * NM);
+    expect(u.radius.hi).toBeGreaterThan(59.7 * NM);
+    expect(features[0].kind).toBe("end");
+    expect(features[features.length - 1].kind).toBe("end");
+  });
+  it("ring: the closed, slightly elliptic, warped ring is one whole-ring arc with a warp feature", async () => {
+    const { segments, features } = analyse(await readTraceFile("fixtures/demo/ring.csv"), 200);
+    expect(segments.length).toBe(1);
+    expect(segments[0].kind).toBe("arc");
+    expect(segments[0].wholeRing).toBe(true);
+    // semi-axes 155 and 145 nm: the best circle has a radius near their mean (measured 150.0 nm)
+    expect(Math.abs(segments[0].shape!.radius.value / (150 * NM) - 1)).toBeLessThan(0.02);
+    expect(features.map((f) => f.kind)).toEqual(["warp"]);
+  });
+  it("coil: the coil is helix stretches, right-handed, radius 40 nm and pitch 62.8 nm away from the defect", async () => {
+    const { segments } = analyse(await readTraceFile("fixtures/demo/coil.csv"), 0);
+    expect(segments.every((g) => g.kind === "helix")).toBe(true);
+    const first = segments[0].shape!;
+    // invented truth: R = 40 nm, pitch 2 pi 10 nm = 62.83 nm (measured 40.0 nm and 63.1 nm; the
+    // stretch reaches into the smooth edge of the defect)
+    expect(Math.abs(first.radius.value / (40 * NM) - 1)).toBeLessThan(0.01);
+    expect(Math.abs(first.pitch.value / (2 * Math.PI * 10 * NM) - 1)).toBeLessThan(0.02);
+    expect(first.handedness).toBe(1);
+    expect(segments[0].kappa).toBe(first.kappa.value);
+  });
+});
+
+describe("segmentWire on synthetic wires (closed forms of test/support/curves.ts)", () => {
+  it("a 90 degree bend of radius 10 nm between 300 nm arms, 1% noise, rotated: found within one resolution length, angle within 5 degrees, over 6 seeds", () => {
+    for (let seed = 1; seed <= 6; ++seed) {
+      const c = bendCurve(300, 10);
+      const { xyz } = sampleCurve(c, 300, 0.1, seed);
+      const moved = rigidMotion(xyz, [0.8, 0.1 * seed, -0.3, 0.2], [50, -20, 10]);
+      const trace = toTrace({ xyz: moved, unit: "nm" });
+      const p = fitProfile(trace, { bootstrap: 0 });
+      const { segments, features } = segmentWire(p, { points: samplePoints(trace, p)! });
+      const bends = features.filter((f) => f.kind === "bend" || f.kind === "kink");
+      expect(bends.length).toBe(1);
+      const sTrue = (300 + (5 * Math.PI) / 2) * NM; // arc length to the middle of the bend
+      expect(Math.abs(bends[0].s - sTrue)).toBeLessThan(p.resolution);
+      expect(Math.abs((bends[0].turningAngle! * 180) / Math.PI - 90)).toBeLessThan(5);
+      expect(segments.some((g) => g.kind === "straight" && g.s0 <= bends[0].s && bends[0].s < g.s1)).toBe(false);
+    }
+  });
+  it("a noisy closed circle (R 100 nm, 1% noise) is one whole-ring arc whose radius interval covers 100 nm, over 5 seeds", () => {
+    let covered = 0;
+    for (let seed = 1; seed <= 5; ++seed) {
+      const { xyz } = sampleCurve(circleCurve(100), 240, 1, 40 + seed);
+      const trace = toTrace({ xyz, unit: "nm", closed: true });
+      const p = fitProfile(trace, { bootstrap: 0 });
+      const { segments } = segmentWire(p, { points: samplePoints(trace, p)! });
+      expect(segments.length).toBe(1);
+      expect(segments[0].kind).toBe("arc");
+      expect(segments[0].wholeRing).toBe(true);
+      const r = segments[0].shape!.radius;
+      if (r.lo <= 100 * NM && 100 * NM <= r.hi) covered++;
+    }
+    expect(covered).toBeGreaterThanOrEqual(4);
+  });
+  it("samplePoints returns the input point of each sample, and null for a resampled profile", () => {
+    const { xyz } = sampleCurve(circleCurve(100), 60, 0.5, 3);
+    const trace = toTrace({ xyz, unit: "nm" });
+    const p = fitProfile(trace, { bootstrap: 0 });
+    const pts = samplePoints(trace, p)!;
+    expect(pts.length).toBe(3 * p.n);
+    for (let j = 0; j < p.n; ++j) expect(Math.hypot(pts[3 * j] - p.x[j], pts[3 * j + 1] - p.y[j]) / (100 * NM)).toBeLessThan(0.05);
+    expect(samplePoints(trace, fitProfile(trace, { bootstrap: 0, step: 5 * NM }))).toBeNull();
+  });
+});
