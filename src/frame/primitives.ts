@@ -9,7 +9,8 @@
  * point on the primitive to the point, with the nearest point re-solved at every parameter value
  * (Newton in the curve parameter), so each point carries two residual components (the one along the
  * tangent is zero) and the fit has 2n - p degrees of freedom. The Jacobian is by central
- * differences. Everything is computed in a frame centred on the points and scaled by their RMS
+ * differences. The points must be in order along the wire, less than half a turn apart (the foot
+ * parameters are unwrapped from point to point). Everything is computed in a frame centred on the points and scaled by their RMS
  * spread, so the fits are unit-free and equivariant under rigid motions.
  * Intervals: covariance s^2 (J^T J)^-1 with s^2 = SSR / (2n - p) (the residual noise), derived
  * quantities by the delta method, 95% intervals with Student's t quantile on 2n - p degrees of
@@ -191,8 +192,11 @@ function residuals(p: Float64Array, n: number, base: Base, th: Float64Array, out
     const dx = p[3 * i] - C[0], dy = p[3 * i + 1] - C[1], dz = p[3 * i + 2] - C[2];
     const X = dx * u[0] + dy * u[1] + dz * u[2], Y = dx * v[0] + dy * v[1] + dz * v[2], Z = dx * a[0] + dy * a[1] + dz * a[2];
     const phi = Math.atan2(Y, X);
+    // Branch of the angle: the first point's from its height, every later one continues from the
+    // previous point's (the points are ordered along the wire, less than half a turn apart), so a
+    // tightly wound helix cannot pose as a cylinder by sending each point to another winding.
     let s = phi;
-    if (c !== 0) s = phi + 2 * Math.PI * Math.round((Z / c - phi) / (2 * Math.PI));
+    if (c !== 0) s = phi + 2 * Math.PI * Math.round(((i === 0 ? Z / c : t[i - 1]) - phi) / (2 * Math.PI));
     // Newton on g(s) = R X sin s - R Y cos s - c Z + c^2 s (half the derivative of the squared distance)
     for (let it = 0; it < 30 && c !== 0; ++it) {
       const sn = Math.sin(s), cs = Math.cos(s);

@@ -106,7 +106,8 @@ export function samplePoints(trace: Trace, profile: Profile): Float64Array | nul
  * "irregular" with the reason in `demoted`; a confirmed (or untested) circle or helix gives the
  * stretch its kappa and tau with their intervals.
  * Reported bands without a shape: 2.5/97.5% quantiles of the per-replicate stretch means when the
- * profile keeps its replicates, else the noise-SD band of the mean.
+ * profile keeps its replicates, else the profile's mean half-band over sqrt(n_eff), else (no
+ * bands) the noise-SD band of the mean. The labels use the noise-SD bands only.
  * Degenerate input: n < 2 gives one stretch (or none for n = 0). Cost O(n) typical (PELT), O(n^2)
  * worst case, plus the primitive fits (O(n) per iteration).
  * @example segmentWire(meanderProfile, { points }).features.map((f) => f.kind) // ["end", "bend", "end"]
@@ -268,6 +269,21 @@ export function segmentWire(profile: Profile, options: SegmentOptions = {}): { s
     else if (chi2 > (options.irregularChi2 ?? 4) && relVar > (options.irregularRelative ?? 0.1)) kind = "irregular";
     else if (!Number.isFinite(tm) || profile.planarProjection || (tLo <= 0 && tHi >= 0)) kind = "arc";
     else kind = "helix";
+    // reported bands: the replicates' stretch means when kept, else the profile's mean half-band
+    // over sqrt(n_eff) when it has bands, else (no bootstrap) the noise-SD bands above
+    let hkB = 0, htB = 0, ctB = 0, okB = true;
+    for (let i = i0; i < i1; ++i) {
+      const h = 0.5 * (profile.kappaHi[i] - profile.kappaLo[i]);
+      if (!Number.isFinite(h)) { okB = false; break; }
+      hkB += h;
+      if (defined[i]) { const q = 0.5 * (profile.tauHi[i] - profile.tauLo[i]); if (Number.isFinite(q)) { htB += q; ctB++; } }
+    }
+    if (reps === 0 && okB) {
+      const sq = Math.sqrt(nSeg);
+      hkB /= i1 - i0;
+      kLo = Math.max(0, km - hkB / sq); kHi = km + hkB / sq;
+      if (ctB > 0 && wT > 0) { htB /= ctB; tLo = tm - htB / sq; tHi = tm + htB / sq; }
+    }
     if (reps > 0) {
       const km_r: number[] = [], tm_r: number[] = [];
       for (let r = 0; r < reps; ++r) {
