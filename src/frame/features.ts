@@ -125,7 +125,7 @@ export function findFeatures(profile: Profile, segments: readonly Segment[], pea
     if (kink) f.lowerBound = true;
     if (radius !== undefined) f.radius = radius;
     const deg = (turning * 180) / Math.PI;
-    f.note = `${f.kind} turning ${deg.toFixed(0)} deg, smallest radius of the fit ${fmt(f.minRadius!)}${f.radius !== undefined ? `, circle through its points ${fmt(f.radius.value)}` : ""}${kink ? " (narrower than the resolution: the curvature is a lower bound)" : ""}`;
+    f.note = `${f.kind} turning ${deg.toFixed(0)} deg${f.radius !== undefined ? ", radius from a circle through its points" : ""}${kink ? " (narrower than the resolution: the curvature is a lower bound)" : ""}`;
     out.push(f);
   }
   const rel = options.defectRelative ?? 0.1;
@@ -142,7 +142,7 @@ export function findFeatures(profile: Profile, segments: readonly Segment[], pea
       const ra = gg[key] / ga[key], rb = gg[key] / gb[key];
       if (Math.abs(ra - 1) > rel && Math.abs(rb - 1) > rel && Math.sign(ra - 1) === Math.sign(rb - 1)) {
         const ratio = (2 * gg[key]) / (ga[key] + gb[key]);
-        out.push({ kind: key === "pitch" ? "pitch-defect" : "radius-defect", s: 0.5 * (g.s0 + g.s1), s0: g.s0, s1: g.s1, before: k - 1, after: k + 1, within: k, ratio, note: `${key} ${ratio.toFixed(2)} x its neighbours' over ${fmt(g.s1 - g.s0)}` });
+        out.push({ kind: key === "pitch" ? "pitch-defect" : "radius-defect", s: 0.5 * (g.s0 + g.s1), s0: g.s0, s1: g.s1, before: k - 1, after: k + 1, within: k, ratio, note: `${key} ${ratio.toFixed(2)} x its neighbours'` });
       }
     }
   }
@@ -151,13 +151,8 @@ export function findFeatures(profile: Profile, segments: readonly Segment[], pea
     let a = 0, c = 0;
     for (let i = 0; i < n; ++i) if (Number.isFinite(profile.tau[i])) { a += profile.tau[i] ** 2; ++c; }
     const rmsT = c > 0 ? Math.sqrt(a / c) : 0;
-    if (rmsT > 3 * (options.tauNoise ?? Infinity)) out.push({ kind: "warp", s: 0, s0: s[0], s1: s[n - 1], before: -1, after: -1, within: 0, rmsTorsion: rmsT, note: `closed arc out of plane: RMS torsion ${(rmsT * 1e-9).toPrecision(3)} 1/nm about a mean of 0` });
+    if (rmsT > 3 * (options.tauNoise ?? Infinity)) out.push({ kind: "warp", s: 0, s0: s[0], s1: s[n - 1], before: -1, after: -1, within: 0, rmsTorsion: rmsT, note: `closed arc out of plane: torsion swings about 0 (RMS ${(rmsT / (options.tauNoise ?? Infinity)).toFixed(0)} x its noise)` });
   }
   if (!profile.closed) out.push({ kind: "end", s: s[n - 1], s0: s[n - 1], s1: s[n - 1], before: segments.length - 1, after: -1, within: segments.length - 1, note: "end of the wire" });
   return out.sort((x, y) => x.s - y.s);
-}
-
-/** A length in nm for notes (the frame never knows the file's unit; nm is the trade's scale). */
-function fmt(m: number): string {
-  return `${(m * 1e9).toPrecision(3)} nm`;
 }
