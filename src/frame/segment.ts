@@ -22,6 +22,11 @@ export interface SegmentOptions {
   readonly bendSigmas?: number;
   /** Smallest turning angle of a bend (rad, default 5 degrees). */
   readonly bendMinAngle?: number;
+  /**
+   * An irregular stretch joins a regular neighbour when the neighbour's primitive fitted to both
+   * keeps its RMS residual within this factor of the neighbour's own (default 1.25).
+   */
+  readonly absorbRatio?: number;
   /** Noise SD per coordinate of the points (m) for the shape test (default: the profile's sigma). */
   readonly pointNoise?: number;
 }
@@ -305,8 +310,53 @@ export function segmentWire(profile: Profile, options: SegmentOptions = {}): { s
     if (points !== null && kind !== "irregular") g = { ...g, ...shapeOf(points.subarray(3 * i0, 3 * i1), kind, noise, g) };
     out.push(g);
   }
+  if (points !== null) absorbIrregular(out, points, noise, isPeak, options.absorbRatio ?? 1.25);
   const features = findFeatures(profile, out, peaks, { points, noise, tauNoise: sigmaT });
   return { segments: out, features };
+}
+
+/**
+ * Irregular stretches whose points lie on a regular neighbour's primitive join it: the spline's
+ * curvature is biased near open ends and on sparse traces, so a stretch can look irregular to the
+ * change-point fit while its points sit on the neighbour's helix, circle or line. The union is
+ * refitted; it is accepted when the fit is not rejected by `checkFit` and its RMS residual stays
+ * within `ratio` of the neighbour's own. Likewise two neighbours of the same regular kind whose
+ * union fits one primitive within `ratio` of the larger of their RMS residuals (a helix cut in two
+ * by the spline's noise). Bends are never joined. In place; repeated until nothing joins.
+ */
+function absorbIrregular(out: Segment[], points: Float64Array, noise: number, isPeak: ReadonlySet<number>, ratio: number): void {
+  for (let changed = true; changed; ) {
+    changed = false;
+    // two neighbours of the same regular kind whose union fits one primitive as well as each alone
+    for (let k = 0; k + 1 < out.length && !changed; ++k) {
+      const a = out[k], b = out[k + 1];
+      if (a.kind !== b.kind || a.kind === "irregular" || a.shape === undefined || b.shape === undefined || isPeak.has(a.i0) || isPeak.has(b.i0)) continue;
+      const joined = shapeOf(points.subarray(3 * a.i0, 3 * b.i1), a.kind, noise, a);
+      const sh = joined.shape;
+      if (sh === undefined || sh.verdict === "rejected" || joined.kind === "irregular" || !(sh.rms <= ratio * Math.max(a.shape.rms, b.shape.rms))) continue;
+      out.splice(k, 2, { ...a, ...joined, i1: b.i1, s1: b.s1 });
+      changed = true;
+    }
+    for (let k = 0; k < out.length && !changed; ++k) {
+      const g = out[k];
+      if (g.kind !== "irregular" || isPeak.has(g.i0)) continue;
+      const options = [k - 1, k + 1].filter((j) => j >= 0 && j < out.length && out[j].kind !== "irregular" && out[j].shape !== undefined && !isPeak.has(out[j].i0));
+      let best: { j: number; seg: Segment; rms: number } | null = null;
+      for (const j of options) {
+        const h = out[j];
+        const i0 = Math.min(g.i0, h.i0), i1 = Math.max(g.i1, h.i1);
+        const joined = shapeOf(points.subarray(3 * i0, 3 * i1), h.kind, noise, h);
+        const sh = joined.shape;
+        if (sh === undefined || sh.verdict === "rejected" || !(sh.rms <= ratio * h.shape!.rms)) continue;
+        const seg: Segment = { ...h, ...joined, i0, i1, s0: Math.min(g.s0, h.s0), s1: Math.max(g.s1, h.s1) };
+        if (best === null || sh.rms < best.rms) best = { j, seg, rms: sh.rms };
+      }
+      if (best !== null) {
+        out.splice(Math.min(k, best.j), 2, best.seg);
+        changed = true;
+      }
+    }
+  }
 }
 
 /** Noise SD of a kappa or tau series at a lag of one correlation length, floored at 1e-3 of the median |kappa|. */
