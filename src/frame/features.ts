@@ -35,13 +35,7 @@ export function curvaturePeaks(s: Float64Array, kappa: Float64Array, _bounds: re
   const out: CurvaturePeak[] = [];
   const n = kappa.length;
   if (n < 5) return out;
-  const base = new Float64Array(n);
-  const half = 2.5 * resolution;
-  for (let i = 0, lo = 0, hi = 0; i < n; ++i) {
-    while (s[lo] < s[i] - half) ++lo;
-    while (hi < n && s[hi] <= s[i] + half) ++hi;
-    base[i] = quantile(Array.from(kappa.subarray(lo, hi)), 0.5) ?? kappa[i];
-  }
+  const base = runningMedian(s, kappa, 2.5 * resolution);
   const ex = (i: number) => kappa[i] - base[i];
   for (let i = 0; i < n; ) {
     if (ex(i) <= sigmas * sigmaK) { ++i; continue; }
@@ -67,6 +61,33 @@ export function curvaturePeaks(s: Float64Array, kappa: Float64Array, _bounds: re
   return out;
 }
 
+/**
+ * Median of y over |s - s_i| <= half at each sample. Computed exactly at every step-th sample
+ * (step: 1/32 of the window's samples, at least 1) and linearly interpolated between them, so the
+ * cost is O(n log w) however many samples the window holds.
+ */
+function runningMedian(s: Float64Array, y: Float64Array, half: number): Float64Array {
+  const n = y.length, out = new Float64Array(n);
+  const ds = n > 1 ? (s[n - 1] - s[0]) / (n - 1) : 1;
+  const step = Math.max(1, Math.floor((2 * half) / Math.max(ds, 1e-300) / 32));
+  const at: number[] = [];
+  for (let i = 0; i < n; i += step) at.push(i);
+  if (at[at.length - 1] !== n - 1) at.push(n - 1);
+  const vals = new Float64Array(at.length);
+  for (let q = 0, lo = 0, hi = 0; q < at.length; ++q) {
+    const i = at[q];
+    while (s[lo] < s[i] - half) ++lo;
+    while (hi < n && s[hi] <= s[i] + half) ++hi;
+    vals[q] = quantile(y.subarray(lo, hi), 0.5) ?? y[i];
+  }
+  for (let q = 0; q + 1 < at.length; ++q) {
+    const a = at[q], b = at[q + 1];
+    for (let i = a; i <= b; ++i) out[i] = vals[q] + ((vals[q + 1] - vals[q]) * (i - a)) / Math.max(1, b - a);
+  }
+  if (at.length === 1) out[0] = vals[0];
+  return out;
+}
+
 /** Options of `findFeatures`. */
 export interface FeatureOptions {
   /** Input points of the samples (3n, m), for the circle fit of a bend. */
@@ -88,9 +109,10 @@ export interface FeatureOptions {
  *   flattens peaks), and the radius of a circle fitted to the input points of the half-height
  *   region when it holds at least 5 points;
  * - "kink": the same but no wider than 1.5 resolution lengths: the curvature is a lower bound;
- * - "pitch-defect" / "radius-defect": a helix stretch between two helix stretches whose pitch
+ * - "pitch-defect" / "radius-defect": a run of adjacent helix stretches whose pitch
  *   (2 pi tau / (kappa^2 + tau^2)) or radius (kappa / (kappa^2 + tau^2)), from the primitive when
- *   present, differs from both neighbours by more than `defectRelative`;
+ *   present, departs in the same direction from the length-weighted median of all helix stretches
+ *   by more than `defectRelative`; `ratio` is the largest departure, `within` its stretch;
  * - "end": each end of an open wire.
  * `within` is the stretch that holds the feature (a bend's own stretch), `before`/`after` its neighbours.
  */
@@ -134,15 +156,32 @@ export function findFeatures(profile: Profile, segments: readonly Segment[], pea
     const q = k * k + t * t;
     return { radius: k / q, pitch: (2 * Math.PI * Math.abs(t)) / q };
   };
-  for (let k = 1; k + 1 < segments.length; ++k) {
-    const [a, g, b] = [segments[k - 1], segments[k], segments[k + 1]];
-    if (a.kind !== "helix" || g.kind !== "helix" || b.kind !== "helix") continue;
-    const ga = geom(a), gg = geom(g), gb = geom(b);
+  // coil defects: runs of helix stretches whose pitch (or radius) departs from the coil's
+  // length-weighted median by more than `rel`, in the same direction
+  const helices = segments.map((g, k) => ({ g, k })).filter((x) => x.g.kind === "helix");
+  if (helices.length >= 2) {
     for (const key of ["pitch", "radius"] as const) {
-      const ra = gg[key] / ga[key], rb = gg[key] / gb[key];
-      if (Math.abs(ra - 1) > rel && Math.abs(rb - 1) > rel && Math.sign(ra - 1) === Math.sign(rb - 1)) {
-        const ratio = (2 * gg[key]) / (ga[key] + gb[key]);
-        out.push({ kind: key === "pitch" ? "pitch-defect" : "radius-defect", s: 0.5 * (g.s0 + g.s1), s0: g.s0, s1: g.s1, before: k - 1, after: k + 1, within: k, ratio, note: `${key} ${ratio.toFixed(2)} x its neighbours'` });
+      const vals = helices.map((x) => ({ k: x.k, v: geom(x.g)[key], w: x.g.s1 - x.g.s0 })).filter((x) => Number.isFinite(x.v) && x.v > 0);
+      if (vals.length < 2) continue;
+      const sorted = [...vals].sort((x, y) => x.v - y.v);
+      const total = sorted.reduce((acc, x) => acc + x.w, 0);
+      let acc = 0, ref = sorted[0].v;
+      for (const x of sorted) { acc += x.w; if (acc >= total / 2) { ref = x.v; break; } }
+      for (let q = 0; q < vals.length; ) {
+        const dir = Math.sign(vals[q].v / ref - 1);
+        if (Math.abs(vals[q].v / ref - 1) <= rel) { ++q; continue; }
+        let r = q;
+        while (r + 1 < vals.length && vals[r + 1].k === vals[r].k + 1 && Math.abs(vals[r + 1].v / ref - 1) > rel && Math.sign(vals[r + 1].v / ref - 1) === dir) ++r;
+        let ext = q;
+        for (let j = q; j <= r; ++j) if (Math.abs(vals[j].v / ref - 1) > Math.abs(vals[ext].v / ref - 1)) ext = j;
+        const first = segments[vals[q].k], lastSeg = segments[vals[r].k], peak = segments[vals[ext].k];
+        const ratio = vals[ext].v / ref;
+        out.push({
+          kind: key === "pitch" ? "pitch-defect" : "radius-defect", s: 0.5 * (peak.s0 + peak.s1), s0: first.s0, s1: lastSeg.s1,
+          before: vals[q].k - 1, after: vals[r].k + 1 < segments.length ? vals[r].k + 1 : -1, within: vals[ext].k, ratio,
+          note: `${key} ${ratio.toFixed(2)} x the coil's (length-weighted median of its helix stretches)`,
+        });
+        q = r + 1;
       }
     }
   }

@@ -421,14 +421,20 @@ export function fitHelix(xyz: ArrayLike<number>, options: PrimitiveOptions = {})
   if (plane !== null) starts.push({ ...plane, ssr: residuals(nm.p, n, plane.base, plane.th, r, t) });
   if (starts.length === 0) throw new RangeError("fitHelix: no start (the points are collinear)");
   starts.sort((x, y) => x.ssr - y.ssr);
+  // Large stretches: the starts compete on every k-th point (about 2000 points), and only the
+  // winner is refined on all of them.
+  const k = Math.max(1, Math.ceil(n / 2000));
+  const sub = k === 1 ? nm.p : Float64Array.from({ length: 3 * Math.ceil(n / k) }, (_, j) => nm.p[3 * k * Math.floor(j / 3) + (j % 3)]);
+  const nSub = sub.length / 3;
   let best: LmResult | null = null;
   for (const s of starts.slice(0, 3)) {
     // a circle start gets a small rise so that the screw gauge is well defined
     const th = Float64Array.from(s.th);
     if (th[6] === 0) th[6] = 1e-3 * th[5];
-    const f = levenberg(nm.p, n, s.base, th, FREE_HELIX, options.maxIterations ?? 100);
+    const f = levenberg(sub, nSub, s.base, th, FREE_HELIX, options.maxIterations ?? 100);
     if (best === null || f.ssr < best.ssr) best = f;
   }
+  if (k > 1) best = levenberg(nm.p, n, best!.base, best!.th, FREE_HELIX, options.maxIterations ?? 100);
   return summarise("helix", nm, best!, FREE_HELIX);
 }
 

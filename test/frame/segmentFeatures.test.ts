@@ -68,6 +68,18 @@ describe("segmentWire on the invented demo wires (fixtures/demo, truth in fixtur
     expect(first.handedness).toBe(1);
     expect(segments[0].kappa).toBe(first.kappa.value);
   });
+  it("coil: the pitch defect (pitch doubled between turns 2.6 and 3.3) is one named feature of ratio ~2", async () => {
+    const { features } = analyse(await readTraceFile("fixtures/demo/coil.csv"), 0);
+    const d = features.filter((f) => f.kind === "pitch-defect");
+    expect(d.length).toBe(1);
+    // invented truth: 62.83 nm -> 125.66 nm; one turn of the coil is sqrt((2 pi 40)^2 + 62.83^2) = 259 nm
+    // of wire, so turn 2.6 is at ~673 nm and the defect (0.7 turn of the wider pitch, ~197 nm) ends near 870 nm
+    expect(d[0].ratio!).toBeGreaterThan(1.8); // measured 1.94
+    expect(d[0].ratio!).toBeLessThan(2.2);
+    expect(d[0].s).toBeGreaterThan(673 * NM);
+    expect(d[0].s).toBeLessThan(870 * NM);
+    expect(features.filter((f) => f.kind === "radius-defect").length).toBe(0);
+  });
 });
 
 describe("segmentWire on synthetic wires (closed forms of test/support/curves.ts)", () => {
