@@ -119,6 +119,40 @@ export interface Profile {
 
 export type SegmentKind = "straight" | "arc" | "helix" | "irregular";
 
+/** A value with its 95% interval (same unit as the value). */
+export interface Interval {
+  readonly value: number;
+  readonly lo: number;
+  readonly hi: number;
+}
+
+/**
+ * The exact primitive refitted to a stretch's input points (orthogonal-distance least squares,
+ * `src/frame/primitives.ts`). Lengths in m, kappa and tau in 1/m, each with its 95% interval.
+ */
+export interface StretchShape {
+  readonly primitive: "line" | "circle" | "helix";
+  readonly points: number;
+  /** NaN for a line. */
+  readonly radius: Interval;
+  /** Pitch 2 pi |c| (m): 0 for a circle, NaN for a line. */
+  readonly pitch: Interval;
+  /** +1 right-handed, -1 left-handed, 0 circle or line. */
+  readonly handedness: -1 | 0 | 1;
+  readonly kappa: Interval;
+  /** NaN for a line. */
+  readonly tau: Interval;
+  /** Helix axis, circle normal or line direction (unit vector). */
+  readonly axis: readonly [number, number, number];
+  /** Point on the axis, circle centre or centroid (m). */
+  readonly centre: readonly [number, number, number];
+  /** RMS orthogonal residual (m). */
+  readonly rms: number;
+  /** Shape test against the noise: "untested" when the noise is unknown. */
+  readonly verdict: "confirmed" | "rejected" | "untested";
+  readonly reason: string;
+}
+
 /** A stretch of near-constant geometry, s0..s1 in m, mean kappa and tau in 1/m with 95% bands. */
 export interface Segment {
   readonly s0: number;
@@ -133,4 +167,41 @@ export interface Segment {
   readonly tau: number;
   readonly tauLo: number;
   readonly tauHi: number;
+  /** The primitive refitted to the stretch's input points, when they were given. */
+  readonly shape?: StretchShape;
+  /** Why the stretch is "irregular" when its primitive was rejected (one line). */
+  readonly demoted?: string;
+  /** The stretch is the whole of a closed wire (a ring or a closed coil), with no seam. */
+  readonly wholeRing?: boolean;
+}
+
+/** Kinds of named features: see `findFeatures` in src/frame/features.ts. */
+export type FeatureKind = "bend" | "kink" | "pitch-defect" | "radius-defect" | "warp" | "end";
+
+/**
+ * A named feature of the wire (plain data). Position s and extent s0..s1 in m along the profile.
+ * `before`/`after`: indices of the stretches on either side (-1 when none); `within`: the stretch
+ * that holds the feature (-1 when it lies on a boundary).
+ */
+export interface Feature {
+  readonly kind: FeatureKind;
+  readonly s: number;
+  readonly s0: number;
+  readonly s1: number;
+  readonly before: number;
+  readonly after: number;
+  readonly within: number;
+  /** Bends and kinks: turning angle (rad) and the smallest radius of curvature (m). */
+  readonly turningAngle?: number;
+  readonly minRadius?: number;
+  /** Bends: radius of a circle fitted to the input points of the bend (m, 95% interval). */
+  readonly radius?: Interval;
+  /** Kinks: the curvature there is a lower bound (the feature is narrower than the resolution). */
+  readonly lowerBound?: boolean;
+  /** Warp of a closed arc: RMS torsion (1/m). */
+  readonly rmsTorsion?: number;
+  /** Coil defects: the defect's pitch or radius over its neighbours' (dimensionless). */
+  readonly ratio?: number;
+  /** One human-readable line. */
+  readonly note: string;
 }

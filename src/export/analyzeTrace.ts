@@ -1,8 +1,8 @@
 import { fitProfile, type ProfileOptions } from "../frame/profile.js";
-import { segment, type SegmentOptions } from "../frame/segment.js";
+import { samplePoints, segmentWire, type SegmentOptions } from "../frame/segment.js";
 import { buildWireModel, type WireModelOptions } from "../physics/buildWireModel.js";
 import type { Material, WireModel } from "../physics/types.js";
-import type { Profile, Segment, Trace } from "../types.js";
+import type { Feature, Profile, Segment, Trace } from "../types.js";
 
 /** Options of {@link analyzeTrace}. Lengths in metres. */
 export interface AnalyzeOptions {
@@ -28,6 +28,8 @@ export interface Analysis {
   /** The fitted profile, import diagnostics merged into `diagnostics`, bootstrap replicates kept. */
   readonly profile: Profile;
   readonly segments: readonly Segment[];
+  /** Named features (bends, kinks, coil defects, warps, ends), linked to the stretches (`segmentWire`). */
+  readonly features?: readonly Feature[];
   readonly material: Material | null;
   /** The curvilinear-magnet model, null for a geometry-only run. */
   readonly model: WireModel | null;
@@ -59,10 +61,13 @@ export function analyzeTrace(trace: Trace, options: AnalyzeOptions = {}): Analys
   const diagnostics = [...trace.diagnostics, ...fitted.diagnostics.filter((d) => !trace.diagnostics.includes(d))];
   const profile: Profile = { ...fitted, diagnostics };
   const t1 = performance.now();
-  const segments = segment(profile, options.segmentOptions ?? {});
+  // each stretch is refitted by its primitive on the input points of its samples (when the profile
+  // has one sample per input point)
+  const points = samplePoints(trace, profile);
+  const { segments, features } = segmentWire(profile, { ...(points !== null ? { points } : {}), ...options.segmentOptions });
   const t2 = performance.now();
   const material = options.material ?? null;
   const model = material !== null ? buildWireModel(profile, segments, material, { seed, ...options.modelOptions }) : null;
   const t3 = performance.now();
-  return { trace, profile, segments, material, model, seed, timings: { profile: t1 - t0, segment: t2 - t1, model: t3 - t2 } };
+  return { trace, profile, segments, features, material, model, seed, timings: { profile: t1 - t0, segment: t2 - t1, model: t3 - t2 } };
 }

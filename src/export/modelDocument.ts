@@ -1,6 +1,6 @@
 import { VALIDITY_BITS, VALIDITY_TEXT } from "../physics/sampleValidity.js";
 import type { Material, PinningSite, StretchModel, TextureState, WireModel } from "../physics/types.js";
-import { PER_METRE, type LengthUnit } from "../types.js";
+import { PER_METRE, type Feature, type Interval, type LengthUnit, type StretchShape } from "../types.js";
 import type { Analysis } from "./analyzeTrace.js";
 import { composeWarnings } from "./composeWarnings.js";
 import { jsonNumber } from "./formatNumber.js";
@@ -68,6 +68,34 @@ export interface SegmentEntry {
     lower0: Num; upper0: Num; kMin: Num; lowerMin: Num; depth: Num; unstable: boolean; note: string | null; omega0: Num;
   } | null;
   flags: string[];
+  /** The primitive refitted to the stretch's input points (lengths in unit, curvatures in 1/unit), or null. */
+  shape: ShapeEntry | null;
+  /** Why the stretch was demoted to irregular (its primitive missed the points), or null. */
+  demoted: string | null;
+  /** The stretch is the whole of a closed wire (no seam). */
+  wholeRing: boolean;
+}
+
+/** A value with its 95% interval, in model.json. */
+export interface IntervalEntry { value: Num; lo: Num; hi: Num }
+
+/** A stretch's primitive in model.json (lengths in unit, kappa and tau in 1/unit). */
+export interface ShapeEntry {
+  primitive: "line" | "circle" | "helix";
+  points: number;
+  radius: IntervalEntry; pitch: IntervalEntry; handedness: -1 | 0 | 1;
+  kappa: IntervalEntry; tau: IntervalEntry;
+  axis: Num[]; centre: Num[]; rms: Num;
+  verdict: "confirmed" | "rejected" | "untested"; reason: string;
+}
+
+/** A named feature in model.json (lengths in unit, angles in rad). */
+export interface FeatureEntry {
+  kind: Feature["kind"];
+  s: Num; s0: Num; s1: Num;
+  before: number; after: number; within: number;
+  turningAngle: Num; minRadius: Num; radius: IntervalEntry | null; lowerBound: boolean;
+  ratio: Num; note: string;
 }
 
 /** A pinning site or barrier in model.json (lengths in `unit`). */
@@ -123,6 +151,7 @@ export interface ModelDocument {
   };
   material: MaterialEntry | null;
   segments: SegmentEntry[];
+  features: FeatureEntry[];
   pinning: PinningEntry[];
   pinningMinor: PinningEntry[];
   barriers: PinningEntry[];
@@ -225,6 +254,30 @@ export function materialEntry(m: Material, unit: LengthUnit, file: string | null
   };
 }
 
+function intervalEntry(v: Interval, f: number): IntervalEntry {
+  return { value: jsonNumber(v.value * f), lo: jsonNumber(v.lo * f), hi: jsonNumber(v.hi * f) };
+}
+
+function shapeEntry(sh: StretchShape, k: number): ShapeEntry {
+  return {
+    primitive: sh.primitive, points: sh.points,
+    radius: intervalEntry(sh.radius, k), pitch: intervalEntry(sh.pitch, k), handedness: sh.handedness,
+    kappa: intervalEntry(sh.kappa, 1 / k), tau: intervalEntry(sh.tau, 1 / k),
+    axis: sh.axis.map((v) => jsonNumber(v)), centre: sh.centre.map((v) => jsonNumber(v * k)), rms: jsonNumber(sh.rms * k),
+    verdict: sh.verdict, reason: sh.reason,
+  };
+}
+
+function featureEntry(f: Feature, k: number): FeatureEntry {
+  const J = (v: number | undefined, g: number): Num => (v === undefined ? null : jsonNumber(v * g));
+  return {
+    kind: f.kind, s: jsonNumber(f.s * k), s0: jsonNumber(f.s0 * k), s1: jsonNumber(f.s1 * k),
+    before: f.before, after: f.after, within: f.within,
+    turningAngle: J(f.turningAngle, 1), minRadius: J(f.minRadius, k), radius: f.radius === undefined ? null : intervalEntry(f.radius, k),
+    lowerBound: f.lowerBound === true, ratio: J(f.ratio, 1), note: f.note,
+  };
+}
+
 function segmentEntry(a: Analysis, index: number, sm: StretchModel | null, unit: LengthUnit): SegmentEntry {
   const g = a.segments[index];
   const k = PER_METRE[unit];
@@ -239,6 +292,9 @@ function segmentEntry(a: Analysis, index: number, sm: StretchModel | null, unit:
     probabilities: null, uncertain: null, dmi: null, dmiReduced: null,
     anisotropyConstants: null, anisotropyConstantsUnit: null, anisotropyAxesLocal: null,
     energyReduced: null, periodicEnergyReduced: null, period: null, magnons: null, flags: [],
+    shape: g.shape === undefined ? null : shapeEntry(g.shape, k),
+    demoted: g.demoted ?? null,
+    wholeRing: g.wholeRing === true,
   };
   if (sm === null) return base;
   const p = sm.probabilities;
@@ -336,6 +392,7 @@ export function buildModelDocument(a: Analysis, options: ModelDocumentOptions): 
     },
     material: a.material === null ? null : materialEntry(a.material, unit, options.materialFile ?? null, options.materialNote ?? null),
     segments: a.segments.map((_, i) => segmentEntry(a, i, model?.segments[i] ?? null, unit)),
+    features: (a.features ?? []).map((f) => featureEntry(f, k)),
     pinning: (model?.pinning ?? []).map((x, i) => pinningEntry(x, i, k)),
     pinningMinor: (model?.pinningMinor ?? []).map((x, i) => pinningEntry(x, i, k)),
     barriers: (model?.barriers ?? []).map((x, i) => pinningEntry(x, i, k)),

@@ -309,21 +309,32 @@ ${ring}</section>`;
 <div data-for="state">${categoryLegend(hasModel ? [...new Set(cats)].sort() : [0])}</div>
 </div>`;
 
-  const cols = hasModel ? 8 : 5;
+  const cols = hasModel ? 9 : 6;
+  // the stretch's primitive (orthogonal least-squares refit of its input points)
+  const shapeCell = (g: (typeof segs)[number]): string => {
+    const sh = g.shape;
+    if (sh === null) return "\u2013";
+    const hand = sh.handedness > 0 ? "right-handed" : sh.handedness < 0 ? "left-handed" : "";
+    const r = `R ${band(sh.radius.value, sh.radius.lo, sh.radius.hi)}`;
+    const text = sh.primitive === "line" ? "line"
+      : sh.primitive === "circle" ? `circle, ${r}`
+      : `helix, ${r}<br>pitch ${band(sh.pitch.value, sh.pitch.lo, sh.pitch.hi)}, ${hand}`;
+    return `${text}${sh.verdict === "confirmed" ? "" : `<br><span class="small">${escapeHtml(sh.verdict)}</span>`}`;
+  };
   const tableRows = segs.map((g) => {
     const st = g.state === null ? "n/a"
       : g.state === "homogeneous" ? `homogeneous (${g.homogeneousStability})`
       : g.state === "vortex" || g.state === "onion" ? `ring ${g.state} (vortex ${g.homogeneousStability})` : `periodic (homogeneous ${g.homogeneousStability})`;
     const probs = g.probabilities === null ? "" : `<br><span class="small">p(periodic) ${num(g.probabilities.periodic)}${g.uncertain ? ", uncertain" : ""}</span>`;
     const main = `<tr class="stretch"><td class="num">${g.index + 1}</td><td>${escapeHtml(g.kind)}</td><td class="num">${sPos(g.s0)}\u2013${sPos(g.s1)}</td>` +
-      `<td class="num">${band(g.kappa, g.kappaLo, g.kappaHi)}</td><td class="num">${band(g.tau, g.tauLo, g.tauHi)}</td>` +
+      `<td class="num">${band(g.kappa, g.kappaLo, g.kappaHi)}</td><td class="num">${band(g.tau, g.tauLo, g.tauHi)}</td><td class="num">${shapeCell(g)}</td>` +
       (hasModel ? `<td class="num">${num(g.kappaReduced)}<br>${num(g.tauReduced)}</td><td>${escapeHtml(st)}${probs}</td><td class="num">${num(g.tiltDeg)}<br>${eng(g.dmi, "dmi")}</td>` : "") + "</tr>";
     const why = [outsideBandReason("curvature", g.kappa, g.kappaLo, g.kappaHi), outsideBandReason("torsion", g.tau, g.tauLo, g.tauHi)].filter((t): t is string => t !== null);
-    const lines = [...g.flags, ...why];
+    const lines = [...(g.demoted !== null ? [`demoted to irregular: ${g.demoted}`] : []), ...(g.wholeRing ? ["the whole closed wire, no seam"] : []), ...g.flags, ...why];
     const notes = lines.length > 0 ? `<tr class="notes"><td></td><td colspan="${cols - 1}" class="small">${lines.map((f) => escapeHtml(f)).join("<br>")}</td></tr>` : "";
     return main + notes;
   }).join("");
-  const head = `<tr><th class="num">#</th><th>kind</th><th class="num">s (${unit})</th><th class="num">\u03ba (1/${unit})<br>[95%]</th><th class="num">\u03c4 (1/${unit})<br>[95%]</th>` +
+  const head = `<tr><th class="num">#</th><th>kind</th><th class="num">s (${unit})</th><th class="num">\u03ba (1/${unit})<br>[95%]</th><th class="num">\u03c4 (1/${unit})<br>[95%]</th><th class="num">shape (${unit})<br>[95%]</th>` +
     (hasModel ? `<th class="num">\u03ba l<br>\u03c4 l</th><th>state</th><th class="num">tilt (deg)<br>DMI</th>` : "") + `</tr>`;
 
   const kinds = (["straight", "arc", "helix", "irregular"] as const)
@@ -379,7 +390,8 @@ The tube is drawn no thinner than 0.6% and no thicker than 4% of the wire's size
 ${magnonSection}
 <section id="stretches"><h2>Stretches</h2>
 <table><thead>${head}</thead><tbody>${tableRows}</tbody></table>
-<p class="small">Stretch means with 95% bands from the bootstrap replicates.${hasModel ? " Tilt: FM from T toward B, AFM from B toward T. DMI: geometric 2A\u221a(\u03ba\u00b2+\u03c4\u00b2)." : ""}</p>
+${doc.features.length > 0 ? `<h3>Features</h3><ul>${doc.features.map((f) => `<li>${escapeHtml(f.kind)} at s = ${num(f.s)} ${unit}${f.within >= 0 ? ` (stretch ${f.within + 1})` : ""}: ${escapeHtml(f.note)}</li>`).join("")}</ul>` : ""}
+<p class="small">Stretch means with 95% bands from the bootstrap replicates; where a shape was refitted (a line, circle or helix through the stretch's input points), \u03ba and \u03c4 of arcs and helices are the shape's, with intervals from its residual noise.${hasModel ? " Tilt: FM from T toward B, AFM from B toward T. DMI: geometric 2A\u221a(\u03ba\u00b2+\u03c4\u00b2)." : ""}</p>
 </section>
 <footer>Files: ${[doc.outputs.profile, "model.json", doc.outputs.chain.file, doc.outputs.mesh.file, doc.outputs.report, ...(doc.outputs.exports ?? []).map((e) => e.file)].map((f) => `<code>${escapeHtml(f)}</code>`).join(", ")}.
 Reproduce: same input, options and seed (${doc.seed}) give the same numbers${doc.run.command !== null ? `: <code>${escapeHtml(doc.run.command)}</code>` : " (every option value is in model.json, under run)"}. ${escapeHtml(doc.note)}.</footer>
