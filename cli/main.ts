@@ -1,6 +1,7 @@
 /** The CLI: `main(argv, io)` parses, runs one command, and returns the exit code. No globals. */
 import { Command, CommanderError } from "@commander-js/extra-typings";
 import { InputError, ParameterError } from "../src/errors.js";
+import { fsProblem } from "../src/import/fsProblem.js";
 import { TOOL_NAME, TOOL_VERSION } from "../src/export/version.js";
 import { addAnalyzeCommand } from "./analyze.js";
 import { addBatchCommand } from "./batch.js";
@@ -65,6 +66,13 @@ export async function main(argv: readonly string[], io: Io): Promise<number> {
     if (e instanceof CommanderError) return e.exitCode === 0 ? EXIT_OK : EXIT_USAGE_OR_BUG;
     if (e instanceof InputError || e instanceof ParameterError) {
       io.stderr(`${TOOL_NAME}: ${e.message.replace(/[\r\n]+/g, " ")}\n`);
+      return EXIT_BAD_INPUT;
+    }
+    // a file-system fault that no stage caught on its way: still the user's disk, not a bug
+    const problem = fsProblem(e);
+    const path = (e as { path?: unknown } | null)?.path;
+    if (problem !== null && typeof path === "string") {
+      io.stderr(`${TOOL_NAME}: ${JSON.stringify(path)}: ${problem}\n`.replace(/[\r\n]+(?=.)/g, " "));
       return EXIT_BAD_INPUT;
     }
     const detail = e instanceof Error ? (e.stack ?? `${e.name}: ${e.message}`) : String(e);
