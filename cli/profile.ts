@@ -10,7 +10,8 @@ import { defaultOutputUnit } from "../src/export/outputUnit.js";
 import { profileToCsv } from "../src/export/profileToCsv.js";
 import { profileToJson } from "../src/export/profileToJson.js";
 import { sameFile } from "../src/export/sameFile.js";
-import { writeFileAtomic } from "../src/export/writeFileAtomic.js";
+import { writeFileAtomic, type FileData } from "../src/export/writeFileAtomic.js";
+import { fsProblem } from "../src/import/fsProblem.js";
 import { fitProfile, type ProfileOptions } from "../src/frame/profile.js";
 import type { BranchPolicy } from "../src/import/mesh/types.js";
 import { formatOfPath, readTraceFile, type ReadOneTraceOptions } from "../src/import/readTrace.js";
@@ -168,16 +169,6 @@ export function checkProfileFlags(input: string, flags: ProfileFlags): ProfileRe
   return req;
 }
 
-const WRITE_PROBLEMS: Readonly<Record<string, string>> = {
-  ENOENT: "its folder does not exist",
-  ENOTDIR: "a folder on the path is not a directory",
-  EISDIR: "is a directory",
-  EACCES: "permission denied",
-  EPERM: "permission denied",
-  EROFS: "read-only file system",
-  ENOSPC: "no space left on the device",
-};
-
 /** Refuses an output that is the input, or whose folder is missing, before any work is done. */
 export async function checkOutputPath(req: { readonly input: string; readonly out: string }, where: string): Promise<void> {
   if (req.out === "-") return;
@@ -192,14 +183,12 @@ export async function checkOutputPath(req: { readonly input: string; readonly ou
 }
 
 /** Writes `text` to `out` atomically, never over `input`; file-system failures become ParameterError(where, "--out"). */
-export async function writeOutput(out: string, text: string, input: string, where: string): Promise<void> {
+export async function writeOutput(out: string, data: FileData, input: string, where: string): Promise<void> {
   try {
-    await writeFileAtomic(out, text, { protect: input === "-" ? [] : [input] });
+    await writeFileAtomic(out, data, { protect: input === "-" ? [] : [input] });
   } catch (e) {
-    const code = (e as { code?: unknown }).code;
-    if (typeof code === "string" && Object.hasOwn(WRITE_PROBLEMS, code)) {
-      throw new ParameterError(where, "--out", `cannot write ${JSON.stringify(out)}: ${WRITE_PROBLEMS[code]}`);
-    }
+    const problem = fsProblem(e);
+    if (problem !== null) throw new ParameterError(where, "--out", `cannot write ${JSON.stringify(out)}: ${problem}`);
     throw e;
   }
 }

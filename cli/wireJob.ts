@@ -130,14 +130,23 @@ export async function runWireJob(job: WireJob, viewerJs: string): Promise<WireJo
   };
   const analysis = analyzeTrace(trace, options);
   const unit = job.outUnit ?? defaultOutputUnit(trace.source);
-  const outputs = await buildWireOutputs(analysis, {
-    unit,
-    mesh: job.mesh,
-    materialFile: job.materialFile,
-    viewerScript: viewerJs,
-    ...(job.spacing !== undefined ? { spacing: job.spacing } : {}),
-    ...(job.radius !== undefined ? { radius: job.radius } : {}),
-  });
+  let outputs: WireOutputs;
+  try {
+    outputs = await buildWireOutputs(analysis, {
+      unit,
+      mesh: job.mesh,
+      materialFile: job.materialFile,
+      viewerScript: viewerJs,
+      ...(job.spacing !== undefined ? { spacing: job.spacing } : {}),
+      ...(job.radius !== undefined ? { radius: job.radius } : {}),
+    });
+  } catch (e) {
+    // the default spacing comes from the fit: a check on it failing is about the data, not an option the user gave
+    if (e instanceof ParameterError && e.where === "resampleWire" && job.spacing === undefined) {
+      throw new InputError(trace.source.file, null, "profile", `the fit gives no usable chain spacing (${e.message.replace(/^resampleWire: spacing: /, "")}); check the trace, or give --spacing`);
+    }
+    throw e;
+  }
   for (const f of outputs.files) {
     try {
       await writeFileAtomic(join(job.dir, f.name), f.data);
