@@ -7,8 +7,8 @@ import { dirname, extname } from "node:path";
 import type { Command } from "@commander-js/extra-typings";
 import { ParameterError } from "../src/errors.js";
 import { defaultOutputUnit } from "../src/export/outputUnit.js";
-import { profileToCsv } from "../src/export/profileToCsv.js";
-import { profileToJson } from "../src/export/profileToJson.js";
+import { profileCsvChunks } from "../src/export/profileToCsv.js";
+import { profileJsonChunks } from "../src/export/profileToJson.js";
 import { sameFile } from "../src/export/sameFile.js";
 import { writeFileAtomic, type FileData } from "../src/export/writeFileAtomic.js";
 import { fsProblem } from "../src/import/fsProblem.js";
@@ -212,11 +212,12 @@ export async function runProfile(req: ProfileRequest, io: Io, where = WHERE): Pr
 
   const outUnit = req.outUnit ?? defaultOutputUnit(trace.source);
   const json = req.out !== "-" && extname(req.out).toLowerCase() === ".json";
-  const text = json ? profileToJson(profile, { unit: outUnit, seed: req.seed }) : profileToCsv(profile, { unit: outUnit, seed: req.seed });
+  const chunks = json ? profileJsonChunks(profile, { unit: outUnit, seed: req.seed }) : profileCsvChunks(profile, { unit: outUnit, seed: req.seed });
   if (req.out === "-") {
-    io.stdout(text);
+    const decoder = new TextDecoder();
+    for (const chunk of chunks) io.stdout(decoder.decode(chunk, { stream: true }));
   } else {
-    await writeOutput(req.out, text, req.input, where);
+    await writeOutput(req.out, chunks, req.input, where);
   }
 
   if (!req.quiet) {
