@@ -5,15 +5,14 @@
  */
 import type { Command } from "@commander-js/extra-typings";
 import { ParameterError } from "../src/errors.js";
-import { MESH_FORMATS, type MeshFormat } from "../src/export/meshToBytes.js";
+import { MESH_FORMATS, type MeshFormat } from "../src/export/meshFormats.js";
 import { stageOutputDir } from "../src/export/stageOutputDir.js";
 import type { Material } from "../src/physics/types.js";
-import { viewerScript } from "../src/report/viewerScript.js";
 import { PER_METRE } from "../src/types.js";
 import type { Io } from "./io.js";
 import { brief, parseChoiceOption, parseCountOption, parseLengthOption, parseLengthUnitOption, parseSeedOption } from "./options.js";
 import { checkInputFlags, DEFAULT_BOOTSTRAP, DEFAULT_SEED, HELP, INPUT_HELP, readOptionsOf, type InputFlags, type InputRequest } from "./profile.js";
-import { readMaterialFile, runWireJob, type PipelineSettings, type WireJob, type WireJobResult } from "./wireJob.js";
+import type { PipelineSettings, WireJob, WireJobResult } from "./wireJob.js";
 
 const WHERE = "analyze";
 
@@ -108,6 +107,8 @@ export function describeResult(name: string, r: WireJobResult): string {
 export async function runAnalyze(input: string, out: string, req: PipelineRequest, io: Io): Promise<WireJobResult> {
   const staged = await stageOutputDir(out, { force: req.force, protect: [input, ...(req.materialFile !== null ? [req.materialFile] : [])], where: WHERE });
   try {
+    // the pipeline (three.js, ajv, the report bundle) loads only now, so --help and option errors stay quick
+    const [{ readMaterialFile, runWireJob }, { viewerScript }] = await Promise.all([import("./wireJob.js"), import("../src/report/viewerScript.js")]);
     const material = req.materialFile !== null ? await readMaterialFile(req.materialFile) : null;
     const result = await runWireJob(jobOf(req, input, material, staged.path, io), await viewerScript());
     await staged.commit();

@@ -15,13 +15,11 @@ import { summaryToCsv, type SummaryRow } from "../src/export/summaryToCsv.js";
 import { fsProblem } from "../src/import/fsProblem.js";
 import { TRACE_READERS } from "../src/import/traceReaders.js";
 import type { Material } from "../src/physics/types.js";
-import { viewerScript } from "../src/report/viewerScript.js";
 import { checkPipelineFlags, PIPELINE_HELP, type PipelineFlags, type PipelineRequest } from "./analyze.js";
-import { runTask, type WorkerReply, type WorkerSetup, type WorkerTask } from "./batchWorker.js";
+import type { WorkerReply, WorkerSetup, WorkerTask } from "./batchWorker.js";
 import type { Io } from "./io.js";
 import { parseCountOption } from "./options.js";
 import { DEFAULT_BOOTSTRAP, DEFAULT_SEED, HELP } from "./profile.js";
-import { readMaterialFile } from "./wireJob.js";
 
 const WHERE = "batch";
 
@@ -165,6 +163,7 @@ function workerEntry(): { entry: URL | string; eval: boolean } {
  */
 export async function runPool(tasks: readonly WorkerTask[], setup: WorkerSetup, jobs: number, onReply: (r: WorkerReply) => void): Promise<void> {
   if (jobs <= 1 || tasks.length <= 1) {
+    const { runTask } = await import("./batchWorker.js");
     for (const t of tasks) onReply(await runTask(t, setup));
     return;
   }
@@ -220,6 +219,7 @@ export interface BatchOptions {
 export async function runBatch(files: readonly string[], out: string, req: PipelineRequest, options: BatchOptions, io: Io, material?: Material | null): Promise<SummaryRow[]> {
   const staged = await stageOutputDir(out, { force: req.force, protect: [...files, ...(req.materialFile !== null ? [req.materialFile] : [])], where: options.where ?? WHERE });
   try {
+    const [{ readMaterialFile }, { viewerScript }] = await Promise.all([import("./wireJob.js"), import("../src/report/viewerScript.js")]);
     const mat = material !== undefined ? material : req.materialFile !== null ? await readMaterialFile(req.materialFile) : null;
     const setup: WorkerSetup = { twistlineBatch: true, viewerJs: await viewerScript(), material: mat, request: req, where: options.where ?? WHERE };
     const names = folderNames(files);

@@ -118,7 +118,7 @@ export async function readTracesFile(path: string, options: ReadTraceOptions = {
     if (format === undefined) throw new InputError(file, null, "format", "cannot tell the format of standard input; name it");
   }
   const reader = readers.get(format) as TraceReader;
-  const traces = reader.kind === "binary" ? reader.parse(bytes, file, parseOptions) : reader.parse(decodeText(bytes, file), file, parseOptions);
+  const traces = await (reader.kind === "binary" ? reader.parse(bytes, file, parseOptions) : reader.parse(decodeText(bytes, file), file, parseOptions));
   if (traces.length === 0) throw new InputError(file, null, "wires", "none found");
   return traces;
 }
