@@ -1,6 +1,9 @@
 /** Significant digits kept in outputs: far finer than any fitted estimate, and round-trip stable. */
 export const OUTPUT_DIGITS = 12;
 
+/** Longest text {@link writeNumber} writes for one number ("-1.23456789012e-300" and the like). */
+export const MAX_NUMBER_BYTES = 24;
+
 /** Exact powers of ten 10^0 .. 10^22 (every one of them is a double exactly). */
 const POW10 = Float64Array.from({ length: 23 }, (_, i) => Number(`1e${i}`));
 /** Half-width of the band around a rounding tie where the fast path defers to toPrecision. */
@@ -40,6 +43,16 @@ function twelveDigits(r: number): string {
  */
 export function formatNumber(value: number): string {
   if (Number.isInteger(value) && value < 1e12 && value > -1e12) return String(value === 0 ? 0 : value);
+  if (textBuffer !== null) return textBuffer.latin1Slice(0, writeNumber(textBuffer, 0, value, "NaN"));
+  return formatByString(value);
+}
+
+/** Node's Buffer (its latin1Slice makes a short ASCII string fastest), or null in a browser. */
+const textBuffer: (Uint8Array & { latin1Slice(start: number, end: number): string }) | null =
+  typeof Buffer === "undefined" ? null : (Buffer.alloc(MAX_NUMBER_BYTES) as unknown as Uint8Array & { latin1Slice(start: number, end: number): string });
+
+/** {@link formatNumber} by string operations, where there is no Buffer. */
+export function formatByString(value: number): string {
   if (value !== value) return "NaN";
   if (!Number.isFinite(value)) return value > 0 ? "Infinity" : "-Infinity";
   const a = value < 0 ? -value : value;
@@ -76,8 +89,6 @@ export function jsonNumberText(value: number): string {
   return Number.isFinite(value) ? formatNumber(value) : "null";
 }
 
-/** Longest text {@link writeNumber} writes for one number ("-1.23456789012e-300" and the like). */
-export const MAX_NUMBER_BYTES = 24;
 
 const scratch = new Uint8Array(12);
 /** ASCII of 0000 .. 9999, four bytes each: three lookups give the 12 digits of a rounded value. */
@@ -109,6 +120,16 @@ function writeUint(out: Uint8Array, pos: number, v: number): number {
   while (scratch[i] === 48) ++i;
   for (; i < 12; ++i) out[pos++] = scratch[i];
   return pos;
+}
+
+/** The 12 digits of three 4-digit groups into `out` at `pos`. */
+function put12At(out: Uint8Array, pos: number, g0: number, g1: number, g2: number): void {
+  let o = 4 * g0;
+  out[pos] = QUAD[o]; out[pos + 1] = QUAD[o + 1]; out[pos + 2] = QUAD[o + 2]; out[pos + 3] = QUAD[o + 3];
+  o = 4 * g1;
+  out[pos + 4] = QUAD[o]; out[pos + 5] = QUAD[o + 1]; out[pos + 6] = QUAD[o + 2]; out[pos + 7] = QUAD[o + 3];
+  o = 4 * g2;
+  out[pos + 8] = QUAD[o]; out[pos + 9] = QUAD[o + 1]; out[pos + 10] = QUAD[o + 2]; out[pos + 11] = QUAD[o + 3];
 }
 
 /** The 12 digits of three 4-digit groups into `scratch`. */
@@ -146,34 +167,41 @@ export function writeNumber(out: Uint8Array, pos: number, value: number, nan: st
   if (frac > 0.5 - TIE_BAND && frac < 0.5 + TIE_BAND) return writeAscii(out, pos, slow(value));
   if (frac > 0.5) r += 1;
   if (r >= 1e12) { r = 1e11; e += 1; }
-  // the 12 digits of r, most significant first, in scratch; k = digits kept after dropping trailing zeros
-  const g0 = Math.floor(r * 1e-8), rest = r - g0 * 1e8, g1 = Math.floor(rest * 1e-4);
-  put12(g0, g1, rest - g1 * 1e4);
-  let k = 12;
-  while (scratch[k - 1] === 48) --k;
+  // the 12 digits of r go straight to their place; trailing zeros are then taken back
+  // (1e-8 and 1e-4 are slightly above their true values, so these floors are exact for r < 1e12)
+  const g0 = Math.floor(r * 1e-8), rest = r - g0 * 1e8, g1 = Math.floor(rest * 1e-4), g2 = rest - g1 * 1e4;
   if (value < 0) out[pos++] = 45;
-  const n = e + 1;
-  if (k <= n && n <= 21) {
-    for (let i = 0; i < k; ++i) out[pos++] = scratch[i];
-    for (let i = k; i < n; ++i) out[pos++] = 48;
-  } else if (0 < n && n <= 21) {
-    for (let i = 0; i < n; ++i) out[pos++] = scratch[i];
-    out[pos++] = 46;
-    for (let i = n; i < k; ++i) out[pos++] = scratch[i];
-  } else if (-6 < n && n <= 0) {
+  const n = e + 1; // value = 0.d1d2...d12 x 10^n, as in ECMAScript Number::toString
+  if (n > 0 && n <= 21) {
+    put12At(out, pos, g0, g1, g2);
+    if (n >= 12) { // an integer of n digits: all 12, then zeros
+      pos += 12;
+      for (let i = 12; i < n; ++i) out[pos++] = 48;
+      return pos;
+    }
+    for (let i = pos + 11; i >= pos + n; --i) out[i + 1] = out[i]; // open a place for the point
+    out[pos + n] = 46;
+    let end = pos + 13;
+    while (out[end - 1] === 48) --end;
+    return out[end - 1] === 46 ? end - 1 : end;
+  }
+  if (n <= 0 && n > -6) {
     out[pos++] = 48;
     out[pos++] = 46;
     for (let i = n; i < 0; ++i) out[pos++] = 48;
-    for (let i = 0; i < k; ++i) out[pos++] = scratch[i];
-  } else {
-    out[pos++] = scratch[0];
-    if (k > 1) {
-      out[pos++] = 46;
-      for (let i = 1; i < k; ++i) out[pos++] = scratch[i];
-    }
-    out[pos++] = 101;
-    out[pos++] = n - 1 >= 0 ? 43 : 45;
-    pos = writeUint(out, pos, Math.abs(n - 1));
+    put12At(out, pos, g0, g1, g2);
+    let end = pos + 12;
+    while (out[end - 1] === 48) --end;
+    return end;
   }
-  return pos;
+  // exponent form: d.ddd...e+x
+  put12At(out, pos + 1, g0, g1, g2);
+  out[pos] = out[pos + 1];
+  out[pos + 1] = 46;
+  let end = pos + 13;
+  while (out[end - 1] === 48) --end;
+  pos = out[end - 1] === 46 ? end - 1 : end;
+  out[pos++] = 101;
+  out[pos++] = n - 1 >= 0 ? 43 : 45;
+  return writeUint(out, pos, Math.abs(n - 1));
 }

@@ -1,6 +1,6 @@
 import fc from "fast-check";
 import { describe, expect, it } from "vitest";
-import { formatNumber, jsonNumber, jsonNumberText, MAX_NUMBER_BYTES, writeNumber } from "../../src/export/formatNumber.js";
+import { formatByString, formatNumber, jsonNumber, jsonNumberText, MAX_NUMBER_BYTES, writeNumber } from "../../src/export/formatNumber.js";
 import { chunksToText, RowBuffer } from "../../src/export/tableChunks.js";
 
 // Reference: the ECMAScript built-ins themselves (Number.prototype.toPrecision, then Number::toString,
@@ -17,6 +17,7 @@ describe("formatNumber(value) and writeNumber(out, pos, value)", () => {
       fc.property(fc.double(), (v) => {
         expect(formatNumber(v)).toBe(reference(v));
         expect(bytes(v)).toBe(reference(v));
+        expect(formatByString(v)).toBe(reference(v)); // the path without Node's Buffer
       }),
       { seed: 12, numRuns: 100_000 },
     );
@@ -32,6 +33,7 @@ describe("formatNumber(value) and writeNumber(out, pos, value)", () => {
     for (const v of edges) {
       expect(formatNumber(v), String(v)).toBe(reference(v));
       expect(bytes(v), String(v)).toBe(reference(v));
+      expect(formatByString(v), String(v)).toBe(reference(v));
     }
   });
 
