@@ -100,6 +100,26 @@ export function describeResult(name: string, r: WireJobResult): string {
 }
 
 /**
+ * Progress of one analysis on a terminal: one status line, redrawn at each stage with the time so
+ * far, and erased at the end (nothing at all when stderr is not a terminal, or with --quiet).
+ */
+export function statusLine(terminal: boolean, io: Io, now: () => number = () => performance.now()): { stage(text: string): void; end(): void } {
+  const t0 = now();
+  let drawn = false;
+  return {
+    stage(text) {
+      if (!terminal) return;
+      io.stderr(`\rtwistline: analyze: ${text} (${((now() - t0) / 1000).toFixed(1)} s)\x1b[K`);
+      drawn = true;
+    },
+    end() {
+      if (drawn) io.stderr("\r\x1b[K");
+      drawn = false;
+    },
+  };
+}
+
+/**
  * Runs analyze: checks the output folder first (refused when it exists and is not empty, unless
  * --force), reads the material and the wire, runs the pipeline, writes everything into a temporary
  * folder and renames it into place; on any error the temporary folder is removed and nothing is left.
@@ -110,7 +130,13 @@ export async function runAnalyze(input: string, out: string, req: PipelineReques
     // the pipeline (three.js, ajv, the report bundle) loads only now, so --help and option errors stay quick
     const [{ readMaterialFile, runWireJob }, { viewerScript }] = await Promise.all([import("./wireJob.js"), import("../src/report/viewerScript.js")]);
     const material = req.materialFile !== null ? await readMaterialFile(req.materialFile) : null;
-    const result = await runWireJob(jobOf(req, input, material, staged.path, io), await viewerScript());
+    const status = statusLine(req.quiet ? false : io.stderrIsTTY === true, io);
+    let result: WireJobResult;
+    try {
+      result = await runWireJob(jobOf(req, input, material, staged.path, io), await viewerScript(), status.stage);
+    } finally {
+      status.end();
+    }
     await staged.commit();
     if (!req.quiet) {
       const d = result.outputs.document;
@@ -157,7 +183,7 @@ export function addAnalyzeCommand(program: Command, io: Io): void {
     .option("--bootstrap <n>", `bootstrap replicates for the 95% bands (default: ${DEFAULT_BOOTSTRAP})`)
     .option("--seed <n>", `seed of the bootstrap and the model's draws, 0 to 4294967295 (default: ${DEFAULT_SEED})`)
     .option("--step <length>", "profile sampling step, with its unit (default: one sample per input point)")
-    .option("--out-unit <unit>", "length unit of every output, nm, um, m or A (default: the input unit; um for px)")
+    .option("--out-unit <unit>", "length unit of every output, nm, um, m or A (default: the input unit; for px the unit of the pixel size: nm below 1 um, else um)")
     .option("--format <format>", HELP.format)
     .option("--wire <n>", HELP.wire)
     .option("--branches <policy>", HELP.branches)

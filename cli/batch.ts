@@ -289,7 +289,7 @@ export function addBatchCommand(program: Command, io: Io): void {
     .option("--bootstrap <n>", `bootstrap replicates for the 95% bands (default: ${DEFAULT_BOOTSTRAP})`)
     .option("--seed <n>", `seed of the bootstrap and the model's draws (default: ${DEFAULT_SEED})`)
     .option("--step <length>", "profile sampling step, with its unit (default: one sample per input point)")
-    .option("--out-unit <unit>", "length unit of every output (default: each input's unit; um for px)")
+    .option("--out-unit <unit>", "length unit of every output (default: each input's unit; for px the unit of the pixel size: nm below 1 um, else um)")
     .option("--format <format>", HELP.format)
     .option("--branches <policy>", HELP.branches)
     .option("--force", PIPELINE_HELP.force)

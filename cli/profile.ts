@@ -115,7 +115,7 @@ export function checkInputFlags(where: string, input: string, flags: InputFlags)
   const format = req.format ?? (input === "-" ? null : formatOfPath(input));
   if (format === "svg") {
     if (req.unit !== undefined && req.unit !== "px") {
-      throw new ParameterError(where, "--unit", `an SVG drawing is in user units: use --pixel-size (metres per user unit) or leave --unit out (got --unit ${req.unit})`);
+      throw new ParameterError(where, "--unit", `an SVG drawing is in user units: use --pixel-size (the size of one user unit, e.g. 2.5nm) or leave --unit out (got --unit ${req.unit})`);
     }
     return req;
   }
@@ -193,6 +193,25 @@ export async function writeOutput(out: string, data: FileData, input: string, wh
   }
 }
 
+/** Fewest samples a --step may give: as many as a quintic fit needs points. */
+export const MIN_STEP_SAMPLES = 6;
+
+/**
+ * Refuses a --step that leaves fewer than {@link MIN_STEP_SAMPLES} samples along the fitted wire
+ * (a step longer than the wire used to give a one-row profile and exit 0).
+ * @throws {ParameterError} "<where>: --step: 300 nm gives 1 sample along a wire 120 nm long; ..."
+ */
+export function checkStepSamples(where: string, step: number | undefined, profile: Profile, unit: LengthUnit): void {
+  if (step === undefined || profile.n >= MIN_STEP_SAMPLES) return;
+  const k = PER_METRE[unit];
+  const most = profile.length / (profile.closed ? MIN_STEP_SAMPLES : MIN_STEP_SAMPLES - 1);
+  throw new ParameterError(
+    where, "--step",
+    `${brief(step * k)} ${unit} gives ${profile.n} ${profile.n === 1 ? "sample" : "samples"} along a${profile.closed ? " closed" : ""} wire ${brief(profile.length * k)} ${unit} long; ` +
+      `use at most ${brief(most * k)} ${unit} (${MIN_STEP_SAMPLES} samples or more)`,
+  );
+}
+
 /**
  * Runs the profile stage: read the trace, fit, write CSV or JSON (by the `--out` extension)
  * atomically, and print a one-line summary on stderr unless quiet.
@@ -211,6 +230,7 @@ export async function runProfile(req: ProfileRequest, io: Io, where = WHERE): Pr
   const profile: Profile = { ...fitted, diagnostics };
 
   const outUnit = req.outUnit ?? defaultOutputUnit(trace.source);
+  checkStepSamples(where, req.step, profile, outUnit);
   const json = req.out !== "-" && extname(req.out).toLowerCase() === ".json";
   const chunks = json ? profileJsonChunks(profile, { unit: outUnit, seed: req.seed }) : profileCsvChunks(profile, { unit: outUnit, seed: req.seed });
   if (req.out === "-") {
@@ -269,7 +289,7 @@ export function addProfileCommand(program: Command, io: Io): void {
     .option("--bootstrap <n>", `bootstrap replicates for the 95% bands, 0 for none (default: ${DEFAULT_BOOTSTRAP})`)
     .option("--seed <n>", `seed of the bootstrap random stream, 0 to 4294967295 (default: ${DEFAULT_SEED})`)
     .option("--step <length>", "resample at this arc-length step, with its unit, e.g. 5nm (default: one sample per input point)")
-    .option("--out-unit <unit>", "length unit of the output, nm, um, m or A; kappa and tau in 1/unit (default: the input unit; um for px)")
+    .option("--out-unit <unit>", "length unit of the output, nm, um, m or A; kappa and tau in 1/unit (default: the input unit; for px the unit of the pixel size: nm below 1 um, else um)")
     .option("--format <format>", HELP.format)
     .option("--wire <n>", HELP.wire)
     .option("--branches <policy>", HELP.branches)

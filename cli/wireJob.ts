@@ -14,6 +14,7 @@ import { parseMaterial } from "../src/physics/parseMaterial.js";
 import type { Material } from "../src/physics/types.js";
 import type { LengthUnit, Trace } from "../src/types.js";
 import { jsonErrorAt } from "./jsonErrorAt.js";
+import { checkStepSamples } from "./profile.js";
 
 /** Everything needed to analyse one wire into a folder (plain data: it crosses to worker threads). */
 /** Fit and output settings shared by the analyze command's request and a wire job; lengths in metres. */
@@ -119,8 +120,10 @@ export async function readMaterialFile(path: string): Promise<Material> {
  * memory, then write the files into `job.dir`. The caller stages `job.dir` and commits or removes it.
  * @throws {InputError} bad data. {@link ParameterError} bad options. Anything else is a bug.
  */
-export async function runWireJob(job: WireJob, viewerJs: string): Promise<WireJobResult> {
+export async function runWireJob(job: WireJob, viewerJs: string, onStage: (stage: string) => void = () => undefined): Promise<WireJobResult> {
+  if (job.trace === undefined) onStage(`reading ${job.input === "-" ? "standard input" : job.input}`);
   const trace = job.trace ?? (await readTraceFile(job.input, job.readOptions));
+  onStage(`fitting ${trace.xyz.length / 3} points${job.bootstrap > 0 ? ` with ${job.bootstrap} bootstrap replicates` : ""}, then stretches${job.material !== null ? " and the model" : ""}`);
   const options: Parameters<typeof analyzeTrace>[1] = {
     bootstrap: job.bootstrap,
     seed: job.seed,
@@ -130,6 +133,8 @@ export async function runWireJob(job: WireJob, viewerJs: string): Promise<WireJo
   };
   const analysis = analyzeTrace(trace, options);
   const unit = job.outUnit ?? defaultOutputUnit(trace.source);
+  checkStepSamples(job.where ?? "analyze", job.step, analysis.profile, unit);
+  onStage("building the chain, mesh and report");
   let outputs: WireOutputs;
   try {
     outputs = await buildWireOutputs(analysis, {
@@ -147,6 +152,7 @@ export async function runWireJob(job: WireJob, viewerJs: string): Promise<WireJo
     }
     throw e;
   }
+  onStage("writing the files");
   for (const f of outputs.files) {
     try {
       await writeFileAtomic(join(job.dir, f.name), f.data);

@@ -19,7 +19,7 @@ const MAX_LISTED_OUTLIERS = 50;
  * 1/unit, t n b are unit vectors, flags the bit set of src/types.ts. Numbers carry 12 significant
  * digits in shortest form; undefined values are `NaN`. Line ends are `\n`.
  *
- * Units: `options.unit` (default: the input's unit; "um" for pixel inputs).
+ * Units: `options.unit` (default: the input's unit; for pixels, see defaultOutputUnit).
  * Cost: O(n), about 20 numbers per sample; see {@link profileCsvChunks} for tables too long for one string.
  * @throws {ParameterError} an output unit that is not a length unit.
  * @example profileToCsv(profile, { unit: "nm", seed: 1 }).split("\n").find((l) => !l.startsWith("#")) // "s,x,y,z,kappa,..."

@@ -175,7 +175,7 @@ async function readSvg(text: string, file: string, options: TraceReadOptions): P
   if (options.unit !== undefined && options.unit !== "px") {
     throw new InputError(
       file, null, "unit",
-      `an SVG drawing is in user units (px), not "${options.unit}": calibrate it with a pixel size (metres per user unit) or a physical width on its root <svg>`,
+      `an SVG drawing is in user units (px), not "${options.unit}": calibrate it with --pixel-size (the size of one user unit, e.g. 2.5nm) or a physical width on its root <svg>`,
     );
   }
   const svgOptions: Mutable<SvgOptions> = {};
