@@ -13,7 +13,7 @@ async function readStdin(): Promise<Uint8Array> {
 for (const [signal, code] of [["SIGINT", 130], ["SIGTERM", 143], ["SIGHUP", 129]] as const) {
   process.on(signal, () => {
     removeLiveSiblingsSync();
-    process.stderr.write(`twistline: stopped by ${signal}; nothing was written\n`);
+    process.stderr.write(`twistline: stopped by ${signal}; its temporary files were removed\n`);
     process.exit(code);
   });
 }

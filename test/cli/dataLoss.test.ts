@@ -98,7 +98,25 @@ describe("temporary files", () => {
     expect(readdirSync(dir).some((f) => f.startsWith(".out."))).toBe(true);
     child.kill("SIGTERM");
     expect(await exited).toBe(143);
-    expect(stderr).toBe("twistline: stopped by SIGTERM; nothing was written\n");
+    expect(stderr).toBe("twistline: stopped by SIGTERM; its temporary files were removed\n");
     expect(readdirSync(dir)).toEqual(["big.csv"]);
   }, 60_000);
+
+  it("SIGTERM while profile is writing its CSV removes the half-written temporary file", async () => {
+    const dir = join(root, "killed-write");
+    mkdirSync(dir);
+    const big = write(join(dir, "big.csv"), helixCsv(47, 150_000));
+    const child = spawn(process.execPath, ["--import", "tsx", "cli/bin.ts", "profile", big, "--out", join(dir, "p.csv"), "--bootstrap", "0"], { cwd: repo, stdio: ["ignore", "ignore", "pipe"] });
+    const exited = new Promise<number | null>((resolve) => child.on("exit", (code) => resolve(code)));
+    let seen = false;
+    // the temporary file exists only while the table is written, after the fit
+    for (let i = 0; i < 12_000 && !seen && child.exitCode === null; ++i) {
+      seen = readdirSync(dir).some((f) => f.startsWith(".p.csv.") && f.endsWith(".tmp"));
+      if (!seen) await new Promise((r) => setTimeout(r, 5));
+    }
+    expect(seen).toBe(true);
+    child.kill("SIGTERM");
+    expect(await exited).toBe(143);
+    expect(readdirSync(dir)).toEqual(["big.csv"]);
+  }, 120_000);
 });
