@@ -159,7 +159,7 @@ export const PIPELINE_HELP = {
   spacing: "spacing of chain.csv sites, with its unit, e.g. 1nm (default: a quarter of the resolution length, and at most a quarter of the magnetic length with a material)",
   mesh: `tube mesh format: ${MESH_FORMATS.join(", ")} (default: ${DEFAULT_MESH})`,
   radius: "tube radius, with its unit (default: the radius measured at import for meshes, else half the material thickness, else 1% of the bounding-box diagonal)",
-  force: "replace an existing output folder (only one holding nothing but twistline outputs)",
+  force: "replace an existing output folder, only one twistline wrote (marked by its .twistline-owned.json) with nothing added since",
 } as const;
 
 /** Adds `analyze` to the program. */

@@ -9,7 +9,7 @@
  */
 import { randomBytes } from "node:crypto";
 import { rmSync } from "node:fs";
-import { readdir, rm } from "node:fs/promises";
+import { readdir, rm, stat } from "node:fs/promises";
 import { basename, dirname, join } from "node:path";
 
 /** Bytes one file name may take on common file systems (ext4, xfs, btrfs, APFS, NTFS in UTF-16 units). */
@@ -19,6 +19,9 @@ export const NAME_MAX_BYTES = 255;
 export type SiblingKind = "tmp" | "old";
 
 const live = new Set<string>();
+
+/** Age after which a sibling named without a pid (older versions) counts as left behind. */
+const LEGACY_AGE_MS = 3600_000;
 
 /** The target's name cut to at most `maxBytes` UTF-8 bytes, never inside a character. */
 function cutName(name: string, maxBytes: number): string {
@@ -88,7 +91,8 @@ function alive(pid: number): boolean {
 
 /**
  * Removes the siblings of `target` that a process no longer running left behind (a run killed
- * with SIGKILL, or a power cut). Siblings of living processes (a concurrent run) are kept.
+ * with SIGKILL, or a power cut). Siblings of living processes (a concurrent run) are kept; the
+ * pid-less names of older versions (`.<name>.<12 hex>.tmp`) are removed when an hour old.
  * Returns the names removed. Never throws: a sibling that cannot be removed stays.
  */
 export async function removeStaleSiblings(target: string): Promise<string[]> {
@@ -98,10 +102,17 @@ export async function removeStaleSiblings(target: string): Promise<string[]> {
   const removed: string[] = [];
   for (const name of names) {
     if (!name.startsWith(prefix)) continue;
-    const m = /^(\d{1,10})-[0-9a-f]{12}\.(?:tmp|old)$/.exec(name.slice(prefix.length));
-    if (m === null) continue;
-    const pid = Number(m[1]);
-    if (pid === process.pid || alive(pid)) continue;
+    const rest = name.slice(prefix.length);
+    const m = /^(\d{1,10})-[0-9a-f]{12}\.(?:tmp|old)$/.exec(rest);
+    if (m !== null) {
+      const pid = Number(m[1]);
+      if (pid === process.pid || alive(pid)) continue;
+    } else {
+      // the names of twistline 0.1.0 carried no pid: removed once they are an hour old
+      if (!/^[0-9a-f]{12}\.(?:tmp|old)$/.test(rest)) continue;
+      const info = await stat(join(folder, name)).catch(() => null);
+      if (info === null || Date.now() - info.mtimeMs < LEGACY_AGE_MS) continue;
+    }
     try {
       await rm(join(folder, name), { recursive: true, force: true });
       removed.push(name);

@@ -1,5 +1,5 @@
 import { spawnSync } from "node:child_process";
-import { existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, writeFileSync } from "node:fs";
+import { existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, utimesSync, writeFileSync } from "node:fs";
 import { tmpdir } from "node:os";
 import { join } from "node:path";
 import { describe, expect, it } from "vitest";
@@ -86,9 +86,16 @@ describe("stageOutputDir(target, options)", () => {
     mkdirSync(join(root, stale));
     writeFileSync(join(root, stale, "profile.csv"), "half");
     mkdirSync(join(root, living));
+    const legacyOld = ".out.0123456789ab.tmp", legacyNew = ".out.ba9876543210.tmp"; // names without a pid (version 0.1.0)
+    mkdirSync(join(root, legacyOld));
+    mkdirSync(join(root, legacyNew));
+    const twoHoursAgo = new Date(Date.now() - 2 * 3600_000);
+    utimesSync(join(root, legacyOld), twoHoursAgo, twoHoursAgo);
     const st = await stageOutputDir(out, { force: false, where: "analyze" });
     expect(existsSync(join(root, stale))).toBe(false);
     expect(existsSync(join(root, living))).toBe(true);
+    expect(existsSync(join(root, legacyOld))).toBe(false);
+    expect(existsSync(join(root, legacyNew))).toBe(true); // could be a run of the old version still going
     await st.abort();
   });
 
