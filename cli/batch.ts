@@ -63,7 +63,11 @@ export async function expandInputs(args: readonly string[]): Promise<string[]> {
       }
       continue;
     }
-    const info = await stat(arg).catch(() => null);
+    const info = await stat(arg).catch((e: unknown) => {
+      const problem = fsProblem(e);
+      if (problem === null || (e as { code?: unknown }).code === "ENOENT") return null;
+      throw new ParameterError(WHERE, "<inputs>", `${JSON.stringify(arg)}: ${problem}`);
+    });
     if (info === null) throw new ParameterError(WHERE, "<inputs>", `${JSON.stringify(arg)} does not exist`);
     if (info.isDirectory()) {
       for (const n of (await readdir(arg)).sort()) {

@@ -26,6 +26,11 @@ describe("inputs the file system refuses: exit 1 with one line", () => {
     expect(r).toEqual({ code: 1, stdout: "", stderr: `twistline: ${join(root, "loop-a.csv")}: file: too many levels of symbolic links (a link loop?)\n` });
   });
 
+  it("a symbolic link loop given to batch", async () => {
+    const r = await run(["batch", join(root, "loop-a.csv"), "--out", join(root, "b-out")]);
+    expect(r).toEqual({ code: 1, stdout: "", stderr: `twistline: batch: <inputs>: ${JSON.stringify(join(root, "loop-a.csv"))}: too many levels of symbolic links (a link loop?)\n` });
+  });
+
   it("a name longer than the file system allows", async () => {
     const long = join(root, `${"n".repeat(300)}.csv`);
     const r = await run(["profile", long, "--out", join(root, "o.csv")]);
