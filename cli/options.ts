@@ -62,3 +62,18 @@ export function parseChoiceOption<T extends string>(where: string, option: strin
 export function brief(value: number): string {
   return Number.isFinite(value) ? String(Number(value.toPrecision(4))) : String(value);
 }
+
+/**
+ * Runs `f`, renaming a ParameterError of the fit about an option the user gave ("profile: step: ...")
+ * after the command and its flag ("analyze: --step: ..."), so the message names what was typed.
+ */
+export function withOptionNames<T>(where: string, f: () => T): T {
+  try {
+    return f();
+  } catch (e) {
+    if (e instanceof ParameterError && e.where === "profile" && (e.option === "step" || e.option === "bootstrap" || e.option === "seed")) {
+      throw new ParameterError(where, `--${e.option}`, e.message.replace(/^profile: \w+: /, ""));
+    }
+    throw e;
+  }
+}

@@ -20,7 +20,7 @@ import { DEFAULT_INPUT_UNIT } from "../src/import/types.js";
 import { PER_METRE, type InputUnit, type LengthUnit, type Profile, type Trace } from "../src/types.js";
 import type { Io } from "./io.js";
 import {
-  brief, parseChoiceOption, parseCountOption, parseInputUnitOption, parseLengthOption, parseLengthUnitOption, parseSeedOption,
+  brief, withOptionNames, parseChoiceOption, parseCountOption, parseInputUnitOption, parseLengthOption, parseLengthUnitOption, parseSeedOption,
 } from "./options.js";
 
 /** Bootstrap replicates when --bootstrap is not given. */
@@ -225,7 +225,7 @@ export async function runProfile(req: ProfileRequest, io: Io, where = WHERE): Pr
   const fitOptions: { -readonly [K in keyof ProfileOptions]: ProfileOptions[K] } = { bootstrap: req.bootstrap, seed: req.seed };
   if (req.closed !== undefined) fitOptions.closed = req.closed;
   if (req.step !== undefined) fitOptions.step = req.step;
-  const fitted = fitProfile(trace, fitOptions);
+  const fitted = withOptionNames(where, () => fitProfile(trace, fitOptions));
   const diagnostics = [...trace.diagnostics, ...fitted.diagnostics.filter((d) => !trace.diagnostics.includes(d))];
   const profile: Profile = { ...fitted, diagnostics };
 

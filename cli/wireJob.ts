@@ -14,6 +14,7 @@ import { parseMaterial } from "../src/physics/parseMaterial.js";
 import type { Material } from "../src/physics/types.js";
 import type { LengthUnit, Trace } from "../src/types.js";
 import { jsonErrorAt } from "./jsonErrorAt.js";
+import { withOptionNames } from "./options.js";
 import { checkStepSamples } from "./profile.js";
 
 /** Everything needed to analyse one wire into a folder (plain data: it crosses to worker threads). */
@@ -131,7 +132,7 @@ export async function runWireJob(job: WireJob, viewerJs: string, onStage: (stage
     ...(job.closed !== undefined ? { closed: job.closed } : {}),
     ...(job.step !== undefined ? { step: job.step } : {}),
   };
-  const analysis = analyzeTrace(trace, options);
+  const analysis = withOptionNames(job.where ?? "analyze", () => analyzeTrace(trace, options));
   const unit = job.outUnit ?? defaultOutputUnit(trace.source);
   checkStepSamples(job.where ?? "analyze", job.step, analysis.profile, unit);
   onStage("building the chain, mesh and report");
@@ -147,8 +148,10 @@ export async function runWireJob(job: WireJob, viewerJs: string, onStage: (stage
     });
   } catch (e) {
     // the default spacing comes from the fit: a check on it failing is about the data, not an option the user gave
-    if (e instanceof ParameterError && e.where === "resampleWire" && job.spacing === undefined) {
-      throw new InputError(trace.source.file, null, "profile", `the fit gives no usable chain spacing (${e.message.replace(/^resampleWire: spacing: /, "")}); check the trace, or give --spacing`);
+    if (e instanceof ParameterError && e.where === "resampleWire") {
+      const problem = e.message.replace(/^resampleWire: spacing: /, "");
+      if (job.spacing !== undefined) throw new ParameterError(job.where ?? "analyze", "--spacing", problem);
+      throw new InputError(trace.source.file, null, "profile", `the fit gives no usable chain spacing (${problem}); check the trace, or give --spacing`);
     }
     throw e;
   }

@@ -26,6 +26,20 @@ describe("--step longer than the wire", () => {
   });
 });
 
+describe("checks inside the fit name the option the user typed", () => {
+  it("a --step far too fine: profile: --step, not the fit's own parameter name", async () => {
+    const r = await run(["profile", arc, "--step", "1e-30nm", "--out", join(root, "fine.csv"), "--bootstrap", "0"]);
+    expect(r.code).toBe(1);
+    expect(r.stderr).toMatch(/^twistline: profile: --step: gives [\d.e+]+ samples; use a larger step\n$/);
+  });
+
+  it("a --spacing far too fine: analyze: --spacing, not resampleWire", async () => {
+    const r = await run(["analyze", arc, "--spacing", "1e-30nm", "--out", join(root, "fine-out"), "--bootstrap", "0"]);
+    expect(r.code).toBe(1);
+    expect(r.stderr).toMatch(/^twistline: analyze: --spacing: gives [\d.e+]+ sites \(more than 2000000\); use a larger spacing\n$/);
+  });
+});
+
 describe("reading back the tool's own outputs", () => {
   it("profile reads the profile.csv and chain.csv that analyze wrote (their # header lines are no error)", async () => {
     const out = join(root, "own");
