@@ -13,6 +13,7 @@ import { readTracesFile } from "../src/import/readTrace.js";
 import type { Material } from "../src/physics/types.js";
 import type { Trace } from "../src/types.js";
 import { jobOf, type PipelineRequest } from "./analyze.js";
+import { messageLine } from "./options.js";
 import { runWireJob } from "./wireJob.js";
 
 /** What the batch hands every worker once. */
@@ -42,7 +43,7 @@ export interface WorkerReply {
 
 /** One-line message of an error; bugs are marked as such (the batch goes on either way). */
 export function errorLine(e: unknown): string {
-  if (e instanceof InputError || e instanceof ParameterError) return e.message.replace(/[\r\n]+/g, " ");
+  if (e instanceof InputError || e instanceof ParameterError) return messageLine(e.message);
   const problem = fsProblem(e);
   if (problem !== null) return `cannot write the output: ${problem}`;
   return `internal error (a bug; please report it): ${e instanceof Error ? e.message : String(e)}`.replace(/[\r\n]+/g, " ");

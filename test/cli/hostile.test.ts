@@ -108,6 +108,19 @@ describe("hostile contents: exit 1 with one line", () => {
   });
 });
 
+describe("error lines stay one printable line", () => {
+  it("control bytes quoted from a file are escaped, and a huge quoted line is cut", async () => {
+    const stl = join(root, "ctl.stl");
+    writeFileSync(stl, `solid x\n${" ".repeat(1100)}\n\u0001\u0002\u001b[31m${"z".repeat(5000)} 1 2\n`);
+    const r = await run(["profile", stl, "--out", join(root, "o.csv")]);
+    expect(r.code).toBe(1);
+    expect(r.stderr.endsWith("\n")).toBe(true);
+    expect(r.stderr.slice(0, -1)).not.toMatch(/[\u0000-\u001f\u007f]/);
+    expect(r.stderr).toContain("\\u0001\\u0002\\u001b[31m");
+    expect(r.stderr.length).toBeLessThanOrEqual("twistline: ".length + 600 + 1);
+  });
+});
+
 describe("long output names (the temporary sibling used to add 18 bytes)", () => {
   it("profile writes a 255-byte file name", async () => {
     const name = `${"p".repeat(251)}.csv`;
