@@ -42,7 +42,11 @@ async function demoStages(): Promise<void> {
     const t2 = performance.now();
     const size = (name: string): number => {
       const d = out.files.find((f) => f.name === name)!.data;
-      return typeof d === "string" ? Buffer.byteLength(d) : d.byteLength;
+      if (typeof d === "string") return Buffer.byteLength(d);
+      if (d instanceof Uint8Array) return d.byteLength;
+      let n = 0;
+      for (const c of d) n += c.byteLength;
+      return n;
     };
     const name = file.split("/").pop()!.replace(".csv", "");
     process.stdout.write(

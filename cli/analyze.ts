@@ -5,15 +5,14 @@
  */
 import type { Command } from "@commander-js/extra-typings";
 import { ParameterError } from "../src/errors.js";
-import { MESH_FORMATS, type MeshFormat } from "../src/export/meshToBytes.js";
+import { MESH_FORMATS, type MeshFormat } from "../src/export/meshFormats.js";
 import { stageOutputDir } from "../src/export/stageOutputDir.js";
 import type { Material } from "../src/physics/types.js";
-import { viewerScript } from "../src/report/viewerScript.js";
 import { PER_METRE } from "../src/types.js";
 import type { Io } from "./io.js";
 import { brief, parseChoiceOption, parseCountOption, parseLengthOption, parseLengthUnitOption, parseSeedOption } from "./options.js";
 import { checkInputFlags, DEFAULT_BOOTSTRAP, DEFAULT_SEED, HELP, INPUT_HELP, readOptionsOf, type InputFlags, type InputRequest } from "./profile.js";
-import { readMaterialFile, runWireJob, type PipelineSettings, type WireJob, type WireJobResult } from "./wireJob.js";
+import type { PipelineSettings, WireJob, WireJobResult } from "./wireJob.js";
 
 const WHERE = "analyze";
 
@@ -120,6 +119,26 @@ export function describeResult(name: string, r: WireJobResult): string {
 }
 
 /**
+ * Progress of one analysis on a terminal: one status line, redrawn at each stage with the time so
+ * far, and erased at the end (nothing at all when stderr is not a terminal, or with --quiet).
+ */
+export function statusLine(terminal: boolean, io: Io, now: () => number = () => performance.now()): { stage(text: string): void; end(): void } {
+  const t0 = now();
+  let drawn = false;
+  return {
+    stage(text) {
+      if (!terminal) return;
+      io.stderr(`\rtwistline: analyze: ${text} (${((now() - t0) / 1000).toFixed(1)} s)\x1b[K`);
+      drawn = true;
+    },
+    end() {
+      if (drawn) io.stderr("\r\x1b[K");
+      drawn = false;
+    },
+  };
+}
+
+/**
  * Runs analyze: checks the output folder first (refused when it exists and is not empty, unless
  * --force), reads the material and the wire, runs the pipeline, writes everything into a temporary
  * folder and renames it into place; on any error the temporary folder is removed and nothing is left.
@@ -127,8 +146,16 @@ export function describeResult(name: string, r: WireJobResult): string {
 export async function runAnalyze(input: string, out: string, req: PipelineRequest, io: Io): Promise<WireJobResult> {
   const staged = await stageOutputDir(out, { force: req.force, protect: [input, ...(req.materialFile !== null ? [req.materialFile] : [])], where: WHERE });
   try {
+    // the pipeline (three.js, ajv, the report bundle) loads only now, so --help and option errors stay quick
+    const [{ readMaterialFile, runWireJob }, { viewerScript }] = await Promise.all([import("./wireJob.js"), import("../src/report/viewerScript.js")]);
     const material = req.materialFile !== null ? await readMaterialFile(req.materialFile) : null;
-    const result = await runWireJob(jobOf(req, input, material, staged.path, io), await viewerScript());
+    const status = statusLine(req.quiet ? false : io.stderrIsTTY === true, io);
+    let result: WireJobResult;
+    try {
+      result = await runWireJob(jobOf(req, input, material, staged.path, io), await viewerScript(), status.stage);
+    } finally {
+      status.end();
+    }
     await staged.commit();
     if (!req.quiet) {
       const d = result.outputs.document;
@@ -151,7 +178,7 @@ export const PIPELINE_HELP = {
   spacing: "spacing of chain.csv sites, with its unit, e.g. 1nm (default: a quarter of the resolution length, and at most a quarter of the magnetic length with a material)",
   mesh: `tube mesh format: ${MESH_FORMATS.join(", ")} (default: ${DEFAULT_MESH})`,
   radius: "tube radius, with its unit (default: the radius measured at import for meshes, else half the material thickness, else 1% of the bounding-box diagonal)",
-  force: "replace an existing output folder (only one holding nothing but twistline outputs)",
+  force: "replace an existing output folder, only one twistline wrote (marked by its .twistline-owned.json) with nothing added since",
 } as const;
 
 /** The arguments the program was parsed from (commander keeps them as `rawArgs`, untyped), for model.json. */
@@ -182,7 +209,7 @@ export function addAnalyzeCommand(program: Command, io: Io): void {
     .option("--seed <n>", `seed of the bootstrap and the model's draws, 0 to 4294967295 (default: ${DEFAULT_SEED})`)
     .option("--step <length>", "profile sampling step, with its unit (default: one sample per input point)")
     .option("--coordinate-error <length>", "the standard deviation of the coordinate error per coordinate, with its unit, e.g. 0.2A, when known: the noise is then not estimated (default: estimated from the trace)")
-    .option("--out-unit <unit>", "length unit of every output, nm, um, m or A (default: the input unit; um for px)")
+    .option("--out-unit <unit>", "length unit of every output, nm, um, m or A (default: the input unit; for px the unit of the pixel size: nm below 1 um, else um)")
     .option("--format <format>", HELP.format)
     .option("--wire <n>", HELP.wire)
     .option("--branches <policy>", HELP.branches)

@@ -10,17 +10,16 @@ import { pathToFileURL } from "node:url";
 import { Worker } from "node:worker_threads";
 import type { Command } from "@commander-js/extra-typings";
 import { InputError, ParameterError } from "../src/errors.js";
-import { stageOutputDir } from "../src/export/stageOutputDir.js";
+import { OWNER_MARKER, stageOutputDir } from "../src/export/stageOutputDir.js";
 import { summaryToCsv, type SummaryRow } from "../src/export/summaryToCsv.js";
+import { fsProblem } from "../src/import/fsProblem.js";
 import { TRACE_READERS } from "../src/import/traceReaders.js";
 import type { Material } from "../src/physics/types.js";
-import { viewerScript } from "../src/report/viewerScript.js";
 import { checkPipelineFlags, PIPELINE_HELP, type PipelineFlags, type PipelineRequest } from "./analyze.js";
-import { runTask, type WorkerReply, type WorkerSetup, type WorkerTask } from "./batchWorker.js";
+import type { WorkerReply, WorkerSetup, WorkerTask } from "./batchWorker.js";
 import type { Io } from "./io.js";
 import { parseCountOption } from "./options.js";
 import { DEFAULT_BOOTSTRAP, DEFAULT_SEED, HELP } from "./profile.js";
-import { readMaterialFile } from "./wireJob.js";
 
 const WHERE = "batch";
 
@@ -64,7 +63,11 @@ export async function expandInputs(args: readonly string[]): Promise<string[]> {
       }
       continue;
     }
-    const info = await stat(arg).catch(() => null);
+    const info = await stat(arg).catch((e: unknown) => {
+      const problem = fsProblem(e);
+      if (problem === null || (e as { code?: unknown }).code === "ENOENT") return null;
+      throw new ParameterError(WHERE, "<inputs>", `${JSON.stringify(arg)}: ${problem}`);
+    });
     if (info === null) throw new ParameterError(WHERE, "<inputs>", `${JSON.stringify(arg)} does not exist`);
     if (info.isDirectory()) {
       for (const n of (await readdir(arg)).sort()) {
@@ -80,14 +83,30 @@ export async function expandInputs(args: readonly string[]): Promise<string[]> {
   return out;
 }
 
-/** Folder names for the inputs: the file name without extension, made safe, with -2, -3 for repeats. */
+/** Bytes kept of a file's stem for its folder name: room for "-<n>" and "-w<k>" within 255 bytes. */
+const MAX_STEM_BYTES = 200;
+
+/**
+ * Folder names for the inputs, all reserved before any folder is made, so no two wires can ever
+ * write into one folder: the file name without extension, made safe (and cut to 200 bytes), with
+ * -2, -3, ... where needed. A file holding several wires writes `<name>-w1`, `<name>-w2`, ..., so
+ * each name also reserves every `<name>-w<k>`; the batch's own `summary.csv` and marker are
+ * reserved too. Names are compared without case (case-insensitive file systems).
+ * @example folderNames(["a.csv", "a.tsv", "a-2.csv", "b.svg", "b-w1.csv"]) // ["a", "a-2", "a-2-2", "b", "b-w1-2"]
+ */
 export function folderNames(files: readonly string[]): string[] {
-  const used = new Map<string, number>();
+  const taken: string[] = [SUMMARY_NAME.toLowerCase(), OWNER_MARKER.toLowerCase()];
+  const clashes = (name: string): boolean => {
+    const n = name.toLowerCase();
+    return taken.some((t) => t === n || (n.startsWith(`${t}-w`) && /^\d+$/.test(n.slice(t.length + 2))) || (t.startsWith(`${n}-w`) && /^\d+$/.test(t.slice(n.length + 2))));
+  };
   return files.map((f) => {
-    const stem = basename(f, extname(f)).replace(/[^A-Za-z0-9._-]+/g, "_").replace(/^\.+/, "_") || "wire";
-    const k = (used.get(stem) ?? 0) + 1;
-    used.set(stem, k);
-    return k === 1 ? stem : `${stem}-${k}`;
+    let stem = basename(f, extname(f)).replace(/[^A-Za-z0-9._-]+/g, "_").replace(/^\.+/, "_") || "wire";
+    if (stem.length > MAX_STEM_BYTES) stem = stem.slice(0, MAX_STEM_BYTES); // ASCII after the replacement above
+    let name = stem;
+    for (let k = 2; clashes(name); ++k) name = `${stem}-${k}`;
+    taken.push(name.toLowerCase());
+    return name;
   });
 }
 
@@ -148,6 +167,7 @@ function workerEntry(): { entry: URL | string; eval: boolean } {
  */
 export async function runPool(tasks: readonly WorkerTask[], setup: WorkerSetup, jobs: number, onReply: (r: WorkerReply) => void): Promise<void> {
   if (jobs <= 1 || tasks.length <= 1) {
+    const { runTask } = await import("./batchWorker.js");
     for (const t of tasks) onReply(await runTask(t, setup));
     return;
   }
@@ -203,8 +223,9 @@ export interface BatchOptions {
 export async function runBatch(files: readonly string[], out: string, req: PipelineRequest, options: BatchOptions, io: Io, material?: Material | null): Promise<SummaryRow[]> {
   const staged = await stageOutputDir(out, { force: req.force, protect: [...files, ...(req.materialFile !== null ? [req.materialFile] : [])], where: options.where ?? WHERE });
   try {
+    const [{ readMaterialFile }, { viewerScript }] = await Promise.all([import("./wireJob.js"), import("../src/report/viewerScript.js")]);
     const mat = material !== undefined ? material : req.materialFile !== null ? await readMaterialFile(req.materialFile) : null;
-    const setup: WorkerSetup = { twistlineBatch: true, viewerJs: await viewerScript(), material: mat, request: req };
+    const setup: WorkerSetup = { twistlineBatch: true, viewerJs: await viewerScript(), material: mat, request: req, where: options.where ?? WHERE };
     const names = folderNames(files);
     const tasks: WorkerTask[] = files.map((input, id) => ({ id, input, name: names[id], root: staged.path }));
     const replies: WorkerReply[] = [];
@@ -215,7 +236,12 @@ export async function runBatch(files: readonly string[], out: string, req: Pipel
     });
     progress.end();
     const rows = replies.sort((a, b) => a.id - b.id).flatMap((r) => r.rows);
-    await writeFile(join(staged.path, SUMMARY_NAME), summaryToCsv(rows));
+    const where = options.where ?? WHERE;
+    await writeFile(join(staged.path, SUMMARY_NAME), summaryToCsv(rows)).catch((e: unknown) => {
+      const problem = fsProblem(e);
+      if (problem === null) throw e;
+      throw new ParameterError(where, "--out", `cannot write ${SUMMARY_NAME}: ${problem}; nothing was written to ${JSON.stringify(out)}`);
+    });
     await staged.commit();
     return rows;
   } catch (e) {
@@ -224,15 +250,24 @@ export async function runBatch(files: readonly string[], out: string, req: Pipel
   }
 }
 
-/** Throws (exit code 1) when wires failed, after everything was written; else prints a summary line. */
+/**
+ * Throws (exit code 1) when wires failed, after everything was written; else prints a summary line.
+ * When no wire was analysed the line says so: only summary.csv (with the errors) was written.
+ */
 export function reportFailures(rows: readonly SummaryRow[], out: string, quiet: boolean, io: Io, where = WHERE): void {
   const failed = rows.filter((r) => r.error !== null);
+  const done = rows.length - failed.length;
   if (!quiet) {
     for (const r of failed) io.stderr(`twistline: ${where}: ${r.wire}: ${r.error}\n`);
-    io.stderr(`twistline: ${where}: ${rows.length - failed.length} of ${rows.length} wires analysed; wrote ${join(out, SUMMARY_NAME)} and one folder per wire under ${out}\n`);
+    io.stderr(
+      done > 0
+        ? `twistline: ${where}: ${done} of ${rows.length} wires analysed; wrote ${join(out, SUMMARY_NAME)} and one folder per analysed wire under ${out}\n`
+        : `twistline: ${where}: no wire was analysed; wrote only ${join(out, SUMMARY_NAME)} with the errors\n`,
+    );
   }
   if (failed.length > 0) {
-    throw new InputError(join(out, SUMMARY_NAME), null, "wires", `${failed.length} of ${rows.length} failed (see the error column); the others were written`);
+    const rest = done > 0 ? "the others were written" : "no wire folder was written";
+    throw new InputError(join(out, SUMMARY_NAME), null, "wires", `${failed.length} of ${rows.length} failed (see the error column); ${rest}`);
   }
 }
 
@@ -259,7 +294,7 @@ export function addBatchCommand(program: Command, io: Io): void {
     .option("--seed <n>", `seed of the bootstrap and the model's draws (default: ${DEFAULT_SEED})`)
     .option("--step <length>", "profile sampling step, with its unit (default: one sample per input point)")
     .option("--coordinate-error <length>", "the standard deviation of the coordinate error per coordinate, with its unit, e.g. 0.2A, when known: the noise is then not estimated (default: estimated from the trace)")
-    .option("--out-unit <unit>", "length unit of every output (default: each input's unit; um for px)")
+    .option("--out-unit <unit>", "length unit of every output (default: each input's unit; for px the unit of the pixel size: nm below 1 um, else um)")
     .option("--format <format>", HELP.format)
     .option("--branches <policy>", HELP.branches)
     .option("--force", PIPELINE_HELP.force)

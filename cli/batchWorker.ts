@@ -8,10 +8,12 @@ import { join } from "node:path";
 import { parentPort, workerData } from "node:worker_threads";
 import { InputError, ParameterError } from "../src/errors.js";
 import type { SummaryRow } from "../src/export/summaryToCsv.js";
+import { fsProblem } from "../src/import/fsProblem.js";
 import { readTracesFile } from "../src/import/readTrace.js";
 import type { Material } from "../src/physics/types.js";
 import type { Trace } from "../src/types.js";
 import { jobOf, type PipelineRequest } from "./analyze.js";
+import { messageLine } from "./options.js";
 import { runWireJob } from "./wireJob.js";
 
 /** What the batch hands every worker once. */
@@ -21,6 +23,8 @@ export interface WorkerSetup {
   readonly viewerJs: string;
   readonly material: Material | null;
   readonly request: PipelineRequest;
+  /** Command name for messages ("batch" or "demo"). */
+  readonly where?: string;
 }
 
 /** One file to do: read it, then write its wires under `root`/`name` (or `name-w<k>` for several wires). */
@@ -39,7 +43,9 @@ export interface WorkerReply {
 
 /** One-line message of an error; bugs are marked as such (the batch goes on either way). */
 export function errorLine(e: unknown): string {
-  if (e instanceof InputError || e instanceof ParameterError) return e.message.replace(/[\r\n]+/g, " ");
+  if (e instanceof InputError || e instanceof ParameterError) return messageLine(e.message);
+  const problem = fsProblem(e);
+  if (problem !== null) return `cannot write the output: ${problem}`;
   return `internal error (a bug; please report it): ${e instanceof Error ? e.message : String(e)}`.replace(/[\r\n]+/g, " ");
 }
 
@@ -60,9 +66,13 @@ export async function runTask(task: WorkerTask, setup: WorkerSetup): Promise<Wor
     const name = traces.length === 1 ? task.name : `${task.name}-w${w + 1}`;
     const dir = join(task.root, name);
     try {
-      await mkdir(dir);
+      await mkdir(dir).catch((e: unknown) => {
+        const problem = fsProblem(e);
+        if (problem === null) throw e;
+        throw new ParameterError(setup.where ?? "batch", "--out", `cannot make the folder ${name}: ${problem}`);
+      });
       const trace = traces.length === 1 ? traces[0] : { ...traces[w], diagnostics: [`file has ${traces.length} wires; this is wire ${w + 1}`, ...traces[w].diagnostics] };
-      const job = { ...jobOf(setup.request, task.input, setup.material, dir, noIo), trace };
+      const job = { ...jobOf(setup.request, task.input, setup.material, dir, noIo), trace, where: setup.where ?? "batch" };
       const r = await runWireJob(job, setup.viewerJs);
       rows.push({ wire: name, file: task.input, summary: r.summary, error: null, seconds: (performance.now() - t1) / 1000 });
     } catch (e) {

@@ -199,7 +199,7 @@ export function addCenterlineCommand(program: Command, io: Io): void {
     .option("--format <format>", HELP.format)
     .option("--wire <n>", "write only this wire, from 1, to the --out file itself (default: every wire)")
     .option("--branches <policy>", HELP.branches)
-    .option("--out-unit <unit>", "length unit of the output, nm, um, m or A (default: the input unit; um for px)")
+    .option("--out-unit <unit>", "length unit of the output, nm, um, m or A (default: the input unit; for px the unit of the pixel size: nm below 1 um, else um)")
     .option("--quiet", "print no summary line")
     .action(async (input, flags) => {
       await runCenterline(checkCenterlineFlags(input, flags), io);

@@ -82,7 +82,13 @@ export async function runDemo(outDir: string, force: boolean, quiet: boolean, io
       "(length in unit, kappa and tau in 1/unit; stretches S straight, A arc, H helix, I irregular; deepest pinning site in k_B T at 300 K; metastable length in unit)\n" +
       `${demoTable(rows)}\n`,
   );
-  if (!quiet) io.stderr(`twistline: demo: ${rows.length} wires in ${seconds.toFixed(1)} s; open ${join(outDir, "coil", "report.html")} (and the others); table in ${join(outDir, SUMMARY_NAME)}\n`);
+  const ok = rows.filter((r) => r.error === null);
+  if (!quiet && ok.length > 0) {
+    const first = ok.find((r) => r.wire === "coil") ?? ok[0];
+    const others = ok.length > 1 ? " (and the others)" : "";
+    const count = ok.length === rows.length ? `${rows.length}` : `${ok.length} of ${rows.length}`;
+    io.stderr(`twistline: demo: ${count} wires in ${seconds.toFixed(1)} s; open ${join(outDir, first.wire, "report.html")}${others}; table in ${join(outDir, SUMMARY_NAME)}\n`);
+  }
   reportFailures(rows, outDir, true, io, WHERE);
   return rows;
 }

@@ -1,12 +1,14 @@
 /** The CLI: `main(argv, io)` parses, runs one command, and returns the exit code. No globals. */
 import { Command, CommanderError } from "@commander-js/extra-typings";
 import { InputError, ParameterError } from "../src/errors.js";
+import { fsProblem } from "../src/import/fsProblem.js";
 import { TOOL_NAME, TOOL_VERSION } from "../src/export/version.js";
 import { addAnalyzeCommand } from "./analyze.js";
 import { addBatchCommand } from "./batch.js";
 import { addCenterlineCommand } from "./centerline.js";
 import { addDemoCommand } from "./demo.js";
 import type { Io } from "./io.js";
+import { messageLine } from "./options.js";
 import { addProfileCommand } from "./profile.js";
 
 export type { Io } from "./io.js";
@@ -64,7 +66,14 @@ export async function main(argv: readonly string[], io: Io): Promise<number> {
   } catch (e) {
     if (e instanceof CommanderError) return e.exitCode === 0 ? EXIT_OK : EXIT_USAGE_OR_BUG;
     if (e instanceof InputError || e instanceof ParameterError) {
-      io.stderr(`${TOOL_NAME}: ${e.message.replace(/[\r\n]+/g, " ")}\n`);
+      io.stderr(`${TOOL_NAME}: ${messageLine(e.message)}\n`);
+      return EXIT_BAD_INPUT;
+    }
+    // a file-system fault that no stage caught on its way: still the user's disk, not a bug
+    const problem = fsProblem(e);
+    const path = (e as { path?: unknown } | null)?.path;
+    if (problem !== null && typeof path === "string") {
+      io.stderr(`${TOOL_NAME}: ${messageLine(`${JSON.stringify(path)}: ${problem}`)}\n`);
       return EXIT_BAD_INPUT;
     }
     const detail = e instanceof Error ? (e.stack ?? `${e.name}: ${e.message}`) : String(e);

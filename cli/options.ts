@@ -62,3 +62,35 @@ export function parseChoiceOption<T extends string>(where: string, option: strin
 export function brief(value: number): string {
   return Number.isFinite(value) ? String(Number(value.toPrecision(4))) : String(value);
 }
+
+/**
+ * Runs `f`, renaming a ParameterError of the fit about an option the user gave ("profile: step: ...")
+ * after the command and its flag ("analyze: --step: ..."), so the message names what was typed.
+ */
+export function withOptionNames<T>(where: string, f: () => T): T {
+  try {
+    return f();
+  } catch (e) {
+    if (e instanceof ParameterError && e.where === "profile" && (e.option === "step" || e.option === "bootstrap" || e.option === "seed")) {
+      throw new ParameterError(where, `--${e.option}`, e.message.replace(/^profile: \w+: /, ""));
+    }
+    throw e;
+  }
+}
+
+/** Longest error line the CLI prints (a message quoting a binary "line" of a file could be megabytes). */
+export const MAX_MESSAGE_CHARS = 600;
+
+/**
+ * An error message as one printable line: line breaks become spaces, other control characters
+ * (which a binary file read as text can put into a quoted token) become \u escapes, and the line
+ * is cut at {@link MAX_MESSAGE_CHARS} characters.
+ * @example messageLine("a.stl:1: \u0001\u0002: outside a solid") // "a.stl:1: \\u0001\\u0002: outside a solid"
+ */
+export function messageLine(message: string): string {
+  const flat = message
+    .replace(/[\r\n]+/g, " ")
+    .replace(/[\u0000-\u0008\u000b-\u001f\u007f-\u009f]/g, (c) => `\\u${c.charCodeAt(0).toString(16).padStart(4, "0")}`);
+  return flat.length > MAX_MESSAGE_CHARS ? `${flat.slice(0, MAX_MESSAGE_CHARS - 3)}...` : flat;
+}
+

@@ -7,10 +7,11 @@ import { dirname, extname } from "node:path";
 import type { Command } from "@commander-js/extra-typings";
 import { ParameterError } from "../src/errors.js";
 import { defaultOutputUnit } from "../src/export/outputUnit.js";
-import { profileToCsv } from "../src/export/profileToCsv.js";
-import { profileToJson } from "../src/export/profileToJson.js";
+import { profileCsvChunks } from "../src/export/profileToCsv.js";
+import { profileJsonChunks } from "../src/export/profileToJson.js";
 import { sameFile } from "../src/export/sameFile.js";
-import { writeFileAtomic } from "../src/export/writeFileAtomic.js";
+import { writeFileAtomic, type FileData } from "../src/export/writeFileAtomic.js";
+import { fsProblem } from "../src/import/fsProblem.js";
 import { fitProfile, type ProfileOptions } from "../src/frame/profile.js";
 import type { BranchPolicy } from "../src/import/mesh/types.js";
 import { formatOfPath, readTraceFile, type ReadOneTraceOptions } from "../src/import/readTrace.js";
@@ -19,7 +20,7 @@ import { DEFAULT_INPUT_UNIT } from "../src/import/types.js";
 import { PER_METRE, type InputUnit, type LengthUnit, type Profile, type Trace } from "../src/types.js";
 import type { Io } from "./io.js";
 import {
-  brief, parseChoiceOption, parseCountOption, parseInputUnitOption, parseLengthOption, parseLengthUnitOption, parseSeedOption,
+  brief, withOptionNames, parseChoiceOption, parseCountOption, parseInputUnitOption, parseLengthOption, parseLengthUnitOption, parseSeedOption,
 } from "./options.js";
 
 /** Bootstrap replicates when --bootstrap is not given. */
@@ -116,7 +117,7 @@ export function checkInputFlags(where: string, input: string, flags: InputFlags)
   const format = req.format ?? (input === "-" ? null : formatOfPath(input));
   if (format === "svg") {
     if (req.unit !== undefined && req.unit !== "px") {
-      throw new ParameterError(where, "--unit", `an SVG drawing is in user units: use --pixel-size (metres per user unit) or leave --unit out (got --unit ${req.unit})`);
+      throw new ParameterError(where, "--unit", `an SVG drawing is in user units: use --pixel-size (the size of one user unit, e.g. 2.5nm) or leave --unit out (got --unit ${req.unit})`);
     }
     return req;
   }
@@ -171,16 +172,6 @@ export function checkProfileFlags(input: string, flags: ProfileFlags): ProfileRe
   return req;
 }
 
-const WRITE_PROBLEMS: Readonly<Record<string, string>> = {
-  ENOENT: "its folder does not exist",
-  ENOTDIR: "a folder on the path is not a directory",
-  EISDIR: "is a directory",
-  EACCES: "permission denied",
-  EPERM: "permission denied",
-  EROFS: "read-only file system",
-  ENOSPC: "no space left on the device",
-};
-
 /** Refuses an output that is the input, or whose folder is missing, before any work is done. */
 export async function checkOutputPath(req: { readonly input: string; readonly out: string }, where: string): Promise<void> {
   if (req.out === "-") return;
@@ -195,16 +186,33 @@ export async function checkOutputPath(req: { readonly input: string; readonly ou
 }
 
 /** Writes `text` to `out` atomically, never over `input`; file-system failures become ParameterError(where, "--out"). */
-export async function writeOutput(out: string, text: string, input: string, where: string): Promise<void> {
+export async function writeOutput(out: string, data: FileData, input: string, where: string): Promise<void> {
   try {
-    await writeFileAtomic(out, text, { protect: input === "-" ? [] : [input] });
+    await writeFileAtomic(out, data, { protect: input === "-" ? [] : [input] });
   } catch (e) {
-    const code = (e as { code?: unknown }).code;
-    if (typeof code === "string" && Object.hasOwn(WRITE_PROBLEMS, code)) {
-      throw new ParameterError(where, "--out", `cannot write ${JSON.stringify(out)}: ${WRITE_PROBLEMS[code]}`);
-    }
+    const problem = fsProblem(e);
+    if (problem !== null) throw new ParameterError(where, "--out", `cannot write ${JSON.stringify(out)}: ${problem}`);
     throw e;
   }
+}
+
+/** Fewest samples a --step may give: as many as a quintic fit needs points. */
+export const MIN_STEP_SAMPLES = 6;
+
+/**
+ * Refuses a --step that leaves fewer than {@link MIN_STEP_SAMPLES} samples along the fitted wire
+ * (a step longer than the wire used to give a one-row profile and exit 0).
+ * @throws {ParameterError} "<where>: --step: 300 nm gives 1 sample along a wire 120 nm long; ..."
+ */
+export function checkStepSamples(where: string, step: number | undefined, profile: Profile, unit: LengthUnit): void {
+  if (step === undefined || profile.n >= MIN_STEP_SAMPLES) return;
+  const k = PER_METRE[unit];
+  const most = profile.length / (profile.closed ? MIN_STEP_SAMPLES : MIN_STEP_SAMPLES - 1);
+  throw new ParameterError(
+    where, "--step",
+    `${brief(step * k)} ${unit} gives ${profile.n} ${profile.n === 1 ? "sample" : "samples"} along a${profile.closed ? " closed" : ""} wire ${brief(profile.length * k)} ${unit} long; ` +
+      `use at most ${brief(most * k)} ${unit} (${MIN_STEP_SAMPLES} samples or more)`,
+  );
 }
 
 /**
@@ -221,17 +229,19 @@ export async function runProfile(req: ProfileRequest, io: Io, where = WHERE): Pr
   if (req.closed !== undefined) fitOptions.closed = req.closed;
   if (req.step !== undefined) fitOptions.step = req.step;
   if (req.coordinateError !== undefined) fitOptions.coordinateError = req.coordinateError;
-  const fitted = fitProfile(trace, fitOptions);
+  const fitted = withOptionNames(where, () => fitProfile(trace, fitOptions));
   const diagnostics = [...trace.diagnostics, ...fitted.diagnostics.filter((d) => !trace.diagnostics.includes(d))];
   const profile: Profile = { ...fitted, diagnostics };
 
   const outUnit = req.outUnit ?? defaultOutputUnit(trace.source);
+  checkStepSamples(where, req.step, profile, outUnit);
   const json = req.out !== "-" && extname(req.out).toLowerCase() === ".json";
-  const text = json ? profileToJson(profile, { unit: outUnit, seed: req.seed }) : profileToCsv(profile, { unit: outUnit, seed: req.seed });
+  const chunks = json ? profileJsonChunks(profile, { unit: outUnit, seed: req.seed }) : profileCsvChunks(profile, { unit: outUnit, seed: req.seed });
   if (req.out === "-") {
-    io.stdout(text);
+    const decoder = new TextDecoder();
+    for (const chunk of chunks) io.stdout(decoder.decode(chunk, { stream: true }));
   } else {
-    await writeOutput(req.out, text, req.input, where);
+    await writeOutput(req.out, chunks, req.input, where);
   }
 
   if (!req.quiet) {
@@ -284,7 +294,7 @@ export function addProfileCommand(program: Command, io: Io): void {
     .option("--seed <n>", `seed of the bootstrap random stream, 0 to 4294967295 (default: ${DEFAULT_SEED})`)
     .option("--step <length>", "resample at this arc-length step, with its unit, e.g. 5nm (default: one sample per input point)")
     .option("--coordinate-error <length>", "the standard deviation of the coordinate error per coordinate, with its unit, e.g. 0.2A, when known: the noise is then not estimated (default: estimated from the trace)")
-    .option("--out-unit <unit>", "length unit of the output, nm, um, m or A; kappa and tau in 1/unit (default: the input unit; um for px)")
+    .option("--out-unit <unit>", "length unit of the output, nm, um, m or A; kappa and tau in 1/unit (default: the input unit; for px the unit of the pixel size: nm below 1 um, else um)")
     .option("--format <format>", HELP.format)
     .option("--wire <n>", HELP.wire)
     .option("--branches <policy>", HELP.branches)

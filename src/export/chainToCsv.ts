@@ -2,6 +2,7 @@ import { PER_METRE, type LengthUnit, type Source } from "../types.js";
 import type { SampleInteractions } from "../physics/types.js";
 import { formatNumber } from "./formatNumber.js";
 import { FLAG_MEANINGS, oneLine } from "./profileTable.js";
+import { chunksToText, rereadable, RowBuffer, rowBytes, type Chunks } from "./tableChunks.js";
 import type { ResampledWire } from "./resampleWire.js";
 import { TOOL_NAME, TOOL_VERSION } from "./version.js";
 
@@ -58,6 +59,15 @@ export interface ChainCsvOptions {
  * @throws {Error} when the model columns do not have one entry per site (a bug upstream).
  */
 export function chainToCsv(wire: ResampledWire, model: ChainModel | null, options: ChainCsvOptions): string {
+  return chunksToText(chainCsvChunks(wire, model, options));
+}
+
+/**
+ * {@link chainToCsv} as a re-readable sequence of byte chunks (UTF-8): the same bytes, never one
+ * string, so a chain of millions of sites is written chunk by chunk.
+ * @throws {Error} when the model columns do not have one entry per site (a bug upstream).
+ */
+export function chainCsvChunks(wire: ResampledWire, model: ChainModel | null, options: ChainCsvOptions): Chunks {
   const u = options.unit;
   const k = PER_METRE[u];
   const m = wire.n;
@@ -118,26 +128,35 @@ export function chainToCsv(wire: ResampledWire, model: ChainModel | null, option
     check("anisotropyAxesLab", it.anisotropyAxesLab.length, 9);
     if (model.texture !== null) check("texture", model.texture.length, 3);
   }
-  const f = formatNumber;
-  for (let i = 0; i < m; ++i) {
-    const row: string[] = [
-      String(i), f(wire.s[i] * k), f(wire.xyz[3 * i] * k), f(wire.xyz[3 * i + 1] * k), f(wire.xyz[3 * i + 2] * k),
-      f(wire.T[3 * i]), f(wire.T[3 * i + 1]), f(wire.T[3 * i + 2]),
-      f(wire.N[3 * i]), f(wire.N[3 * i + 1]), f(wire.N[3 * i + 2]),
-      f(wire.B[3 * i]), f(wire.B[3 * i + 1]), f(wire.B[3 * i + 2]),
-      f(wire.kappa[i] / k), f(wire.kappaLo[i] / k), f(wire.kappaHi[i] / k),
-      f(wire.tau[i] / k), f(wire.tauLo[i] / k), f(wire.tauHi[i] / k), String(wire.flags[i]),
-    ];
-    if (model !== null) {
-      const it = model.interactions;
-      row.push(f(it.kappaReduced[i]), f(it.tauReduced[i]), f(it.dmiLab[3 * i]), f(it.dmiLab[3 * i + 1]), f(it.dmiLab[3 * i + 2]));
-      for (let e = 0; e < 3; ++e) {
-        row.push(f(it.anisotropyConstants[3 * i + e]));
-        for (let c = 0; c < 3; ++c) row.push(f(it.anisotropyAxesLab[9 * i + 3 * e + c]));
+  const head = new TextEncoder().encode(`${lines.join("\n")}\n`);
+  return rereadable(function* rows() {
+    yield head;
+    const out = new RowBuffer(rowBytes(header.length), "NaN");
+    const it = model?.interactions;
+    const texture = model?.texture ?? null;
+    for (let i = 0; i < m; ++i) {
+      out.num(i, 44); out.num(wire.s[i] * k, 44);
+      out.num(wire.xyz[3 * i] * k, 44); out.num(wire.xyz[3 * i + 1] * k, 44); out.num(wire.xyz[3 * i + 2] * k, 44);
+      out.num(wire.T[3 * i], 44); out.num(wire.T[3 * i + 1], 44); out.num(wire.T[3 * i + 2], 44);
+      out.num(wire.N[3 * i], 44); out.num(wire.N[3 * i + 1], 44); out.num(wire.N[3 * i + 2], 44);
+      out.num(wire.B[3 * i], 44); out.num(wire.B[3 * i + 1], 44); out.num(wire.B[3 * i + 2], 44);
+      out.num(wire.kappa[i] / k, 44); out.num(wire.kappaLo[i] / k, 44); out.num(wire.kappaHi[i] / k, 44);
+      out.num(wire.tau[i] / k, 44); out.num(wire.tauLo[i] / k, 44); out.num(wire.tauHi[i] / k, 44);
+      out.num(wire.flags[i], 0);
+      if (it !== undefined) {
+        out.byte(44);
+        out.num(it.kappaReduced[i], 44); out.num(it.tauReduced[i], 44);
+        out.num(it.dmiLab[3 * i], 44); out.num(it.dmiLab[3 * i + 1], 44); out.num(it.dmiLab[3 * i + 2], 0);
+        for (let e = 0; e < 3; ++e) {
+          out.byte(44);
+          out.num(it.anisotropyConstants[3 * i + e], 0);
+          for (let c = 0; c < 3; ++c) { out.byte(44); out.num(it.anisotropyAxesLab[9 * i + 3 * e + c], 0); }
+        }
+        if (texture !== null) { out.byte(44); out.num(texture[3 * i], 44); out.num(texture[3 * i + 1], 44); out.num(texture[3 * i + 2], 0); }
       }
-      if (model.texture !== null) row.push(f(model.texture[3 * i]), f(model.texture[3 * i + 1]), f(model.texture[3 * i + 2]));
+      out.byte(10);
+      if (out.full()) yield out.take();
     }
-    lines.push(row.join(","));
-  }
-  return `${lines.join("\n")}\n`;
+    if (out.size > 0) yield out.take();
+  });
 }

@@ -10,9 +10,9 @@ import { installFileReader } from "./nodeFileReader.js";
 import type { TubeMesh } from "./tubeMesh.js";
 import { TOOL_NAME, TOOL_VERSION } from "./version.js";
 
-/** Mesh formats `analyze --mesh` writes. */
-export const MESH_FORMATS = ["ply", "stl", "obj", "glb"] as const;
-export type MeshFormat = (typeof MESH_FORMATS)[number];
+import { MESH_FORMATS, type MeshFormat } from "./meshFormats.js";
+
+export { MESH_FORMATS, type MeshFormat } from "./meshFormats.js";
 
 /** What every mesh file states about itself. */
 export interface MeshMeta {

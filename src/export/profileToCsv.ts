@@ -1,6 +1,7 @@
 import type { Profile } from "../types.js";
 import { formatNumber } from "./formatNumber.js";
 import { ESTIMATE_NOTE, FLAG_MEANINGS, oneLine, PROFILE_COLUMNS, profileColumns, profileFacts } from "./profileTable.js";
+import { chunksToText, rereadable, RowBuffer, rowBytes, type Chunks } from "./tableChunks.js";
 import type { ProfileWriteOptions } from "./types.js";
 
 const MAX_LISTED_OUTLIERS = 50;
@@ -19,12 +20,22 @@ const MAX_LISTED_OUTLIERS = 50;
  * 1/unit, t n b are unit vectors, flags the bit set of src/types.ts. Numbers carry 12 significant
  * digits in shortest form; undefined values are `NaN`. Line ends are `\n`.
  *
- * Units: `options.unit` (default: the input's unit; "um" for pixel inputs).
- * Cost: O(n) string building, about 20 numbers per sample.
+ * Units: `options.unit` (default: the input's unit; for pixels, see defaultOutputUnit).
+ * Cost: O(n), about 20 numbers per sample; see {@link profileCsvChunks} for tables too long for one string.
  * @throws {ParameterError} an output unit that is not a length unit.
  * @example profileToCsv(profile, { unit: "nm", seed: 1 }).split("\n").find((l) => !l.startsWith("#")) // "s,x,y,z,kappa,..."
  */
 export function profileToCsv(profile: Profile, options: ProfileWriteOptions = {}): string {
+  return chunksToText(profileCsvChunks(profile, options));
+}
+
+/**
+ * {@link profileToCsv} as a re-readable sequence of byte chunks (UTF-8), for writing to a file
+ * chunk by chunk: the same bytes, never one string, memory one chunk (256 KiB) beyond the profile.
+ * Options are checked at once, before the first chunk is asked for.
+ * @throws {ParameterError} an output unit that is not a length unit.
+ */
+export function profileCsvChunks(profile: Profile, options: ProfileWriteOptions = {}): Chunks {
   const f = profileFacts(profile, options, "profileToCsv");
   const u = f.unit;
   const lines: string[] = [];
@@ -53,13 +64,16 @@ export function profileToCsv(profile: Profile, options: ProfileWriteOptions = {}
   for (const [bit, meaning] of FLAG_MEANINGS) lines.push(`# flag ${bit}: ${meaning}`);
   for (const d of f.diagnostics) lines.push(`# diagnostic: ${oneLine(d)}`);
   lines.push(PROFILE_COLUMNS.join(","));
-
+  const head = new TextEncoder().encode(`${lines.join("\n")}\n`);
   const columns = profileColumns(profile, u);
-  const width = columns.length;
-  const row = new Array<string>(width);
-  for (let i = 0; i < f.n; ++i) {
-    for (let c = 0; c < width; ++c) row[c] = formatNumber(columns[c][i]);
-    lines.push(row.join(","));
-  }
-  return `${lines.join("\n")}\n`;
+  return rereadable(function* rows() {
+    yield head;
+    const width = columns.length;
+    const out = new RowBuffer(rowBytes(width), "NaN");
+    for (let i = 0; i < f.n; ++i) {
+      for (let c = 0; c < width; ++c) out.num(columns[c][i], c === width - 1 ? 10 : 44);
+      if (out.full()) yield out.take();
+    }
+    if (out.size > 0) yield out.take();
+  });
 }

@@ -1,6 +1,7 @@
 import type { Profile } from "../types.js";
 import { jsonNumber } from "./formatNumber.js";
 import { ESTIMATE_NOTE, FLAG_MEANINGS, PROFILE_COLUMNS, profileColumns, profileFacts } from "./profileTable.js";
+import { chunksToText, rereadable, RowBuffer, type Chunks } from "./tableChunks.js";
 import type { ProfileWriteOptions } from "./types.js";
 
 /** `format` tag of the JSON profile document. */
@@ -27,6 +28,15 @@ export const PROFILE_JSON_VERSION = 1;
  * @throws {ParameterError} an output unit that is not a length unit.
  */
 export function profileToJson(profile: Profile, options: ProfileWriteOptions = {}): string {
+  return chunksToText(profileJsonChunks(profile, options));
+}
+
+/**
+ * {@link profileToJson} as a re-readable sequence of byte chunks (UTF-8): the same bytes, never one
+ * string, for writing a profile of millions of samples chunk by chunk.
+ * @throws {ParameterError} an output unit that is not a length unit.
+ */
+export function profileJsonChunks(profile: Profile, options: ProfileWriteOptions = {}): Chunks {
   const f = profileFacts(profile, options, "profileToJson");
   const source: { file: string; unit: string; pixelSize?: number | null } = { file: f.sourceFile, unit: f.sourceUnit };
   if (f.pixelSize !== undefined) source.pixelSize = jsonNumber(f.pixelSize);
@@ -56,6 +66,21 @@ export function profileToJson(profile: Profile, options: ProfileWriteOptions = {
   };
   const head = JSON.stringify(meta, null, 2);
   const columns = profileColumns(profile, f.unit);
-  const body = PROFILE_COLUMNS.map((name, c) => `    ${JSON.stringify(name)}: ${JSON.stringify(Array.from(columns[c], jsonNumber))}`);
-  return `${head.slice(0, head.length - 2)},\n  "columns": {\n${body.join(",\n")}\n  }\n}\n`;
+  const opening = new TextEncoder().encode(`${head.slice(0, head.length - 2)},\n  "columns": {\n`);
+  return rereadable(function* body() {
+    yield opening;
+    // numbers as jsonNumber gives them (12 significant digits, shortest form), null for NaN and infinities
+    const out = new RowBuffer(64, "null");
+    for (let c = 0; c < PROFILE_COLUMNS.length; ++c) {
+      out.text(`    ${JSON.stringify(PROFILE_COLUMNS[c])}: [`);
+      const col = columns[c];
+      for (let i = 0; i < col.length; ++i) {
+        out.num(col[i], i === col.length - 1 ? 0 : 44);
+        if (out.full()) yield out.take();
+      }
+      out.text(c === PROFILE_COLUMNS.length - 1 ? "]\n" : "],\n");
+    }
+    out.text("  }\n}\n");
+    yield out.take();
+  });
 }

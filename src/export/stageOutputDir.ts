@@ -1,7 +1,9 @@
-import { randomBytes } from "node:crypto";
-import { mkdir, readdir, rename, rm, stat } from "node:fs/promises";
-import { basename, dirname, join, relative, resolve, sep } from "node:path";
+import { lstat, mkdir, readdir, readFile, rename, rm, stat, writeFile } from "node:fs/promises";
+import { dirname, join, relative, resolve, sep } from "node:path";
 import { ParameterError } from "../errors.js";
+import { fsProblem } from "../import/fsProblem.js";
+import { releaseSibling, removeStaleSiblings, tempSibling } from "./tempSibling.js";
+import { TOOL_NAME } from "./version.js";
 
 /** A folder being written: files go into `path` (a temporary sibling of the target) until `commit`. */
 export interface StagedDir {
@@ -9,7 +11,7 @@ export interface StagedDir {
   readonly path: string;
   /** The final folder. */
   readonly target: string;
-  /** Moves the finished folder into place (replacing the old one when allowed). */
+  /** Writes the ownership marker and moves the finished folder into place (replacing the old one when allowed). */
   commit(): Promise<void>;
   /** Removes the temporary folder and everything in it. Safe to call twice. */
   abort(): Promise<void>;
@@ -17,7 +19,7 @@ export interface StagedDir {
 
 /** Options of {@link stageOutputDir}. */
 export interface StageOptions {
-  /** Replace an existing non-empty folder (only one holding nothing but twistline's own outputs). */
+  /** Replace an existing non-empty folder (only one twistline wrote, as its marker file shows, and unchanged since). */
   readonly force: boolean;
   /** Input files: a target folder that contains one of them is never replaced. */
   readonly protect?: readonly string[];
@@ -27,44 +29,75 @@ export interface StageOptions {
   readonly option?: string;
 }
 
-/** File names twistline writes into an output folder (and its per-wire subfolders). */
-const OWN_FILE = /^(profile\.csv|model\.json|chain\.csv|report\.html|summary\.csv|wire\.(ply|stl|obj|glb)|centerline\.vtp|tube\.vtp|texture\.ovf|texture-binary8\.ovf|mask\.ovf)$/;
+/** The marker file twistline leaves in every output folder it writes: the list of files it wrote there. */
+export const OWNER_MARKER = ".twistline-owned.json";
 
-/** The first entry under `dir` that twistline did not write (depth 2: per-wire folders), or null. */
-async function foreignEntry(dir: string, depth = 0): Promise<string | null> {
-  for (const e of await readdir(dir, { withFileTypes: true })) {
-    if (e.isFile() && OWN_FILE.test(e.name)) continue;
-    if (e.isDirectory() && depth === 0) {
-      const inner = await foreignEntry(join(dir, e.name), 1);
-      if (inner === null) continue;
-      return join(e.name, inner);
+/** Every file under `dir` (relative paths with "/"), folders walked; symbolic links count as files. */
+async function listFiles(dir: string): Promise<string[]> {
+  const out: string[] = [];
+  const walk = async (sub: string): Promise<void> => {
+    for (const e of await readdir(join(dir, sub), { withFileTypes: true })) {
+      const rel = sub === "" ? e.name : `${sub}/${e.name}`;
+      if (e.isDirectory()) await walk(rel);
+      else out.push(rel);
     }
-    return e.name;
+  };
+  await walk("");
+  return out.sort();
+}
+
+/**
+ * Why `dir` may not be replaced, or null when it may: it must carry twistline's marker, and hold
+ * nothing but the files the marker lists (a file added since, or a folder the user made look alike
+ * by name, is never deleted).
+ */
+async function notOwned(dir: string): Promise<string | null> {
+  const text = await readFile(join(dir, OWNER_MARKER), "utf8").catch(() => null);
+  if (text === null) return `has no ${OWNER_MARKER} (twistline's mark on the folders it writes)`;
+  let listed: Set<string>;
+  try {
+    const doc = JSON.parse(text) as { tool?: unknown; files?: unknown };
+    if (doc.tool !== TOOL_NAME || !Array.isArray(doc.files) || !doc.files.every((f) => typeof f === "string")) throw new Error("marker");
+    listed = new Set(doc.files as string[]);
+  } catch {
+    return `has a ${OWNER_MARKER} that twistline did not write`;
+  }
+  for (const f of await listFiles(dir)) {
+    if (f !== OWNER_MARKER && !listed.has(f)) return `holds ${JSON.stringify(f)}, which twistline did not write`;
   }
   return null;
 }
 
 function inside(child: string, parent: string): boolean {
   const r = relative(parent, child);
-  return r !== "" && !r.startsWith("..") && !r.startsWith(sep) && r !== ".." ;
+  return r !== "" && !r.startsWith("..") && !r.startsWith(sep) && r !== "..";
 }
 
 /**
- * Prepares an output folder that appears all at once or not at all: checks the target, creates a
- * temporary sibling (`.<name>.<random>.tmp`) for the caller to fill, and on `commit` renames it
- * into place. An existing non-empty target is refused unless `force`; with `force` it is replaced
- * only when it holds nothing but twistline's own outputs and no input file, so nothing else is ever
- * deleted. Missing parent folders are created.
- * @throws {ParameterError} target is a file; non-empty without force; holds foreign files or an input.
+ * Prepares an output folder that appears all at once or not at all: checks the target, removes
+ * temporary siblings that killed runs left behind, creates a temporary sibling for the caller to
+ * fill (named as in tempSibling.ts, and registered so a signal handler can remove it), and on
+ * `commit` writes the marker file {@link OWNER_MARKER} (the list of files written) and renames the
+ * folder into place. An existing non-empty target is refused unless `force`; with `force` it is
+ * replaced only when it carries the marker and holds nothing the marker does not list, and no input
+ * file, so nothing a user made is ever deleted. Missing parent folders are created.
+ * @throws {ParameterError} target is a file; non-empty without force; not twistline's own or holds
+ *   an input; a parent folder that cannot be made or written (with the file-system cause).
  */
 export async function stageOutputDir(target: string, options: StageOptions): Promise<StagedDir> {
   const where = options.where, option = options.option ?? "--out";
   if (target === "") throw new ParameterError(where, option, "must not be empty");
   const abs = resolve(target);
-  const info = await stat(abs).catch(() => null);
+  const fsFail = (what: string) => (e: unknown): never => {
+    const problem = fsProblem(e);
+    if (problem === null) throw e;
+    throw new ParameterError(where, option, `${what}: ${problem}`);
+  };
+  const info = await lstat(abs).catch((e: unknown) => ((e as { code?: unknown }).code === "ENOENT" ? null : fsFail(`cannot use ${JSON.stringify(target)}`)(e)));
   if (info !== null) {
+    if (info.isSymbolicLink()) throw new ParameterError(where, option, `${JSON.stringify(target)} is a symbolic link; give the folder itself`);
     if (!info.isDirectory()) throw new ParameterError(where, option, `${JSON.stringify(target)} exists and is not a folder`);
-    const entries = await readdir(abs);
+    const entries = await readdir(abs).catch(fsFail(`cannot read the folder ${JSON.stringify(target)}`));
     if (entries.length > 0) {
       if (!options.force) throw new ParameterError(where, option, `folder ${JSON.stringify(target)} exists and is not empty (add --force to replace it)`);
       for (const input of options.protect ?? []) {
@@ -72,22 +105,18 @@ export async function stageOutputDir(target: string, options: StageOptions): Pro
           throw new ParameterError(where, option, `folder ${JSON.stringify(target)} contains the input ${JSON.stringify(input)}; refusing to replace it`);
         }
       }
-      const foreign = await foreignEntry(abs);
-      if (foreign !== null) {
-        throw new ParameterError(where, option, `folder ${JSON.stringify(target)} holds ${JSON.stringify(foreign)}, which twistline did not write; refusing to replace it`);
-      }
+      const why = await notOwned(abs);
+      if (why !== null) throw new ParameterError(where, option, `folder ${JSON.stringify(target)} ${why}; refusing to replace it`);
     }
   }
   const parent = dirname(abs);
-  try {
-    await mkdir(parent, { recursive: true });
-  } catch (e) {
-    throw new ParameterError(where, option, `cannot create the folder ${JSON.stringify(dirname(target))}: ${(e as Error).message}`);
-  }
+  await mkdir(parent, { recursive: true }).catch(fsFail(`cannot create the folder ${JSON.stringify(dirname(target))}`));
+  await removeStaleSiblings(abs);
   // not mkdtemp: its 0700 mode would stay on the finished folder; mkdir honours the umask
-  const path = join(parent, `.${basename(abs)}.${randomBytes(6).toString("hex")}.tmp`);
+  const path = tempSibling(abs, "tmp");
   await mkdir(path).catch((e: unknown) => {
-    throw new ParameterError(where, option, `cannot write in ${JSON.stringify(dirname(target))}: ${(e as Error).message}`);
+    releaseSibling(path);
+    return fsFail(`cannot write in ${JSON.stringify(dirname(target))}`)(e);
   });
   let done = false;
   return {
@@ -96,20 +125,33 @@ export async function stageOutputDir(target: string, options: StageOptions): Pro
     async commit() {
       if (done) throw new Error("stageOutputDir: commit after commit or abort");
       done = true;
-      const old = (await stat(abs).catch(() => null)) !== null ? join(parent, `.${basename(abs)}.${randomBytes(6).toString("hex")}.old`) : null;
-      if (old !== null) await rename(abs, old);
       try {
-        await rename(path, abs);
+        const files = await listFiles(path);
+        await writeFile(join(path, OWNER_MARKER), `${JSON.stringify({ tool: TOOL_NAME, note: "written by twistline: --force may replace this folder while it holds only these files", files }, null, 1)}\n`);
+        const old = (await stat(abs).catch(() => null)) !== null ? tempSibling(abs, "old") : null;
+        if (old !== null) await rename(abs, old);
+        try {
+          await rename(path, abs);
+        } catch (e) {
+          if (old !== null) await rename(old, abs).catch(() => undefined);
+          throw e;
+        } finally {
+          releaseSibling(path);
+        }
+        if (old !== null) {
+          await rm(old, { recursive: true, force: true }).catch(() => undefined);
+          releaseSibling(old);
+        }
       } catch (e) {
-        if (old !== null) await rename(old, abs).catch(() => undefined);
-        await rm(path, { recursive: true, force: true });
-        throw e;
+        await rm(path, { recursive: true, force: true }).catch(() => undefined);
+        releaseSibling(path);
+        fsFail(`cannot finish ${JSON.stringify(target)} (nothing was written)`)(e);
       }
-      if (old !== null) await rm(old, { recursive: true, force: true });
     },
     async abort() {
       done = true;
-      await rm(path, { recursive: true, force: true });
+      await rm(path, { recursive: true, force: true }).catch(() => undefined);
+      releaseSibling(path);
     },
   };
 }

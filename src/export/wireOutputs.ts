@@ -4,7 +4,7 @@ import { reducedSystem } from "../physics/reducedSystem.js";
 import { buildReport } from "../report/buildReport.js";
 import { FLAG_END, PER_METRE, type LengthUnit } from "../types.js";
 import type { Analysis } from "./analyzeTrace.js";
-import { CHAIN_GEOMETRY_COLUMNS, CHAIN_MODEL_COLUMNS, CHAIN_TEXTURE_COLUMNS, chainToCsv, type ChainModel } from "./chainToCsv.js";
+import { CHAIN_GEOMETRY_COLUMNS, CHAIN_MODEL_COLUMNS, CHAIN_TEXTURE_COLUMNS, chainCsvChunks, type ChainModel } from "./chainToCsv.js";
 import { brief } from "./brief.js";
 import { jsonNumber } from "./formatNumber.js";
 import { meshToBytes, type MeshFormat } from "./meshToBytes.js";
@@ -13,7 +13,8 @@ import { buildModelDocument, modelToJson, type ExportEntry, type ModelDocument, 
 import { gridToOvf, textureGrid } from "./textureToOvf.js";
 import { TOOL_NAME, TOOL_VERSION } from "./version.js";
 import { wireVtpFiles } from "./wireToVtp.js";
-import { profileToCsv } from "./profileToCsv.js";
+import { profileCsvChunks } from "./profileToCsv.js";
+import type { Chunks } from "./tableChunks.js";
 import { resampleWire, type ResampledWire } from "./resampleWire.js";
 import { tubeMesh, type TubeMesh } from "./tubeMesh.js";
 
@@ -65,7 +66,8 @@ export interface WireOutputOptions {
 /** One file of an analysis folder. */
 export interface OutputFile {
   readonly name: string;
-  readonly data: string | Uint8Array;
+  /** The bytes; the long tables (profile, chain) as a re-readable chunk sequence (see tableChunks.ts). */
+  readonly data: string | Uint8Array | Chunks;
 }
 
 /** Everything an analysis folder holds, in memory, plus what was decided on the way. */
@@ -211,7 +213,7 @@ export async function buildWireOutputs(a: Analysis, options: WireOutputOptions):
   const spacingNote = options.spacing !== undefined ? "--spacing" : def.note;
   const chain = resampleWire(a.profile, spacing);
   const cm = chainModel(a, chain);
-  const chainCsv = chainToCsv(chain, cm, { unit, source: a.profile.source, spacingNote, requestedSpacing: spacing });
+  const chainCsv = chainCsvChunks(chain, cm, { unit, source: a.profile.source, spacingNote, requestedSpacing: spacing });
   const columns = [...CHAIN_GEOMETRY_COLUMNS, ...(cm !== null ? CHAIN_MODEL_COLUMNS : []), ...(cm?.texture ? CHAIN_TEXTURE_COLUMNS : [])];
 
   const { radius, note: radiusNote } = chooseRadius(a, options.radius, unit);
@@ -298,7 +300,7 @@ export async function buildWireOutputs(a: Analysis, options: WireOutputOptions):
   });
   const report = buildReport({ analysis: a, document, chain, viewerScript: options.viewerScript });
   const files: OutputFile[] = [
-    { name: OUTPUT_NAMES.profile, data: profileToCsv(a.profile, { unit, seed: a.seed }) },
+    { name: OUTPUT_NAMES.profile, data: profileCsvChunks(a.profile, { unit, seed: a.seed }) },
     { name: OUTPUT_NAMES.model, data: modelToJson(document) },
     { name: OUTPUT_NAMES.chain, data: chainCsv },
     { name: OUTPUT_NAMES.mesh(format), data: meshBytes },

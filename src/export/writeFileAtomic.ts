@@ -1,8 +1,8 @@
-import { randomBytes } from "node:crypto";
 import { open, rename, unlink } from "node:fs/promises";
-import { basename, dirname, join, resolve } from "node:path";
+import { resolve } from "node:path";
 import { ParameterError } from "../errors.js";
 import { sameFile } from "./sameFile.js";
+import { releaseSibling, removeStaleSiblings, tempSibling } from "./tempSibling.js";
 
 /** Options of {@link writeFileAtomic}. */
 export interface WriteFileAtomicOptions {
@@ -10,29 +10,42 @@ export interface WriteFileAtomicOptions {
   readonly protect?: readonly string[];
 }
 
+/** What can be written: all at once, or as a sequence of chunks (a streaming writer's output). */
+export type FileData = string | Uint8Array | Iterable<string | Uint8Array> | AsyncIterable<string | Uint8Array>;
+
 /**
  * Writes `data` to `path` all at once or not at all: into a new temporary file in the same folder
- * (`.name.<random>.tmp`, created exclusively), flushed to disk, then renamed over `path`, so a reader
- * never sees a half-written file and a failure leaves any old file untouched. The temporary file is
- * removed when anything fails.
+ * (see tempSibling.ts for its name, created exclusively), flushed to disk, then renamed over `path`,
+ * so a reader never sees a half-written file and a failure leaves any old file untouched. The
+ * temporary file is removed when anything fails, and temporary siblings of `path` left behind by
+ * killed runs are removed first. `data` may be a sequence of chunks, written one at a time, so a
+ * large table never has to be one string.
  *
  * Cost: one write and one fsync of `data`.
  * @throws {ParameterError} when `path` is one of `options.protect` (same resolved path or same file).
- *   File-system errors (missing folder, permissions, `path` is a directory) are rethrown as they are,
- *   with their `code`.
+ *   File-system errors (missing folder, permissions, `path` is a directory, a full disk) are rethrown
+ *   as they are, with their `code` (see src/import/fsProblem.ts for their words).
  */
-export async function writeFileAtomic(path: string, data: string | Uint8Array, options: WriteFileAtomicOptions = {}): Promise<void> {
+export async function writeFileAtomic(path: string, data: FileData, options: WriteFileAtomicOptions = {}): Promise<void> {
   for (const input of options.protect ?? []) {
     if (await sameFile(path, input)) {
       throw new ParameterError("writeFileAtomic", "path", `${JSON.stringify(path)} is an input file; refusing to overwrite it`);
     }
   }
   const target = resolve(path);
-  const temp = join(dirname(target), `.${basename(target)}.${randomBytes(6).toString("hex")}.tmp`);
-  const handle = await open(temp, "wx", 0o666);
+  await removeStaleSiblings(target);
+  const temp = tempSibling(target, "tmp");
   try {
+    const handle = await open(temp, "wx", 0o666);
     try {
-      await handle.writeFile(data);
+      if (typeof data === "string" || data instanceof Uint8Array) {
+        await handle.writeFile(data);
+      } else {
+        for await (const chunk of data) {
+          if (typeof chunk === "string") await handle.write(chunk);
+          else await handle.write(chunk);
+        }
+      }
       await handle.sync();
     } finally {
       await handle.close();
@@ -41,5 +54,7 @@ export async function writeFileAtomic(path: string, data: string | Uint8Array, o
   } catch (e) {
     await unlink(temp).catch(() => undefined);
     throw e;
+  } finally {
+    releaseSibling(temp);
   }
 }

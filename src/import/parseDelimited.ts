@@ -140,7 +140,9 @@ function readClosed(value: string, file: string, line: number): boolean {
  *   required, z optional, others ignored and reported); a unit in the names declares the unit.
  *   Without a header a row holds 2 (x y) or 3 (x y z) numbers, as many as the first row.
  * - 2 coordinates give `dims` 2 with z = 0.
- * - Whole-line comments `# unit: nm` and `# closed: true|false` declare the unit and closure.
+ * - Whole-line comments `# unit: nm` and `# closed: true|false` declare the unit and closure; a
+ *   remark in parentheses after the unit (`# unit: nm (s x y z in nm)`) is allowed, so the
+ *   profile.csv and chain.csv that twistline writes read back as traces.
  * - Numbers are read with `Number()` (so "1.2e", "3nm", "" and "Infinity" are errors, not 1.2, 3, 0);
  *   hexadecimal, octal and binary literals are refused.
  *
@@ -192,7 +194,9 @@ export function parseDelimited(text: string, file: string, options: TraceReadOpt
       const d = DIRECTIVE.exec(line);
       if (d && text.slice(lineStart, nextHash).trim() === "") {
         if (d[1] === "unit") {
-          const u = parseUnitName(d[2]);
+          // "# unit: nm (s x y z in nm; ...)": a remark in parentheses after the unit (twistline's own outputs) is not part of it
+          const value = /^(\S+)\s+\(.*\)$/.exec(d[2])?.[1] ?? d[2];
+          const u = parseUnitName(value);
           if (u === null) throw new InputError(file, lineNo, "unit", badUnitProblem(d[2]));
           if (declaredUnit !== undefined && declaredUnit.value !== u) {
             throw new InputError(file, lineNo, "unit", `"${u}" contradicts "${declaredUnit.value}" declared on line ${declaredUnit.line}`);

@@ -1,13 +1,13 @@
 /** File-system entry point of the import stage: read a file (or stdin), pick a reader, parse into one trace per wire. */
-import { readFile } from "node:fs/promises";
 import { extname } from "node:path";
 import { InputError, ParameterError } from "../errors.js";
 import type { Trace } from "../types.js";
+import { fsProblem } from "./fsProblem.js";
+import { readInputBytes, STDIN_NAME } from "./readInputBytes.js";
 import { TRACE_READERS } from "./traceReaders.js";
 import type { TraceReadOptions, TraceReader } from "./types.js";
 
-/** The name used in messages for standard input. */
-export const STDIN_NAME = "<stdin>";
+export { STDIN_NAME };
 
 /** Where bytes come from; defaults read the file system. Lets the CLI (and tests) supply stdin. */
 export interface TraceIo {
@@ -42,24 +42,17 @@ export function formatOfPath(path: string, readers: ReadonlyMap<string, TraceRea
   return null;
 }
 
-const FS_PROBLEMS: Readonly<Record<string, string>> = {
-  ENOENT: "no such file",
-  EISDIR: "is a directory, not a file",
-  EACCES: "permission denied",
-  EPERM: "permission denied",
-  ENOTDIR: "a folder on the path is not a directory",
-};
-
 async function readBytes(path: string, io: TraceIo | undefined): Promise<Uint8Array> {
   if (path === "-") {
     if (io?.readStdin === undefined) throw new InputError(STDIN_NAME, null, "file", "standard input is not available here");
     return io.readStdin();
   }
+  if (io?.readFile === undefined) return readInputBytes(path);
   try {
-    return await (io?.readFile ?? readFile)(path);
+    return await io.readFile(path);
   } catch (e) {
-    const code = (e as { code?: unknown }).code;
-    if (typeof code === "string" && Object.hasOwn(FS_PROBLEMS, code)) throw new InputError(path, null, "file", FS_PROBLEMS[code]);
+    const problem = fsProblem(e);
+    if (problem !== null) throw new InputError(path, null, "file", problem);
     throw e;
   }
 }
@@ -125,7 +118,7 @@ export async function readTracesFile(path: string, options: ReadTraceOptions = {
     if (format === undefined) throw new InputError(file, null, "format", "cannot tell the format of standard input; name it");
   }
   const reader = readers.get(format) as TraceReader;
-  const traces = reader.kind === "binary" ? reader.parse(bytes, file, parseOptions) : reader.parse(decodeText(bytes, file), file, parseOptions);
+  const traces = await (reader.kind === "binary" ? reader.parse(bytes, file, parseOptions) : reader.parse(decodeText(bytes, file), file, parseOptions));
   if (traces.length === 0) throw new InputError(file, null, "wires", "none found");
   return traces;
 }

@@ -14,20 +14,25 @@
  */
 import { InputError } from "../errors.js";
 import type { InputUnit, Trace } from "../types.js";
-import { orderCloud } from "./cloud/orderCloud.js";
-import { readCloudPly } from "./cloud/readCloud.js";
 import type { CloudOptions } from "./cloud/types.js";
-import { meshCenterline } from "./mesh/meshCenterline.js";
-import { parseObj } from "./mesh/parseObj.js";
-import { parsePly } from "./mesh/parsePly.js";
-import { parsePlyHeader } from "./mesh/plyHeader.js";
-import { parseStl } from "./mesh/parseStl.js";
 import type { Mesh, MeshReadOptions } from "./mesh/types.js";
 import type { MeshTraceOptions } from "./mesh/readMesh.js";
 import { parseDelimited } from "./parseDelimited.js";
-import { parsePolylineJson } from "./parsePolylineJson.js";
-import { parseSvgPaths } from "./svg/parseSvgPaths.js";
 import type { SvgOptions } from "./svg/types.js";
+
+// Only the delimited-text reader is loaded up front: the others pull in three.js (meshes), ajv
+// (JSON) or the cloud and SVG code, which a run on a CSV file never needs. They load on first use.
+const lazy = {
+  json: () => import("./parsePolylineJson.js"),
+  mesh: () => import("./mesh/meshCenterline.js"),
+  stl: () => import("./mesh/parseStl.js"),
+  obj: () => import("./mesh/parseObj.js"),
+  ply: () => import("./mesh/parsePly.js"),
+  plyHeader: () => import("./mesh/plyHeader.js"),
+  orderCloud: () => import("./cloud/orderCloud.js"),
+  readCloud: () => import("./cloud/readCloud.js"),
+  svg: () => import("./svg/parseSvgPaths.js"),
+};
 import { DEFAULT_INPUT_UNIT, type TraceReadOptions, type TraceReader } from "./types.js";
 
 type Mutable<T> = { -readonly [K in keyof T]: T[K] };
@@ -80,22 +85,20 @@ function spreadFileNotes(traces: Trace[], isFileWide: (note: string, index: numb
   return traces.map((t, i) => (i === 0 ? t : { ...t, diagnostics: [...shared, ...t.diagnostics] }));
 }
 
+type MeshParser = (data: Uint8Array | string, file: string, options: MeshReadOptions) => Mesh;
+
 /** One reader per mesh format: parse (welded, in metres), then the centre line of every wire. */
-function meshReader(kind: "text" | "binary", extension: string, parse: (data: Uint8Array | string, file: string, options: MeshReadOptions) => Mesh): TraceReader {
-  const read = (data: Uint8Array | string, file: string, options: TraceReadOptions): Trace[] => readMesh(data, file, options, parse);
+function meshReader(kind: "text" | "binary", extension: string, load: () => Promise<MeshParser>): TraceReader {
+  const read = async (data: Uint8Array | string, file: string, options: TraceReadOptions): Promise<Trace[]> => readMesh(data, file, options, await load());
   return kind === "text" ? { kind: "text", extensions: [extension], parse: read } : { kind: "binary", extensions: [extension], parse: read };
 }
 
-function readMesh(
-  data: Uint8Array | string,
-  file: string,
-  options: TraceReadOptions,
-  parse: (data: Uint8Array | string, file: string, options: MeshReadOptions) => Mesh,
-): Trace[] {
+async function readMesh(data: Uint8Array | string, file: string, options: TraceReadOptions, parse: MeshParser): Promise<Trace[]> {
   const units = undeclaredUnit(file, options);
   const meshOptions: Mutable<MeshTraceOptions> = { ...units };
   if (options.branches !== undefined) meshOptions.branches = options.branches;
   const mesh = parse(data, file, meshOptions);
+  const { meshCenterline } = await lazy.mesh();
   const traces = meshCenterline(mesh, file, meshOptions);
   // The first wire carries the mesh's own notes (welding, ...) and those about skipped components.
   const own = mesh.diagnostics.length;
@@ -104,7 +107,8 @@ function readMesh(
 }
 
 /** A PLY file with at least one face. */
-function plyHasFaces(bytes: Uint8Array, file: string): boolean {
+async function plyHasFaces(bytes: Uint8Array, file: string): Promise<boolean> {
+  const { parsePlyHeader } = await lazy.plyHeader();
   const face = parsePlyHeader(bytes, file).elements.find((e) => e.name === "face");
   return face !== undefined && face.count > 0;
 }
@@ -116,7 +120,8 @@ function cloudOptions(units: { unit: InputUnit; pixelSize?: number }, closed: bo
   return out;
 }
 
-function readPlyCloud(bytes: Uint8Array, file: string, options: TraceReadOptions): Trace[] {
+async function readPlyCloud(bytes: Uint8Array, file: string, options: TraceReadOptions): Promise<Trace[]> {
+  const { readCloudPly } = await lazy.readCloud();
   return readCloudPly(bytes, file, cloudOptions(undeclaredUnit(file, options), options.closed));
 }
 
@@ -134,10 +139,12 @@ function declaredClosed(text: string): boolean | undefined {
  * the wire by `orderCloud`. The file's closure declaration holds unless the caller overrides it;
  * a repeated last point means nothing in a cloud, so it is not taken as closure.
  */
-function readTextCloud(text: string, file: string, options: TraceReadOptions): Trace {
+async function readTextCloud(text: string, file: string, options: TraceReadOptions): Promise<Trace> {
   const json = /^\uFEFF?\s*\{/.test(text);
+  const parsePolylineJson = json ? (await lazy.json()).parsePolylineJson : null;
+  const { orderCloud } = await lazy.orderCloud();
   const read: Mutable<TraceReadOptions> = { ...orderedOptions(options), closed: false };
-  const points = json ? parsePolylineJson(text, file, read) : parseDelimited(text, file, read);
+  const points = parsePolylineJson !== null ? parsePolylineJson(text, file, read) : parseDelimited(text, file, read);
   let fileClosed: boolean | undefined;
   if (json) {
     const c = (JSON.parse(text.replace(/^\uFEFF/, "")) as { closed?: unknown }).closed;
@@ -164,11 +171,11 @@ function decodeUtf8(bytes: Uint8Array, file: string): string {
   }
 }
 
-function readSvg(text: string, file: string, options: TraceReadOptions): Trace[] {
+async function readSvg(text: string, file: string, options: TraceReadOptions): Promise<Trace[]> {
   if (options.unit !== undefined && options.unit !== "px") {
     throw new InputError(
       file, null, "unit",
-      `an SVG drawing is in user units (px), not "${options.unit}": calibrate it with a pixel size (metres per user unit) or a physical width on its root <svg>`,
+      `an SVG drawing is in user units (px), not "${options.unit}": calibrate it with --pixel-size (the size of one user unit, e.g. 2.5nm) or a physical width on its root <svg>`,
     );
   }
   const svgOptions: Mutable<SvgOptions> = {};
@@ -178,6 +185,7 @@ function readSvg(text: string, file: string, options: TraceReadOptions): Trace[]
     }
     svgOptions.pixelSize = options.pixelSize;
   }
+  const { parseSvgPaths } = await lazy.svg();
   const traces = parseSvgPaths(text, file, svgOptions);
   // A wire's own note names its element and line ("path#a (line 4)..."); the rest is file-wide.
   const own = /^\S+(?: \d+)? \(line \d+\)/;
@@ -190,15 +198,15 @@ export const TRACE_READERS: ReadonlyMap<string, TraceReader> = new Map<string, T
   ["tsv", delimited(".tsv")],
   ["txt", delimited(".txt")],
   ["xyz", delimited(".xyz")],
-  ["json", { kind: "text", extensions: [".json"], parse: (text, file, options) => [parsePolylineJson(text, file, orderedOptions(options))] }],
-  ["stl", meshReader("binary", ".stl", parseStl)],
-  ["obj", meshReader("text", ".obj", parseObj)],
+  ["json", { kind: "text", extensions: [".json"], parse: async (text, file, options) => [(await lazy.json()).parsePolylineJson(text, file, orderedOptions(options))] }],
+  ["stl", meshReader("binary", ".stl", async () => (await lazy.stl()).parseStl)],
+  ["obj", meshReader("text", ".obj", async () => (await lazy.obj()).parseObj)],
   [
     "ply",
     {
       kind: "binary",
       extensions: [".ply"],
-      parse: (data, file, options) => (plyHasFaces(data, file) ? readMesh(data, file, options, parsePly) : readPlyCloud(data, file, options)),
+      parse: async (data, file, options) => ((await plyHasFaces(data, file)) ? readMesh(data, file, options, (await lazy.ply()).parsePly) : readPlyCloud(data, file, options)),
     },
   ],
   ["svg", { kind: "text", extensions: [".svg"], parse: readSvg }],
@@ -207,7 +215,7 @@ export const TRACE_READERS: ReadonlyMap<string, TraceReader> = new Map<string, T
     {
       kind: "binary",
       extensions: [],
-      parse: (data, file, options) => (isPly(data) ? readPlyCloud(data, file, options) : [readTextCloud(decodeUtf8(data, file), file, options)]),
+      parse: async (data, file, options) => (isPly(data) ? readPlyCloud(data, file, options) : [await readTextCloud(decodeUtf8(data, file), file, options)]),
     },
   ],
 ]);

@@ -34,14 +34,15 @@ export interface TextTraceReader {
   readonly kind: "text";
   /** File-name endings (lowercase, with the dot) that select this reader; empty: only by name. */
   readonly extensions: readonly string[];
-  parse(text: string, file: string, options: TraceReadOptions): Trace[];
+  /** May be asynchronous: heavy parsers (three.js loaders, ajv) are loaded on first use only. */
+  parse(text: string, file: string, options: TraceReadOptions): Trace[] | Promise<Trace[]>;
 }
 
 /** A parser of one binary format (for example binary STL), given the file's bytes. */
 export interface BinaryTraceReader {
   readonly kind: "binary";
   readonly extensions: readonly string[];
-  parse(data: Uint8Array, file: string, options: TraceReadOptions): Trace[];
+  parse(data: Uint8Array, file: string, options: TraceReadOptions): Trace[] | Promise<Trace[]>;
 }
 
 /** One entry of the format table (see traceReaders.ts). */

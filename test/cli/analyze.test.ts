@@ -26,7 +26,7 @@ describe("twistline analyze", () => {
   it("writes profile.csv, model.json, chain.csv, wire.ply and report.html, and one summary line on stderr", () => {
     expect(full.code).toBe(0);
     expect(full.stdout).toBe("");
-    expect(readdirSync(fullDir).sort()).toEqual(["chain.csv", "model.json", "profile.csv", "report.html", "wire.ply"]);
+    expect(readdirSync(fullDir).sort()).toEqual([".twistline-owned.json", "chain.csv", "model.json", "profile.csv", "report.html", "wire.ply"]);
     expect(full.stderr).toMatch(/^twistline: .*helix\.csv: length [\d.]+ nm, \d+ stretch(es)? \(.*\); \d+ pinning sites?, \d+ metastable; chain spacing [\d.]+ nm \(default: .*\); wrote .*full\n$/);
     expect(readdirSync(root).filter((f) => f.startsWith("."))).toEqual([]); // no temporary folder left
   });
@@ -59,7 +59,7 @@ describe("twistline analyze", () => {
     expect(again).toEqual({ code: 1, stdout: "", stderr: `twistline: analyze: --out: folder ${JSON.stringify(fullDir)} exists and is not empty (add --force to replace it)\n` });
     const forced = await run(["analyze", arc, "--out", fullDir, "--quiet", "--force", "--bootstrap", "20", "--mesh", "stl"]);
     expect(forced.code).toBe(0);
-    expect(readdirSync(fullDir).sort()).toEqual(["chain.csv", "model.json", "profile.csv", "report.html", "wire.stl"]);
+    expect(readdirSync(fullDir).sort()).toEqual([".twistline-owned.json", "chain.csv", "model.json", "profile.csv", "report.html", "wire.stl"]);
   });
 
   it("without --material does the geometry, and says what a material would add", async () => {

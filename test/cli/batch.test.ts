@@ -27,7 +27,7 @@ describe("twistline batch", () => {
     const r = await run(["batch", inputs, "--material", material, "--out", out, "--jobs", "2", "--bootstrap", "20"], { stderrIsTTY: false });
     expect(r.code).toBe(1); // some wires failed: exit 1, after everything was written
     expect(r.stdout).toBe("");
-    expect(readdirSync(out).sort()).toEqual(["a-helix", "b-arc", "summary.csv"]);
+    expect(readdirSync(out).sort()).toEqual([".twistline-owned.json", "a-helix", "b-arc", "summary.csv"]);
     expect(readdirSync(join(out, "a-helix")).sort()).toEqual(["chain.csv", "model.json", "profile.csv", "report.html", "wire.ply"]);
     const rows = summary(out);
     expect(rows[0]).toEqual([...SUMMARY_COLUMNS]);

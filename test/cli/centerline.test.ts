@@ -243,7 +243,7 @@ describe("twistline profile on meshes, clouds and SVG", () => {
     // Arc of 150 user units at 2 nm each: R = 300 nm = 0.3 um, kappa = 3.3333 1/um.
     const svg = '<svg xmlns="http://www.w3.org/2000/svg" viewBox="0 0 400 400">\n  <path d="M 50 200 A 150 150 0 0 1 350 200"/>\n</svg>\n';
     const { dir, input } = fresh("arc.svg", svg);
-    const r = await run(["profile", input, "--pixel-size", "2nm", "--out", join(dir, "p.csv"), "--bootstrap", "20", "--quiet"]);
+    const r = await run(["profile", input, "--pixel-size", "2nm", "--out", join(dir, "p.csv"), "--bootstrap", "20", "--quiet", "--out-unit", "um"]);
     expect(r.code).toBe(0);
     const { comments, rows } = readCsv(readFileSync(join(dir, "p.csv"), "utf8"));
     expect(comments).toContain(`# source: ${input} (unit px, pixel size 0.002 um)`);
@@ -255,7 +255,7 @@ describe("twistline profile on meshes, clouds and SVG", () => {
       expect(row[19] & FLAG_TORSION_NOT_MEASURABLE).toBe(FLAG_TORSION_NOT_MEASURABLE);
     }
     // centerline writes the flattened path in um, z = 0
-    const c = await run(["centerline", input, "--pixel-size", "2nm", "--out", join(dir, "arc.csv"), "--quiet"]);
+    const c = await run(["centerline", input, "--pixel-size", "2nm", "--out", join(dir, "arc.csv"), "--quiet", "--out-unit", "um"]);
     expect(c.code).toBe(0);
     const t = readCsv(readFileSync(join(dir, "arc.csv"), "utf8"));
     expect(t.header).toEqual(["x", "y", "z"]);

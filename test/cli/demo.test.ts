@@ -64,7 +64,7 @@ describe("twistline demo, end to end", () => {
     const dir = join(root, "demo");
     const r = await run(["demo", "--out", dir]);
     expect(r.code).toBe(0);
-    expect(readdirSync(dir).sort()).toEqual(["afm-coil", "coil", "meander", "ring", "summary.csv"]);
+    expect(readdirSync(dir).sort()).toEqual([".twistline-owned.json", "afm-coil", "coil", "meander", "ring", "summary.csv"]);
     for (const w of ["coil", "meander", "ring", "afm-coil"]) {
       expect(readdirSync(join(dir, w)).sort()).toEqual(["chain.csv", "model.json", "profile.csv", "report.html", "wire.ply"]);
     }

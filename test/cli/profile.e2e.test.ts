@@ -106,16 +106,16 @@ describe.skipIf(!fitReady)("twistline profile, end to end", () => {
     }
   });
 
-  it("gives the same profile for the same wire in pixels with a pixel size (output in um)", async () => {
+  it("gives the same profile for the same wire in pixels with a pixel size (output in nm, the pixel size's unit)", async () => {
     const { dir, input } = fresh(helixCsv(200, 0.05, 14));
     const px = join(dir, "px.csv");
     writeFileSync(px, helixCsv(200, 0.05, 14, false, 1 / 2)); // 2 nm per pixel
-    await run(["profile", input, "--out", join(dir, "nm.json"), "--bootstrap", "0", "--quiet", "--out-unit", "um"]);
+    await run(["profile", input, "--out", join(dir, "nm.json"), "--bootstrap", "0", "--quiet"]);
     const r = await run(["profile", px, "--unit", "px", "--pixel-size", "2nm", "--out", join(dir, "px.json"), "--bootstrap", "0", "--quiet"]);
     expect(r.code).toBe(0);
     const A = JSON.parse(readFileSync(join(dir, "nm.json"), "utf8")) as { unit: string; columns: { kappa: number[] } };
     const B = JSON.parse(readFileSync(join(dir, "px.json"), "utf8")) as { unit: string; columns: { kappa: number[] } };
-    expect(B.unit).toBe("um");
+    expect(B.unit).toBe("nm");
     // Same wire in metres up to rounding (px * 2e-9 vs nm / 1e9), so the same fit up to its sensitivity.
     let worst = 0;
     for (let i = 0; i < 200; ++i) worst = Math.max(worst, Math.abs(B.columns.kappa[i] / A.columns.kappa[i] - 1));

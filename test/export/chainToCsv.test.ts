@@ -5,13 +5,14 @@ import { resampleWire } from "../../src/export/resampleWire.js";
 import { buildWireOutputs } from "../../src/export/wireOutputs.js";
 import { analysisFixture, MATERIAL_JSON } from "./analysisFixture.js";
 import { helixProfile, readCsv } from "./helixProfile.js";
+import { chunksToText, type Chunks } from "../../src/export/tableChunks.js";
 
 let a: Analysis;
 let text: string;
 beforeAll(async () => {
   a = analysisFixture();
   const out = await buildWireOutputs(a, { unit: "nm", viewerScript: "/* no viewer in this test */" });
-  text = out.files.find((f) => f.name === "chain.csv")!.data as string;
+  text = chunksToText(out.files.find((f) => f.name === "chain.csv")!.data as Chunks);
 });
 
 describe("chainToCsv(wire, model, options)", () => {

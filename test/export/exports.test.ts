@@ -1,4 +1,5 @@
 /** VTK XML PolyData and OVF 2.0 exports, read back by independent readers (test/support/xmlReader, ovfReader). */
+import { chunksToText } from "../../src/export/tableChunks.js";
 import { Ajv2020 } from "ajv/dist/2020.js";
 import { readFileSync } from "node:fs";
 import { beforeAll, describe, expect, it } from "vitest";
@@ -30,7 +31,7 @@ function readVtp(text: string): { points: number; lines: number; polys: number; 
   };
 }
 
-const file = (o: WireOutputs, name: string): string | Uint8Array => o.files.find((f) => f.name === name)!.data;
+const file = (o: WireOutputs, name: string): string | Uint8Array => { const d = o.files.find((f) => f.name === name)!.data; return typeof d === "string" || d instanceof Uint8Array ? d : chunksToText(d); };
 
 describe("VTK XML PolyData exports (centerline.vtp, tube.vtp)", () => {
   let out: WireOutputs;

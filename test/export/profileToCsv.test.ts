@@ -75,12 +75,16 @@ describe("profileToCsv(profile, options)", () => {
     }
   });
 
-  it("defaults to the input unit, and to um for pixel inputs", () => {
+  it("defaults to the input unit, and for pixels to the unit their size is written in (issue 12)", () => {
     expect(defaultOutputUnit({ file: "a", unit: "A" })).toBe("A");
     const px = helixProfile(a, b, 5, { file: "img.csv", unit: "px", pixelSize: 2.5e-9 });
     const text = profileToCsv(px);
-    expect(text).toContain("# unit: um (");
-    expect(text).toContain("# source: img.csv (unit px, pixel size 0.0025 um)");
+    expect(text).toContain("# unit: nm (");
+    expect(text).toContain("# source: img.csv (unit px, pixel size 2.5 nm)");
+    expect(defaultOutputUnit({ file: "a", unit: "px", pixelSize: 0.4e-6 })).toBe("nm");
+    expect(defaultOutputUnit({ file: "a", unit: "px", pixelSize: 1.5e-6 })).toBe("um");
+    expect(defaultOutputUnit({ file: "a", unit: "px", pixelSize: 2e-3 })).toBe("m");
+    expect(defaultOutputUnit({ file: "a", unit: "px" })).toBe("um");
   });
 
   it("writes NaN as NaN and records a missing seed as not recorded", () => {

@@ -50,8 +50,8 @@ describe("profileToJson(profile, options)", () => {
     const tauLo = p.tauLo.slice();
     tauLo[1] = NaN;
     const doc = JSON.parse(profileToJson({ ...p, tauLo })) as ProfileDoc;
-    expect(doc.unit).toBe("um");
-    expect(doc.source).toEqual({ file: "img.json", unit: "px", pixelSize: 0.002 });
+    expect(doc.unit).toBe("nm"); // the unit of a 2 nm pixel (issue 12)
+    expect(doc.source).toEqual({ file: "img.json", unit: "px", pixelSize: 2 });
     expect(doc.columns.tau_lo[1]).toBeNull();
     expect(doc.bootstrap.seed).toBeNull();
   });

@@ -28,7 +28,7 @@ const FACE_BYTES = 50;
 export function parseStl(data: Uint8Array | string, file: string, options: MeshReadOptions): Mesh {
   const toMetres = unitToMetres(options.unit, options.pixelSize, "parseStl");
   const bytes = asBytes(data);
-  const ascii = !looksBinary(bytes) && startsWithSolid(bytes);
+  const ascii = !looksBinary(bytes) && startsWithSolid(bytes) && looksText(bytes);
   let soup: Float32Array;
   const diagnostics: string[] = [];
   if (ascii) {
@@ -75,6 +75,21 @@ function looksBinary(bytes: Uint8Array): boolean {
   if (bytes.byteLength < 84) return false;
   const n = new DataView(bytes.buffer, bytes.byteOffset, bytes.byteLength).getUint32(80, true);
   return 84 + FACE_BYTES * n === bytes.byteLength;
+}
+
+/**
+ * Whether the first 1 KiB is text: no control bytes other than tab, CR, LF, FF. Binary STL
+ * headers often start with "solid" too (against the convention), and their triangle data is full
+ * of control bytes, so this tells the two apart when the size alone does not.
+ */
+function looksText(bytes: Uint8Array): boolean {
+  const n = Math.min(bytes.byteLength, 1024);
+  for (let i = 0; i < n; i++) {
+    const b = bytes[i];
+    if (b < 0x20 && b !== 0x09 && b !== 0x0a && b !== 0x0d && b !== 0x0c) return false;
+    if (b === 0x7f) return false;
+  }
+  return true;
 }
 
 function startsWithSolid(bytes: Uint8Array): boolean {

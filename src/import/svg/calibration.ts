@@ -65,7 +65,7 @@ export function calibrate(
   if (fx === undefined && fy === undefined) {
     throw new InputError(
       file, line, "svg",
-      "no pixel calibration: pass a pixel size (metres per SVG user unit) or give the root <svg> a width or height in a physical unit (mm, cm, in, pt, pc, or m, um, nm) with a viewBox",
+      "no pixel calibration: give --pixel-size, the size of one user unit (e.g. --pixel-size 2.5nm; `pixelSize` in metres from the library), or give the root <svg> a width or height in a physical unit (mm, cm, in, pt, pc, or m, um, nm) with a viewBox",
     );
   }
   const par = (root.get("preserveAspectRatio") ?? "").trim();

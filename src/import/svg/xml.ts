@@ -19,8 +19,13 @@ const ENTITIES: Readonly<Record<string, string>> = { amp: "&", lt: "<", gt: ">",
 
 function decode(value: string, file: string, line: number): string {
   return value.replace(/&(#x[0-9a-fA-F]+|#[0-9]+|[a-zA-Z]+);/g, (m, body: string) => {
-    if (body.startsWith("#x")) return String.fromCodePoint(parseInt(body.slice(2), 16));
-    if (body.startsWith("#")) return String.fromCodePoint(parseInt(body.slice(1), 10));
+    if (body.startsWith("#")) {
+      const code = body.startsWith("#x") ? parseInt(body.slice(2), 16) : parseInt(body.slice(1), 10);
+      // XML 1.0 Char production (https://www.w3.org/TR/xml/#NT-Char): no NUL, no surrogates, at most U+10FFFF
+      const legal = code === 0x9 || code === 0xa || code === 0xd || (code >= 0x20 && code <= 0xd7ff) || (code >= 0xe000 && code <= 0xfffd) || (code >= 0x10000 && code <= 0x10ffff);
+      if (!legal) throw new InputError(file, line, "xml", `character reference ${m.length > 24 ? `${m.slice(0, 20)}...` : m} is not a legal XML character (allowed up to U+10FFFF, no control characters or surrogates)`);
+      return String.fromCodePoint(code);
+    }
     const e = ENTITIES[body];
     if (e === undefined) throw new InputError(file, line, "xml", `unknown entity ${m}`);
     return e;

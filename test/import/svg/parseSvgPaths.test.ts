@@ -156,7 +156,7 @@ describe("parseSvgPaths(data, file, options)", () => {
     const [w] = parseSvgPaths(text.replace('height="10mm"', 'height="20mm" preserveAspectRatio="none"').replace('d="M0 0 L50 0"', 'd="M0 0 L50 50"'), "n.svg");
     expect(w.xyz[3] / w.xyz[4]).toBeCloseTo(0.5, 12);
     expect(inputError(() => parseSvgPaths(`<svg viewBox="0 0 10 10"><path d="M0 0 L1 1"/></svg>`, "p.svg"))).toBe(
-      "p.svg:1: svg: no pixel calibration: pass a pixel size (metres per SVG user unit) or give the root <svg> a width or height in a physical unit (mm, cm, in, pt, pc, or m, um, nm) with a viewBox",
+      "p.svg:1: svg: no pixel calibration: give --pixel-size, the size of one user unit (e.g. --pixel-size 2.5nm; `pixelSize` in metres from the library), or give the root <svg> a width or height in a physical unit (mm, cm, in, pt, pc, or m, um, nm) with a viewBox",
     );
   });
 
