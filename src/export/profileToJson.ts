@@ -16,7 +16,7 @@ export const PROFILE_JSON_VERSION = 1;
  * { "format": "twistline-profile", "formatVersion": 1, "tool": {...}, "note": "...",
  *   "unit": "nm", "curvatureUnit": "1/nm", "source": { "file", "unit", "pixelSize"? },
  *   "closed", "n", "length", "sigma", "lambda", "lambdaTorsion", "edf", "resolution",
- *   "bootstrap": { "replicates", "seed", "level": 0.95 }, "planarProjection", "outliers",
+ *   "bootstrap": { "replicates", "seed", "level": 0.95 }, "planarProjection", "outliers", "droppedRows", "downweightedRows",
  *   "flags": { "1": "...", ... }, "diagnostics": [...],
  *   "columns": { "s": [...], "x": [...], ..., "flags": [...] } }
  * ```
