@@ -228,10 +228,11 @@ function sampleAt(trace: Trace, start: Start, fit: PassesResult, set: Settings):
   const closed = start.closed;
   if (set.step !== undefined) {
     const step = set.step / start.canon.scale;
-    if (!closed && step > length) {
-      throw new ParameterError("profile", "step", `${describeLength(set.step, trace.source)} is longer than the wire (${describeLength(length * start.canon.scale, trace.source)})`);
-    }
     const count = closed ? Math.max(1, Math.floor(length / step - 1e-9) + 1) : Math.floor(length / step + 1e-9) + 1;
+    if (count < 6) {
+      const most = (length * start.canon.scale) / (closed ? 6 : 5);
+      throw new ParameterError("profile", "step", `${describeLength(set.step, trace.source)} gives ${count} sample${count === 1 ? "" : "s"} along a wire ${describeLength(length * start.canon.scale, trace.source)} long; use at most ${describeLength(most, trace.source)} (6 samples or more)`);
+    }
     if (count > 5_000_000) throw new ParameterError("profile", "step", `gives ${count} samples; use a larger step`);
     const su = new Float64Array(count), s = new Float64Array(count);
     for (let k = 0; k < count; ++k) { s[k] = Math.min(k * step, length); su[k] = uAtArc(basis, coef, table, s[k]); }

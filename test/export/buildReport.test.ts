@@ -87,10 +87,10 @@ describe("buildReport numbers", () => {
         printedAs(m[1], v, `stretch ${i + 1} ${name}`);
         if (m[2] !== undefined) { printedAs(m[2], lo, `stretch ${i + 1} ${name} lo`); printedAs(m[3], hi, `stretch ${i + 1} ${name} hi`); }
       }
-      const [kr, tr] = cells[5].split("<br>");
+      const [kr, tr] = cells[6].split("<br>"); // cells[5]: the fitted shape
       printedAs(kr, g.kappaReduced, `stretch ${i + 1} kappa l`);
       printedAs(tr, g.tauReduced, `stretch ${i + 1} tau l`);
-      const [tilt, dmi] = cells[7].split("<br>");
+      const [tilt, dmi] = cells[8].split("<br>");
       printedAs(tilt, g.tiltDeg, `stretch ${i + 1} tilt`);
       printedAs(dmi.replace(" mJ/m\u00b2", ""), g.dmi === null ? null : g.dmi * 1e3, `stretch ${i + 1} DMI (mJ/m^2)`);
     });

@@ -23,7 +23,7 @@ describe("analyze: model.json run record", () => {
       expect(doc.run.command).toBe(`twistline ${argv.join(" ")}`);
       expect(doc.run.options).toMatchObject({ input, material: mat, bootstrap: 20, seed: 1, mesh: "ply", outUnit: "nm", closed: false, step: null, vtp: true, grid: 4 });
       expect(readdirSync(join(root, "o")).sort()).toEqual(
-        ["centerline.vtp", "chain.csv", "mask.ovf", "model.json", "profile.csv", "report.html", "texture-binary8.ovf", "texture.ovf", "tube.vtp", "wire.ply"]);
+        [".twistline-owned.json", "centerline.vtp", "chain.csv", "mask.ovf", "model.json", "profile.csv", "report.html", "texture-binary8.ovf", "texture.ovf", "tube.vtp", "wire.ply"]);
       expect(doc.outputs.exports?.map((e) => e.format)).toEqual(["vtp", "vtp", "ovf-text", "ovf-binary8", "ovf-text"]);
       // the folder holds only twistline outputs, so --force may replace it
       const again = await run([...argv.slice(0, 2), "--out", join(root, "o"), "--bootstrap", "0", "--export", "vtp", "--force", "--quiet"]);
