@@ -110,7 +110,7 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
     const hom = homogeneousState(system, kr, tUse);
     const labels = ringLabels ?? stretchLabels(system, context, kr, tUse, periodicOptions);
     const { kS, tS } = replicateMeans(g, kr, tr);
-    const prob = ringProb ?? stretchProbabilities(system, context, kS, tS, periodicOptions);
+    const prob = ringProb ?? stretchProbabilities(system, context, kS, tS, periodicOptions, labels.periodic !== null ? { kappa: kr, tau: tUse, result: labels.periodic } : null);
     if (prob.uncertain) flags.push("uncertain: the band straddles the phase boundary or the stability line");
     if (labels.stability === "metastable") flags.push("metastable: a periodic texture has lower energy than the linearly stable homogeneous state");
     // full period (2 x the energy's half-period), only where the periodic state wins or may win

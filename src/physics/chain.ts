@@ -74,6 +74,18 @@ export function uniformChain(
 /** Scratch buffer of normalised vectors, grown on demand (no allocation per call). */
 let scratch = new Float64Array(0);
 
+/** 2 / h per bond of a chain (the same IEEE values chainEnergy computed per call), cached by the h array. */
+const twoOverH = new WeakMap<Float64Array, Float64Array>();
+function bondFactors(h: Float64Array): Float64Array {
+  let f = twoOverH.get(h);
+  if (f === undefined) {
+    f = new Float64Array(h.length);
+    for (let b = 0; b < h.length; ++b) f[b] = 2 / h[b];
+    twoOverH.set(h, f);
+  }
+  return f;
+}
+
 /**
  * Energy of the chain at unnormalised vectors v (3 per node; c = v/|v|), and its gradient with
  * respect to v written into g (projected on the tangent planes, zero at fixed nodes). O(n).
@@ -86,8 +98,8 @@ export function chainEnergy(chain: Chain, v: Float64Array, g: Float64Array | nul
   if (scratch.length < 4 * n) scratch = new Float64Array(4 * n);
   // c = v/|v| (3 per node) and 1/|v| (at 3n + i), computed once
   const c = scratch, invOff = 3 * n;
+  const fb = bondFactors(h);
   let e = 0;
-  if (g !== null) g.fill(0);
   for (let i = 0; i < n; ++i) {
     const x = v[3 * i], y = v[3 * i + 1], z = v[3 * i + 2];
     const inv = 1 / Math.sqrt(x * x + y * y + z * z);
@@ -96,9 +108,10 @@ export function chainEnergy(chain: Chain, v: Float64Array, g: Float64Array | nul
     const wi = w[i];
     e += wi * (q0 * a * a + q4 * b * b + q8 * cc * cc + 2 * (q1 * a * b + q2 * a * cc + q5 * b * cc));
     if (g !== null) {
-      g[3 * i] += 2 * wi * (q0 * a + q1 * b + q2 * cc);
-      g[3 * i + 1] += 2 * wi * (q1 * a + q4 * b + q5 * cc);
-      g[3 * i + 2] += 2 * wi * (q2 * a + q5 * b + q8 * cc);
+      // the first write of this node's gradient (0 + x = x)
+      g[3 * i] = 2 * wi * (q0 * a + q1 * b + q2 * cc);
+      g[3 * i + 1] = 2 * wi * (q1 * a + q4 * b + q5 * cc);
+      g[3 * i + 2] = 2 * wi * (q2 * a + q5 * b + q8 * cc);
     }
     if (field !== null) {
       const hx = field[3 * i], hy = field[3 * i + 1], hz = field[3 * i + 2];
@@ -131,7 +144,7 @@ export function chainEnergy(chain: Chain, v: Float64Array, g: Float64Array | nul
     const r5 = rot[o + 5], r6 = rot[o + 6], r7 = rot[o + 7], r8 = rot[o + 8];
     // R c_i
     const pa = r0 * ai + r1 * bi + r2 * ci, pb = r3 * ai + r4 * bi + r5 * ci, pc = r6 * ai + r7 * bi + r8 * ci;
-    const f = 2 / h[bnd];
+    const f = fb[bnd];
     e += f * (1 - (aj * pa + bj * pb + cj * pc));
     if (g !== null) {
       // d/dc_i = -f R^T c_j ; d/dc_j = -f R c_i (times sgn for the flipped node)

@@ -12,7 +12,7 @@ export { magnonGaps, magnonDispersion, ringLevels } from "./magnonGaps.js";
 export { latticeMagnons } from "./latticeMagnons.js";
 export { periodicState, type PeriodicOptions, type PeriodicResult } from "./periodicState.js";
 export { phaseBoundary } from "./phaseBoundary.js";
-export { stretchLabels, stretchProbabilities, type StretchContext } from "./stretchLabels.js";
+export { decisiveCorners, stretchLabels, stretchProbabilities, type StretchContext } from "./stretchLabels.js";
 export { interactions, type FrameColumns } from "./interactions.js";
 export { wireChain, relaxWire, type WireColumns, type NamedStart, type RelaxedTexture } from "./relaxWire.js";
 export { pinningLandscape, pinningScan, mergeLandscapes, firstOrderPinning, pinningSites, type PinningOptions, type RelaxedWall, type WallLandscape, type LandscapeWell, wallEnergyWith } from "./pinning.js";

@@ -37,8 +37,14 @@ export function lbfgs(
   const S = Array.from({ length: m }, () => new Float64Array(n));
   const Y = Array.from({ length: m }, () => new Float64Array(n));
   const rho = new Float64Array(m), alpha = new Float64Array(m);
-  const g = new Float64Array(n), gNew = new Float64Array(n), d = new Float64Array(n), xNew = new Float64Array(n);
-  let fx = f(x, g);
+  // the current and trial points and gradients swap buffers instead of being copied; x itself is
+  // written back at the end. Every pass below performs the same floating-point operations in the
+  // same order as the plain two-loop recursion (passes are fused only where one pass reads what
+  // the previous one wrote at the same index), so the iterates are bit-identical to it.
+  let xc: Float64Array = x, xt: Float64Array = new Float64Array(n);
+  let g: Float64Array = new Float64Array(n), gt: Float64Array = new Float64Array(n);
+  const d = new Float64Array(n);
+  let fx = f(xc, g);
   let count = 0, head = 0, gamma = 1;
   let history = fx;
   const maxAbs = (v: Float64Array): number => {
@@ -46,31 +52,81 @@ export function lbfgs(
     for (let i = 0; i < n; ++i) a = Math.max(a, Math.abs(v[i]));
     return a;
   };
-  if (maxAbs(g) < gtol) return { energy: fx, iterations: 0, converged: true };
+  const done = (energy: number, iterations: number, converged: boolean): LbfgsResult => {
+    if (xc !== x) x.set(xc);
+    return { energy, iterations, converged };
+  };
+  if (maxAbs(g) < gtol) return done(fx, 0, true);
   for (let it = 1; it <= maxIt; ++it) {
-    // two-loop recursion: d = -H g
-    for (let i = 0; i < n; ++i) d[i] = -g[i];
-    for (let k = 0; k < count; ++k) {
-      const j = (head - 1 - k + m) % m;
-      let a = 0;
-      const s = S[j], y = Y[j];
-      for (let i = 0; i < n; ++i) a += s[i] * d[i];
-      a *= rho[j];
-      alpha[j] = a;
-      for (let i = 0; i < n; ++i) d[i] -= a * y[i];
-    }
-    for (let i = 0; i < n; ++i) d[i] *= gamma;
-    for (let k = count - 1; k >= 0; --k) {
-      const j = (head - 1 - k + m) % m;
-      let b = 0;
-      const s = S[j], y = Y[j];
-      for (let i = 0; i < n; ++i) b += y[i] * d[i];
-      b *= rho[j];
-      const c = alpha[j] - b;
-      for (let i = 0; i < n; ++i) d[i] += c * s[i];
-    }
+    // two-loop recursion: d = -H g (Nocedal & Wright algorithm 7.4)
     let slope = 0;
-    for (let i = 0; i < n; ++i) slope += g[i] * d[i];
+    if (count === 0) {
+      for (let i = 0; i < n; ++i) d[i] = -g[i] * gamma;
+    } else {
+      // first loop, newest pair first; each update of d is fused with the next pair's dot product
+      let j = (head - 1 + m) % m;
+      let a = 0;
+      let s = S[j];
+      for (let i = 0; i < n; ++i) {
+        const di = -g[i];
+        d[i] = di;
+        a += s[i] * di;
+      }
+      for (let k = 0; k < count; ++k) {
+        a *= rho[j];
+        alpha[j] = a;
+        const y = Y[j];
+        if (k + 1 < count) {
+          const jn = (head - 2 - k + m) % m;
+          const sn = S[jn];
+          let an = 0;
+          for (let i = 0; i < n; ++i) {
+            const di = d[i] - a * y[i];
+            d[i] = di;
+            an += sn[i] * di;
+          }
+          j = jn;
+          a = an;
+        } else {
+          // last update of the first loop, fused with the scaling by gamma and the first dot
+          // product of the second loop (oldest pair)
+          const jo = (head - count + m) % m;
+          const yo = Y[jo];
+          let b = 0;
+          for (let i = 0; i < n; ++i) {
+            const di = (d[i] - a * y[i]) * gamma;
+            d[i] = di;
+            b += yo[i] * di;
+          }
+          // second loop, oldest pair first
+          let jj = jo;
+          for (let kk = count - 1; kk >= 0; --kk) {
+            b *= rho[jj];
+            const c = alpha[jj] - b;
+            s = S[jj];
+            if (kk > 0) {
+              const jn = (head - kk + m) % m;
+              const yn = Y[jn];
+              let bn = 0;
+              for (let i = 0; i < n; ++i) {
+                const di = d[i] + c * s[i];
+                d[i] = di;
+                bn += yn[i] * di;
+              }
+              jj = jn;
+              b = bn;
+            } else {
+              for (let i = 0; i < n; ++i) {
+                const di = d[i] + c * s[i];
+                d[i] = di;
+                slope += g[i] * di;
+              }
+            }
+          }
+        }
+      }
+    }
+    if (count === 0) for (let i = 0; i < n; ++i) slope += g[i] * d[i];
     if (!(slope < 0)) {
       // not a descent direction: restart along the steepest descent
       count = 0;
@@ -83,8 +139,8 @@ export function lbfgs(
     }
     let step = 1, fNew = NaN, accepted = false;
     for (let ls = 0; ls < 40; ++ls) {
-      for (let i = 0; i < n; ++i) xNew[i] = x[i] + step * d[i];
-      fNew = f(xNew, gNew);
+      for (let i = 0; i < n; ++i) xt[i] = xc[i] + step * d[i];
+      fNew = f(xt, gt);
       if (Number.isFinite(fNew) && fNew <= fx + 1e-4 * step * slope) {
         accepted = true;
         break;
@@ -93,14 +149,16 @@ export function lbfgs(
     }
     // no decrease found: the energy is flat to round-off along d. Count that as converged when
     // the predicted decrease is below the round-off of f (an n-term sum carries ~n ulps).
-    if (!accepted) return { energy: fx, iterations: it, converged: maxAbs(g) < 100 * gtol || -slope < 1e-14 * n * Math.max(1, Math.abs(fx)) };
+    if (!accepted) return done(fx, it, maxAbs(g) < 100 * gtol || -slope < 1e-14 * n * Math.max(1, Math.abs(fx)));
     const s = S[head], y = Y[head];
-    let sy = 0, yy = 0;
+    let sy = 0, yy = 0, gMax = 0;
     for (let i = 0; i < n; ++i) {
-      s[i] = xNew[i] - x[i];
-      y[i] = gNew[i] - g[i];
-      sy += s[i] * y[i];
-      yy += y[i] * y[i];
+      const si = xt[i] - xc[i], yi = gt[i] - g[i];
+      s[i] = si;
+      y[i] = yi;
+      sy += si * yi;
+      yy += yi * yi;
+      gMax = Math.max(gMax, Math.abs(gt[i]));
     }
     if (sy > 1e-300 && yy > 0) {
       rho[head] = 1 / sy;
@@ -108,16 +166,20 @@ export function lbfgs(
       head = (head + 1) % m;
       count = Math.min(count + 1, m);
     }
-    x.set(xNew);
-    g.set(gNew);
+    let tmp = xc;
+    xc = xt;
+    xt = tmp;
+    tmp = g;
+    g = gt;
+    gt = tmp;
     const fOld = fx;
     fx = fNew;
-    if (maxAbs(g) < gtol) return { energy: fx, iterations: it, converged: true };
+    if (gMax < gtol) return done(fx, it, true);
     if (it % 10 === 0) {
-      if (Math.abs(history - fx) <= etol * Math.max(1, Math.abs(fx))) return { energy: fx, iterations: it, converged: true };
+      if (Math.abs(history - fx) <= etol * Math.max(1, Math.abs(fx))) return done(fx, it, true);
       history = fx;
     }
-    if (fOld === fx && step < 1e-12) return { energy: fx, iterations: it, converged: false };
+    if (fOld === fx && step < 1e-12) return done(fx, it, false);
   }
-  return { energy: fx, iterations: maxIt, converged: false };
+  return done(fx, maxIt, false);
 }

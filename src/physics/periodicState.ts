@@ -42,7 +42,7 @@ export interface PeriodicResult {
 }
 
 /** Discrete homogeneous energy density at spacing h: lowest eigenvalue of (2I - R - R^T)/h^2 + Q. */
-function discreteE0(system: ReducedSystem, kappa: number, tau: number, h: number): number {
+export function discreteE0(system: ReducedSystem, kappa: number, tau: number, h: number): number {
   const r = bondRotation(new Float64Array(9), kappa, tau, h);
   const m = new Float64Array(9);
   for (let i = 0; i < 3; ++i)

@@ -1,4 +1,5 @@
-import { chainEnergy, makeChain, normalise, type Chain } from "./chain.js";
+import { chainEnergy, normalise, type Chain } from "./chain.js";
+import { bondRotation } from "./linalg.js";
 import { relaxChain } from "./relaxChain.js";
 import type { MagneticOrder } from "./types.js";
 
@@ -345,16 +346,53 @@ export function pinningSites(q: Float64Array, u: Float64Array, minDepth?: number
  * h: the chain's bond lengths (reduced). Cost O(window).
  */
 export function wallEnergyWith(wall: RelaxedWall, h: Float64Array, q: Float64Array, kappaReduced: ArrayLike<number>, tauReduced: ArrayLike<number>): number {
-  const nodes = wall.nodes, m = nodes.length;
-  const k = new Float64Array(m), t = new Float64Array(m), hb = new Float64Array(m - 1);
+  // The same floating-point operations as chainEnergy on makeChain(window kappa, tau, h) for both
+  // textures (so the same value to the last bit), without building the chain: each bond rotation is
+  // computed once and shared by the two textures.
+  const nodes = wall.nodes, m = nodes.length, vw = wall.wall, vb = wall.background;
+  const q0 = q[0], q1 = q[1], q2 = q[2], q4 = q[4], q5 = q[5], q8 = q[8];
+  if (wallScratch.length < 6 * m) wallScratch = new Float64Array(6 * m);
+  const cw = wallScratch, cb = 3 * m;
+  let eW = 0, eB = 0;
   for (let a = 0; a < m; ++a) {
-    k[a] = kappaReduced[nodes[a]];
-    t[a] = tauReduced[nodes[a]];
-    if (a + 1 < m) hb[a] = h[nodes[a]];
+    // node weight as makeChain accumulates it: half of the bond before, then half of the bond after
+    let wa = 0;
+    if (a > 0) wa += 0.5 * h[nodes[a - 1]];
+    if (a + 1 < m) wa += 0.5 * h[nodes[a]];
+    for (let t = 0; t < 2; ++t) {
+      const v = t === 0 ? vw : vb, o = t === 0 ? 3 * a : cb + 3 * a;
+      const x = v[3 * a], y = v[3 * a + 1], z = v[3 * a + 2];
+      const inv = 1 / Math.sqrt(x * x + y * y + z * z);
+      const ca = x * inv, cbb = y * inv, cc = z * inv;
+      cw[o] = ca; cw[o + 1] = cbb; cw[o + 2] = cc;
+      const e = wa * (q0 * ca * ca + q4 * cbb * cbb + q8 * cc * cc + 2 * (q1 * ca * cbb + q2 * ca * cc + q5 * cbb * cc));
+      if (t === 0) eW += e;
+      else eB += e;
+    }
   }
-  const chain = makeChain(k, t, hb, q, "open", null);
-  return chainEnergy(chain, wall.wall, null) - chainEnergy(chain, wall.background, null);
+  const r = wallRot;
+  for (let b = 0; b + 1 < m; ++b) {
+    const i = nodes[b], j = nodes[b + 1];
+    const ti = tauReduced[i], tj = tauReduced[j];
+    const tb = Number.isFinite(ti) ? ti : 0, tjj = Number.isFinite(tj) ? tj : 0;
+    const hb = h[i];
+    bondRotation(r, 0.5 * (kappaReduced[i] + kappaReduced[j]), 0.5 * (tb + tjj), hb);
+    const f = 2 / hb;
+    for (let t = 0; t < 2; ++t) {
+      const o = t === 0 ? 0 : cb;
+      const ai = cw[o + 3 * b], bi = cw[o + 3 * b + 1], ci = cw[o + 3 * b + 2];
+      const aj = cw[o + 3 * b + 3], bj = cw[o + 3 * b + 4], cj = cw[o + 3 * b + 5];
+      const pa = r[0] * ai + r[1] * bi + r[2] * ci, pb = r[3] * ai + r[4] * bi + r[5] * ci, pc = r[6] * ai + r[7] * bi + r[8] * ci;
+      const e = f * (1 - (aj * pa + bj * pb + cj * pc));
+      if (t === 0) eW += e;
+      else eB += e;
+    }
+  }
+  return eW - eB;
 }
+
+let wallScratch = new Float64Array(0);
+const wallRot = new Float64Array(9);
 
 /**
  * Two-stage landscape: constrained relaxation on a coarse grid of wall positions (step `coarse`,

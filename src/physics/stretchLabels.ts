@@ -1,6 +1,7 @@
 import { ferroRingEnergies } from "./ferroRing.js";
 import { homogeneousModes } from "./homogeneousModes.js";
-import { periodicState, type PeriodicOptions, type PeriodicResult } from "./periodicState.js";
+import { chainEnergy, uniformChain } from "./chain.js";
+import { discreteE0, periodicState, type PeriodicOptions, type PeriodicResult } from "./periodicState.js";
 import type { GroundState, ReducedSystem, Stability } from "./types.js";
 
 /** What decides the ground state of a stretch. */
@@ -55,7 +56,11 @@ export function stretchLabels(system: ReducedSystem, context: StretchContext, ka
  * middle and highest replicate tau and each replicate is labelled by the linearly interpolated
  * kappa_c(tau) (AFM periodic below, FM above). uncertain: the box straddles a line (the corners
  * disagree or any probability lies in (0.025, 0.975)).
- * Cost: 4 periodic searches, plus ~3 x 8 when the box straddles the phase boundary.
+ * With `centre` (the periodic search already done at a point of the box, e.g. by `stretchLabels`),
+ * the four corner searches are skipped when `decisiveCorners` finds the centre's margin far from 0
+ * compared with its change across the box; every corner then gets the centre's label.
+ * Cost: 4 periodic searches (none when the centre decides), plus ~3 x 8 when the box straddles
+ * the phase boundary.
  */
 export function stretchProbabilities(
   system: ReducedSystem,
@@ -63,6 +68,7 @@ export function stretchProbabilities(
   kappas: Float64Array,
   taus: Float64Array,
   options: PeriodicOptions = {},
+  centre: { readonly kappa: number; readonly tau: number; readonly result: PeriodicResult } | null = null,
 ): { homogeneous: number; periodic: number; stable: number; metastable: number; unstable: number; uncertain: boolean } {
   const m = kappas.length;
   if (m === 0) return { homogeneous: NaN, periodic: NaN, stable: NaN, metastable: NaN, unstable: NaN, uncertain: false };
@@ -73,7 +79,11 @@ export function stretchProbabilities(
     tMin = Math.min(tMin, tt(i)); tMax = Math.max(tMax, tt(i));
   }
   const periodicAt = (k: number, t: number) => groundStatePeriodic(system, context, Math.max(k, 0), t, options).periodic;
-  const corners = [periodicAt(kMin, tMin), periodicAt(kMin, tMax), periodicAt(kMax, tMin), periodicAt(kMax, tMax)];
+  const box: [number, number][] = [[kMin, tMin], [kMin, tMax], [kMax, tMin], [kMax, tMax]];
+  // only where groundStatePeriodic runs the periodic search (helix, FM arc)
+  const searched = context === "helix" || (context === "arc" && system.order === "ferro");
+  const decided = centre !== null && searched && kMin > 0 ? decisiveCorners(system, centre.kappa, context === "helix" ? centre.tau : 0, centre.result, box) : null;
+  const corners = decided !== null ? box.map(() => decided) : box.map(([k, t]) => periodicAt(k, t));
   const agree = corners.every((c) => c === corners[0]);
   const isPeriodic = new Uint8Array(m);
   if (agree) isPeriodic.fill(corners[0] ? 1 : 0);
@@ -125,4 +135,34 @@ function boundaryAlongKappa(periodicAt: (k: number, t: number) => boolean, kLo: 
     else hi = mid;
   }
   return 0.5 * (lo + hi);
+}
+
+/**
+ * The label every corner of a (kappa, tau) box would get from its own periodic search, decided from
+ * the search at a centre point instead, or null when the centre cannot decide. The centre's best
+ * cell texture u (half-period p, spacing h) is evaluated unrelaxed on the uniform chain of each
+ * corner: U_c = E_c(u)/p - e0_h(c) is an upper bound of the corner's discrete margin at that period
+ * (variational: u is an admissible antiperiodic cell there), and U_c - U_0 is the first-order change
+ * of the margin across the box (Hellmann-Feynman: the relaxation of u enters at second order).
+ * Periodic (centre margin < 0): decided when every U_c stays below -2 |correction| (the Richardson
+ * correction of the centre: the corner surely has a cell with a clearly negative margin).
+ * Homogeneous (margin > 0): decided when the margin exceeds 10 max |U_c - U_0| plus twice the
+ * Richardson correction, a safety factor for the second-order relaxation and for other branches of
+ * cells. Own criterion; test/physics/probabilities.test.ts checks it against the full corner
+ * searches (common practice: a certified shortcut validated against the exact path). Reduced
+ * units. Cost: 5 energy evaluations of one cell (no relaxation).
+ */
+export function decisiveCorners(system: ReducedSystem, kappa: number, tau: number, result: PeriodicResult, corners: readonly (readonly [number, number])[]): boolean | null {
+  const m = result.texture.length / 3, p = result.period, h = result.spacing;
+  if (!(m >= 3) || !(p > 0) || !(h > 0) || !Number.isFinite(result.margin)) return null;
+  const frozen = (k: number, t: number): number => chainEnergy(uniformChain(m, k, t, h, system.q, "antiperiodic"), result.texture, null) / p - discreteE0(system, k, t, h);
+  const u0 = frozen(kappa, tau);
+  const correction = Math.abs(result.margin - result.marginAtSpacing);
+  if (result.margin < 0) {
+    for (const [k, t] of corners) if (!(frozen(k, t) + 2 * correction < 0)) return null;
+    return true;
+  }
+  let change = 0;
+  for (const [k, t] of corners) change = Math.max(change, Math.abs(frozen(k, t) - u0));
+  return result.margin > 10 * change + 2 * correction ? false : null;
 }
