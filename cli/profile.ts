@@ -251,7 +251,7 @@ export async function runProfile(req: ProfileRequest, io: Io, where = WHERE): Pr
     const d = profile.diagnostics.length;
     io.stderr(
       `twistline: ${trace.source.file}: ${points} points, length ${brief(profile.length * k)} ${u}, ` +
-        `noise ${brief(profile.sigma * k)} ${u}, resolution ${brief(profile.resolution * k)} ${u}, ` +
+        `${Number.isNaN(profile.sigma) ? "noise not estimable" : `noise ${brief(profile.sigma * k)} ${u}`}, resolution ${brief(profile.resolution * k)} ${u}, ` +
         `${d} ${d === 1 ? "diagnostic" : "diagnostics"}${d > 0 ? " (in the output header)" : ""}` +
         `${req.out === "-" ? "" : `; wrote ${req.out}`}\n`,
     );

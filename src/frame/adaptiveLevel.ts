@@ -15,14 +15,8 @@ import { drawCoefPerturbation, kappaTauAt, noiseProbes, type GridBasis } from ".
 import type { Skyline } from "./skyline.js";
 import { solveAt, wavelengthForLambda, type SmoothFit, type Smoother } from "./smoother.js";
 
-/** The adaptive curvature on the grid. */
+/** The locally chosen level along the grid. */
 export interface AdaptiveCurvature {
-  /** Curvature at each grid point (canonical units). */
-  readonly kappa: Float64Array;
-  /** Noise standard deviation of that curvature (from the probes of the chosen level). */
-  readonly sd: Float64Array;
-  /** Curvature of the level one step below the chosen one. */
-  readonly kappaLess: Float64Array;
   /** log10 of the chosen level over the pilot level, per grid point. */
   readonly logFactor: Float64Array;
 }
@@ -106,13 +100,7 @@ export function adaptiveCurvature(
     for (let a = w.lo[j]; a < w.hi[j]; ++a) if (chosen[a] < v) v = chosen[a];
     level[j] = v;
   }
-  const kappa = new Float64Array(m), sd = new Float64Array(m), kappaLess = new Float64Array(m), logFactor = new Float64Array(m);
-  for (let j = 0; j < m; ++j) {
-    const q = level[j];
-    kappa[j] = kap[q][j];
-    sd[j] = Math.sqrt(var2[q][j]);
-    kappaLess[j] = kap[Math.max(0, q - 1)][j];
-    logFactor[j] = (q - down) * step;
-  }
-  return { kappa, sd, kappaLess, logFactor };
+  const logFactor = new Float64Array(m);
+  for (let j = 0; j < m; ++j) logFactor[j] = (level[j] - down) * step;
+  return { logFactor };
 }

@@ -43,11 +43,11 @@ export function quantileSorted(sorted: Float64Array, p: number): number {
  * linearly with the level, the quarter-level fit keeps a third of its difference to the full-level
  * fit), and finally stretched to contain the estimate. Returns [lo, hi] with lo <= 0 <= hi.
  */
-export function bandOffsets(sorted: Float64Array, shift: number, spread = 1): [number, number] {
+export function bandOffsets(sorted: Float64Array, shift: number): [number, number] {
   const med = quantileSorted(sorted, 0.5);
   const sh = Number.isFinite(shift) ? shift : 0;
-  const lo = spread * (quantileSorted(sorted, 0.025) - med) + sh + Math.min(0, sh / 3);
-  const hi = spread * (quantileSorted(sorted, 0.975) - med) + sh + Math.max(0, sh / 3);
+  const lo = quantileSorted(sorted, 0.025) - med + sh + Math.min(0, sh / 3);
+  const hi = quantileSorted(sorted, 0.975) - med + sh + Math.max(0, sh / 3);
   return [Math.min(0, lo), Math.max(0, hi)];
 }
 

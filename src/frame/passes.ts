@@ -161,7 +161,7 @@ export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnos
         u.set(start.u);
         span = start.span;
         w.fill(1);
-        diagnostics.push(`sparse trace: the curve turns by ${turn.toFixed(2)} rad between samples (median); fitted with ${nseg} knot intervals, near-interpolating the points${sigmaKnown === undefined ? " (give the coordinate error to smooth them)" : ""}`);
+        diagnostics.push(`sparse trace: the curve turns by ${turn.toFixed(2)} rad between samples (median); fitted with ${nseg} knot intervals, ${sigmaKnown === undefined ? "near-interpolating the points (give the coordinate error to smooth them)" : "smoothed to the coordinate error given"}`);
       }
     }
     if (set.lambda === undefined && set.segments === undefined && !sparse) {

@@ -201,6 +201,7 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
     if (!Number.isFinite(trace.xyz[k])) throw new InputError(file, null, "xyz", `coordinate ${k % 3} of ${rowName(trace, Math.floor(k / 3))} is not finite`);
   }
   const diagnostics: string[] = [...trace.diagnostics];
+  if (set.coordinateError !== undefined) diagnostics.push(`noise: the coordinate error given (${describeLength(set.coordinateError, trace.source)} per coordinate) is the noise level; it is not estimated`);
   const start = robustStart(trace, options, diagnostics);
   const fit = runPasses(trace, start, set, diagnostics);
   const samples = sampleAt(trace, start, fit, set);
