@@ -231,7 +231,7 @@ export async function buildWireOutputs(a: Analysis, options: WireOutputOptions):
   const exportsInfo: ExportEntry[] = [];
   if (options.vtp === true) {
     const stretches = a.segments.map((g) => ({ s0: g.s0, s1: g.s1 }));
-    const v = wireVtpFiles({ chain, model: cm, stretches, unit, mesh, sourceFile: a.profile.source.file });
+    const v = wireVtpFiles({ chain, model: cm, stretches, unit, mesh, ringsPerSite: perSite, sourceFile: a.profile.source.file });
     extra.push({ name: OUTPUT_NAMES.centerlineVtp, data: v.centerline }, { name: OUTPUT_NAMES.tubeVtp, data: v.tube });
     exportsInfo.push(
       { file: OUTPUT_NAMES.centerlineVtp, format: "vtp", content: "centre line (chain sites) with kappa, tau, bands, frame, flags, stretch number and, with a material, DMI, anisotropy axes and texture" },

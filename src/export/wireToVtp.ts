@@ -12,8 +12,10 @@ export interface WireVtpInput {
   /** Stretch bounds in metres, in order along the wire. */
   readonly stretches: readonly { readonly s0: number; readonly s1: number }[];
   readonly unit: LengthUnit;
-  /** The tube mesh (positions relative to `offset`, in `unit`). */
+  /** The tube mesh (positions relative to `offset`, in `unit`): its rings subdivide the chain. */
   readonly mesh: TubeMesh;
+  /** Tube rings per chain interval (every `ringsPerSite`-th ring sits at a site). */
+  readonly ringsPerSite: number;
   readonly sourceFile: string;
 }
 
@@ -70,35 +72,17 @@ function siteArrays(v: WireVtpInput): VtpArray[] {
 }
 
 /**
- * The chain site each tube vertex belongs to: when the rings subdivide the chain evenly, the site
- * nearest in arc length; otherwise ring centres matched in order along the chain; caps to the ends.
+ * The chain site each tube vertex belongs to: the rings subdivide the chain (every `per`-th ring
+ * sits at a site), so ring r takes the site nearest in arc length, round(r / per); caps the ends.
  */
-export function tubeVertexSites(mesh: TubeMesh, chain: ResampledWire, unitPerMetre: number): Int32Array {
+export function tubeVertexSites(mesh: TubeMesh, chain: ResampledWire, per: number): Int32Array {
   const { rings, radial } = mesh;
-  const nv = mesh.positions.length / 3;
-  const site = new Int32Array(nv);
-  let j = 0;
-  const d2 = (i: number, x: number, y: number, z: number): number =>
-    (chain.xyz[3 * i] * unitPerMetre - x) ** 2 + (chain.xyz[3 * i + 1] * unitPerMetre - y) ** 2 + (chain.xyz[3 * i + 2] * unitPerMetre - z) ** 2;
-  // Rings that subdivide the chain evenly (every k-th ring at a site): the site nearest in arc length.
-  const per = chain.closed ? rings / chain.n : (rings - 1) / Math.max(chain.n - 1, 1);
-  if (chain.n > 1 && Number.isInteger(per) && per >= 1) {
-    for (let r = 0; r < rings; ++r) site.fill(Math.min(Math.round(r / per) % (chain.closed ? chain.n : Infinity), chain.n - 1), r * radial, (r + 1) * radial);
-    if (nv > rings * radial) { site[rings * radial] = 0; site[rings * radial + 1] = chain.n - 1; }
-    return site;
-  }
+  const site = new Int32Array(mesh.positions.length / 3);
   for (let r = 0; r < rings; ++r) {
-    let x = 0, y = 0, z = 0;
-    for (let q = 0; q < radial; ++q) {
-      const o = 3 * (r * radial + q);
-      x += mesh.positions[o]; y += mesh.positions[o + 1]; z += mesh.positions[o + 2];
-    }
-    x = x / radial + mesh.offset[0]; y = y / radial + mesh.offset[1]; z = z / radial + mesh.offset[2];
-    // rings follow the chain in order: walk forward while the next site is nearer
-    while (j + 1 < chain.n && d2(j + 1, x, y, z) <= d2(j, x, y, z)) ++j;
-    for (let q = 0; q < radial; ++q) site[r * radial + q] = j;
+    const i = Math.round(r / per);
+    site.fill(chain.closed ? i % chain.n : Math.min(i, chain.n - 1), r * radial, (r + 1) * radial);
   }
-  if (nv > rings * radial) { site[rings * radial] = 0; site[rings * radial + 1] = chain.n - 1; }
+  if (site.length > rings * radial) { site[rings * radial] = 0; site[rings * radial + 1] = chain.n - 1; }
   return site;
 }
 
@@ -116,8 +100,8 @@ function gather(a: VtpArray, site: Int32Array): VtpArray {
  * tau 0 where undefined, marked by tau_defined = 0), the frame T, N, B, the profile flags, the
  * stretch number (1-based) and, with a material, the DMI vector (J/m^2), the anisotropy constants
  * (J/m^3) and principal axes, and the relaxed texture (unit vectors). Tube: the tube mesh's
- * triangles with the same arrays taken from the chain site nearest each ring (the rings subdivide
- * the chain; caps: the end sites).
+ * triangles with the same arrays taken from the chain site nearest each ring in arc length (the
+ * rings subdivide the chain; caps: the end sites).
  * Coordinates in `unit`, absolute (the mesh offset added back). Cost O(sites + mesh vertices).
  */
 export function wireVtpFiles(v: WireVtpInput): { centerline: string; tube: string } {
@@ -129,7 +113,7 @@ export function wireVtpFiles(v: WireVtpInput): { centerline: string; tube: strin
   const line = Array.from({ length: chain.n }, (_, i) => i);
   if (chain.closed && chain.n > 2) line.push(0);
   const centerline = polyDataToVtp({ points: Float64Array.from(chain.xyz, (t) => t * k), lines: [line], pointData: arrays, comment });
-  const site = tubeVertexSites(mesh, chain, k);
+  const site = tubeVertexSites(mesh, chain, v.ringsPerSite);
   const pts = Float64Array.from(mesh.positions, (t, i) => t + mesh.offset[i % 3]);
   const tube = polyDataToVtp({ points: pts, triangles: mesh.indices, pointData: arrays.map((a) => gather(a, site)), comment: `${comment}; tube of radius ${mesh.radius} ${unit}` });
   return { centerline, tube };
