@@ -46,6 +46,15 @@ export interface PassSettings {
   readonly coordinateError?: number;
 }
 
+/** Where a refit at a fixed level starts: the parameters, weights and noise of earlier passes. */
+export interface PassResume {
+  readonly u: Float64Array;
+  readonly w: Float64Array;
+  readonly span: number;
+  /** Noise SD (canonical units), kept (not re-estimated at the fixed level). */
+  readonly sigma: number;
+}
+
 /** What the passes leave for the later stages (canonical units). */
 export interface PassesResult {
   readonly basis: SplineBasis;
@@ -69,7 +78,7 @@ export interface PassesResult {
  * interval), unless the user gave the coordinate error; the noise is never estimated from fewer than
  * 20 residual degrees of freedom (then the difference-based estimate stands in: an upper bound).
  */
-export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnostics: string[]): PassesResult {
+export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnostics: string[], resume?: PassResume): PassesResult {
   const file = trace.source.file;
   const y = start.canon.y;
   const n = y.length / 3;
@@ -78,9 +87,9 @@ export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnos
   const scale = start.canon.scale;
   const say = (d: number) => describeLength(d * scale, trace.source);
   const name = (i: number) => (trace.rows ? `row ${trace.rows[start.kept[i]]}` : `point ${start.kept[i] + 1}`);
-  const u = start.u.slice();
-  let span = start.span;
-  const w = new Float64Array(n).fill(1);
+  const u = resume ? resume.u.slice() : start.u.slice();
+  let span = resume ? resume.span : start.span;
+  const w = resume ? resume.w.slice() : new Float64Array(n).fill(1);
   const fullSegments = segmentCount(n, closed);
   let nseg = set.segments ?? Math.min(fullSegments, INITIAL_SEGMENTS_CAP);
   let basis: SplineBasis = makeBasis(0, span, nseg, closed);
@@ -88,7 +97,7 @@ export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnos
   let sel: Selection | undefined;
   let sm: Smoother | undefined;
   let nearInterpolation = NaN;
-  const sigmaKnown = set.coordinateError !== undefined ? set.coordinateError / scale : undefined;
+  const sigmaKnown = resume ? resume.sigma : set.coordinateError !== undefined ? set.coordinateError / scale : undefined;
   const d12 = new Float64Array(12), st = new Float64Array(1), sb = new Float64Array(24), kt = new Float64Array(5);
   const resid = new Float64Array(n);
   for (let pass = 0; pass <= set.passes; ++pass) {
