@@ -9,6 +9,8 @@ export interface RawBranch {
   readonly radius?: Float64Array;
   readonly radiusSpread?: Float64Array;
   readonly facetLength?: number;
+  /** Length to report when the polyline through `xyz` is not the wire's (a cloud's noisy points): m. */
+  readonly length?: number;
   readonly from: Terminal | null;
   readonly to: Terminal | null;
   readonly closed: boolean;
@@ -66,7 +68,7 @@ export function assembleNetwork(raw: readonly RawBranch[], rawJunctions: readonl
   const zoneRadii = options.zoneRadii ?? 2;
   const axisRadii = options.axisRadii ?? 3;
   const notes = [...options.diagnostics];
-  const lengths = raw.map((b) => polyLength(b.xyz, b.closed));
+  const lengths = raw.map((b) => b.length ?? polyLength(b.xyz, b.closed));
   const order = raw.map((_, i) => i).sort((a, b) => lengths[b] - lengths[a] || raw[a].xyz[0] - raw[b].xyz[0] || a - b);
   // ids by first appearance
   const junctionId = new Map<number, number>(), endId = new Map<number, number>();

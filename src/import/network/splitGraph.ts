@@ -206,7 +206,20 @@ export function splitGraph(g: SkeletonGraph, spurLength: number, mergeLength: nu
   }
   // a "junction" where only two branch ends meet (a small handle of a noisy surface, merged into one
   // cluster) is no junction: join the two branches through it
-  const merged = joinThroughPasses(chains, junctions.length);
+  // a short loop from a junction back to itself is a noise ring (a spur that closed on itself): drop it
+  const loopless = chains.filter((c) => {
+    const small = c.from?.kind === "junction" && c.to?.kind === "junction" && c.from.index === c.to.index && c.length < 2 * spurLength;
+    if (small) {
+      pruned++;
+      prunedMax = Math.max(prunedMax, c.length);
+    }
+    return !small;
+  });
+  // a junction left with a single branch end is that branch's free end
+  const endCount = new Int32Array(junctions.length);
+  for (const c of loopless) for (const t of [c.from, c.to]) if (t?.kind === "junction") endCount[t.index]++;
+  const lone = (t: Terminal | null): Terminal | null => (t?.kind === "junction" && endCount[t.index] === 1 ? { kind: "end", node: junctions[t.index].nodes[0] } : t);
+  const merged = joinThroughPasses(loopless.map((c) => ({ ...c, from: lone(c.from), to: lone(c.to) })), junctions.length);
   const keep = new Map<number, number>();
   const kept: GraphJunction[] = [];
   for (const c of merged) {
