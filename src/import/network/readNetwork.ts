@@ -21,7 +21,7 @@ const MESH_FORMATS = new Set(["stl", "obj", "ply"]);
 
 /**
  * Reads `path` and splits it into a network of wires: a triangle mesh (STL, OBJ, PLY with faces)
- * through `meshNetwork`, an unordered cloud (format "cloud": delimited text or PLY vertices; or a
+ * through `meshNetwork`, an unordered cloud (format "cloud": x y z text, one point per line, or PLY vertices; or a
  * PLY without faces) through `cloudNetwork`. Heavy modules load on first use.
  * @throws {InputError} unreadable file, a format that holds no network ("file: format: ..."), or
  *   the splitters' own errors.
@@ -52,7 +52,6 @@ export async function readNetworkFile(path: string, options: ReadNetworkOptions 
   if (format === "cloud" || (format === "ply" && !plyFaces)) {
     const { cloudNetwork } = await import("../cloud/cloudNetwork.js");
     let xyz: Float64Array;
-    let cloudUnits: { unit: InputUnit; pixelSize?: number } = units;
     const notes: string[] = [];
     if (isPly) {
       const { parsePlyVertices } = await import("../mesh/parsePly.js");
@@ -60,19 +59,16 @@ export async function readNetworkFile(path: string, options: ReadNetworkOptions 
       xyz = read.xyz;
       notes.push(...read.diagnostics);
     } else {
-      const { parseDelimited } = await import("../parseDelimited.js");
+      const { parseCloudText } = await import("../cloud/parseCloudText.js");
       let text: string;
       try {
         text = new TextDecoder("utf-8", { fatal: true }).decode(bytes);
       } catch {
         throw new InputError(path, null, "file", "not UTF-8 text (a binary file, or the wrong format?)");
       }
-      const points = parseDelimited(text, path, { ...units, closed: false });
-      xyz = Float64Array.from(points.xyz);
-      cloudUnits = points.source.pixelSize === undefined ? { unit: points.source.unit } : { unit: points.source.unit, pixelSize: points.source.pixelSize };
-      notes.push(...points.diagnostics);
+      xyz = parseCloudText(text, path, units).xyz;
     }
-    const net = cloudNetwork(xyz, path, cloudUnits);
+    const net = cloudNetwork(xyz, path, units);
     return { ...net, diagnostics: [...notes, ...net.diagnostics] };
   }
   const parse = format === "stl"
