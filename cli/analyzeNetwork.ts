@@ -119,3 +119,70 @@ export async function makeNetworkFolder(path: string, where: string): Promise<vo
     throw new ParameterError(where, "--out", `cannot make the folder ${path}: ${problem}`);
   });
 }
+
+/**
+ * `batch --branches split`: every input is split into a network and analysed into its own folder
+ * (named as batch names wire folders), which holds branch-<k> folders, network.json and
+ * network.html; one summary.csv at the top with a row per branch (`<folder>/branch-<k>`). A file
+ * that cannot be split gets one error row; the batch goes on.
+ */
+export async function runNetworkBatch(
+  files: readonly string[],
+  out: string,
+  req: PipelineRequest,
+  options: { jobs: number; ci: string | undefined; where: string },
+  io: Io,
+): Promise<SummaryRow[]> {
+  const staged = await stageOutputDir(out, { force: req.force, protect: [...files, ...(req.materialFile !== null ? [req.materialFile] : [])], where: options.where });
+  try {
+    const { folderNames } = await import("./batch.js");
+    const { errorLine } = await import("./batchWorker.js");
+    const [{ readMaterialFile }, { viewerScript }] = await Promise.all([import("./wireJob.js"), import("../src/report/viewerScript.js")]);
+    const material: Material | null = req.materialFile !== null ? await readMaterialFile(req.materialFile) : null;
+    const setup: WorkerSetup = { twistlineBatch: true, viewerJs: await viewerScript(), material, request: req, where: options.where };
+    const names = folderNames(files);
+    const nets: { name: string; net: WireNetwork | null; first: number; error: SummaryRow | null }[] = [];
+    const tasks: WorkerTask[] = [];
+    for (let f = 0; f < files.length; f++) {
+      const t0 = performance.now();
+      try {
+        const net = await readNetworkFile(files[f], networkReadOptions(req.inputs));
+        const dir = join(staged.path, names[f]);
+        await makeNetworkFolder(dir, options.where);
+        nets.push({ name: names[f], net, first: tasks.length, error: null });
+        tasks.push(...branchTasks(net, files[f], dir, tasks.length));
+      } catch (e) {
+        nets.push({ name: names[f], net: null, first: tasks.length, error: { wire: names[f], file: files[f], summary: null, error: errorLine(e), seconds: (performance.now() - t0) / 1000 } });
+      }
+    }
+    const replies: WorkerReply[] = [];
+    const progress = progressReporter(req.quiet ? "none" : progressMode(io.stderrIsTTY, options.ci), Math.max(1, tasks.length), io);
+    await runPool(tasks, setup, options.jobs, (r) => {
+      replies.push(r);
+      progress.tick(replies.length, `${tasks[r.id].input} ${tasks[r.id].name}`);
+    });
+    progress.end();
+    replies.sort((a, b) => a.id - b.id);
+    const rows: SummaryRow[] = [];
+    for (const n of nets) {
+      if (n.net === null) {
+        rows.push(n.error as SummaryRow);
+        continue;
+      }
+      const mine = replies.slice(n.first, n.first + n.net.branches.length);
+      const own = mine.flatMap((r) => r.rows);
+      await writeNetworkFiles(join(staged.path, n.name), n.net, own, mine.map((r) => r.view ?? null), req, options.where);
+      rows.push(...own.map((r) => ({ ...r, wire: `${n.name}/${r.wire}` })));
+    }
+    await writeFile(join(staged.path, SUMMARY_NAME), summaryToCsv(rows)).catch((e: unknown) => {
+      const problem = fsProblem(e);
+      if (problem === null) throw e;
+      throw new ParameterError(options.where, "--out", `cannot write ${SUMMARY_NAME}: ${problem}`);
+    });
+    await staged.commit();
+    return rows;
+  } catch (e) {
+    await staged.abort();
+    throw e;
+  }
+}

@@ -67,3 +67,20 @@ describe("analyze --branches split", () => {
     expect(existsSync(join(root, "nope"))).toBe(false);
   });
 });
+
+describe("batch --branches split", () => {
+  it("each mesh becomes a network folder; a file that is not a network gets an error row and exit 1", async () => {
+    const dir = join(root, "b");
+    mkdirSync(dir);
+    writeFileSync(join(dir, "tripod.stl"), tripod);
+    writeFileSync(join(dir, "plain.csv"), "x,y,z\n0,0,0\n1,0,0\n2,1,0\n3,1,1\n4,2,1\n5,2,2\n");
+    const out = join(dir, "out");
+    const r = await run(["batch", dir, "--branches", "split", "--out", out, "--bootstrap", "0", "--jobs", "1"]);
+    expect(r.code).toBe(1);
+    expect(r.stderr).toMatch(/batch: plain: .*a network is split from a tube mesh/);
+    expect(readdirSync(join(out, "tripod")).sort()).toEqual(["branch-1", "branch-2", "branch-3", "network.html", "network.json"]);
+    const summary = readFileSync(join(out, "summary.csv"), "utf8");
+    for (const w of ["tripod/branch-1", "tripod/branch-2", "tripod/branch-3", "plain"]) expect(summary).toContain(`${w},`);
+    expect(validate(JSON.parse(readFileSync(join(out, "tripod", "network.json"), "utf8")))).toBe(true);
+  });
+});
