@@ -9,7 +9,7 @@ function line(a: number[], b: number[], n = 30): Float64Array {
 
 describe("buildNetworkPage", () => {
   const file = 'star<script>alert("x")</script>.stl';
-  const raw = [[1, 0, 0], [-0.5, 0.8, 0], [-0.5, -0.8, 0]].map((d, i) => ({
+  const raw = [[1, 0, 0], [-0.5, Math.sqrt(3) / 2, 0], [-0.5, -Math.sqrt(3) / 2, 0]].map((d, i) => ({
     xyz: line([2 * d[0], 2 * d[1], 0], [30 * d[0], 30 * d[1], 0]),
     from: { kind: "junction" as const, index: 0 },
     to: { kind: "end" as const, node: i + 1 },
