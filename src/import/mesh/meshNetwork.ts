@@ -16,6 +16,8 @@ export interface MeshNetworkOptions extends CenterlineOptions {
   readonly mergeRadii?: number;
   /** Half-width of the running mean over each branch's centre line, in tube radii [0.5; 0: none]. */
   readonly smoothRadii?: number;
+  /** Keep the end caps of free ends (where the radius falls below 90% of the median) [false: the branch stops at the last full cross-section]. */
+  readonly keepCaps?: boolean;
   /** Junction zone radius, in tube radii [2]. */
   readonly zoneRadii?: number;
 }
@@ -39,7 +41,11 @@ function median(values: ArrayLike<number>): number {
  * tube stops being one tube: walking from the middle of the branch toward the junction, at the
  * first cross-section that is missing, wider than 1.2 times the branch's median radius or out of
  * round (outline spread over 0.3 radius) within 2.5 radii of the junction, or at three such
- * sections in a row. Free ends run to the cap tip or the last complete section, as for one wire.
+ * sections in a row. Free ends stop at the last full cross-section: the cap or taper, where the
+ * radius falls below 90% of the median (the rule `meshCenterline` uses to flag caps), is left out
+ * (`keepCaps` keeps it); a line that runs out and folds back at a free end (a lump) is cut at its
+ * outermost sample along the axis 4 to 8 radii in (that sample, the lump's, left out too), and
+ * end steps that turn by more than step / radius (a tighter bend than a tube allows) are left out. The line is then averaged over +-`smoothRadii` radii (default 0.5).
  * Junction positions, angles and zones: `assembleNetwork` (where the branch axes meet, by least
  * squares). A component that is one tube gives one branch between two free ends; a torus one ring.
  *
@@ -187,16 +193,25 @@ function networkOfComponent(
       skipped++;
       continue;
     }
-    const refined = refineBranch(positions, index, grid, Float64Array.from(seeds), chain.closed, J0, J1, rEst, step, passes, options.smoothRadii ?? 0.5);
+    const refined = refineBranch(positions, index, grid, Float64Array.from(seeds), chain.closed, J0, J1, rEst, step, passes, options.smoothRadii ?? 0.5, options.keepCaps ?? false);
     if (refined === null) {
       skipped++;
       continue;
     }
     const length = polylineLength(refined.xyz, chain.closed);
     const rMed = median(refined.radius);
+    const rHigh = [...refined.radius].sort((a, b) => a - b)[Math.floor(0.9 * (refined.radius.length - 1))];
+    if (chain.from?.kind !== "junction" && chain.to?.kind !== "junction" && !chain.closed && length < 3 * rHigh) {
+      // the same rule as for one wire (meshCenterline): a lump, not a wire
+      notes.push(`${name}: skipped: a blob, not a wire (centre line ${fmtL(length)} long for a radius of ${fmtL(rHigh)})`);
+      skipped++;
+      continue;
+    }
     const bnotes = [
       `${name}: ${chain.closed ? "closed ring" : "branch"} of length ${fmtL(length)}, ${refined.xyz.length / 3} samples, median tube radius ${fmtL(rMed)}`,
     ];
+    if (refined.capStart + refined.capEnd > 0) bnotes.push(`${name}: left out the end caps (${refined.capStart} and ${refined.capEnd} samples where the radius falls below 90% of the median): the branch stops at the last full cross-section`);
+    if (refined.folded > 0) bnotes.push(`${name}: the centre line folded back or kinked (turning faster than the tube radius allows) at a free end: left out its ${refined.folded} outermost samples`);
     if (refined.dropped > 0) bnotes.push(`${name}: left out ${refined.dropped} interior samples where no closed cross-section enclosed the centre line`);
     branches.push({ xyz: refined.xyz, radius: refined.radius, radiusSpread: refined.spread, from: chain.from, to: chain.to, closed: chain.closed, diagnostics: bnotes });
   }
@@ -229,7 +244,8 @@ function refineBranch(
   step: number,
   passes: number,
   smoothRadii: number,
-): { xyz: Float64Array; radius: Float64Array; spread: Float64Array; dropped: number } | null {
+  keepCaps: boolean,
+): { xyz: Float64Array; radius: Float64Array; spread: Float64Array; dropped: number; capStart: number; capEnd: number; folded: number } | null {
   let pts = resample(runningMean(seeds, closed, 2), closed, step);
   const reach = 2.5 * rEst;
   const m = Math.max(1, Math.round(rEst / step));
@@ -290,9 +306,80 @@ function refineBranch(
     spread = Float64Array.from(spr);
     if (pass < passes - 1) pts = resample(pts, closed, step);
   }
+  // free ends: a line that runs out and folds back (a lump at a noisy end) is cut at its outermost sample
+  let folded = 0;
+  if (!closed) {
+    const k = Math.min(pts.length / 3 - 1, Math.max(2, Math.round((4 * rEst) / step)));
+    const cut = (p: Float64Array, from: number, dir: number): number => {
+      // the axis of the good part of the line, 4 to 8 radii in from the end, pointing outward
+      const inner = from + dir * k, deep = from + 2 * dir * k;
+      const ax = [p[3 * inner] - p[3 * deep], p[3 * inner + 1] - p[3 * deep + 1], p[3 * inner + 2] - p[3 * deep + 2]];
+      let best = from, bestQ = -Infinity;
+      for (let i = from; i !== inner; i += dir) {
+        const q = (p[3 * i] - p[3 * inner]) * ax[0] + (p[3 * i + 1] - p[3 * inner + 1]) * ax[1] + (p[3 * i + 2] - p[3 * inner + 2]) * ax[2];
+        if (q > bestQ) {
+          bestQ = q;
+          best = i;
+        }
+      }
+      // a fold means the end is a lump: its outermost sample goes too
+      return best === from ? 0 : Math.abs(best - from) + 1;
+    };
+    const n = pts.length / 3;
+    const a = J0 === null && n > 3 * k ? cut(pts, 0, 1) : 0;
+    const b = J1 === null && n > 3 * k ? cut(pts, n - 1, -1) : 0;
+    folded = a + b;
+    if (folded > 0) {
+      pts = pts.slice(3 * a, 3 * (n - b));
+      radius = radius.slice(a, n - b);
+      spread = spread.slice(a, n - b);
+    }
+  }
+  const kinks = trimKinks(pts, radius, spread, closed, J0 === null, J1 === null, step / rEst);
+  ({ pts, radius, spread } = kinks);
+  folded += kinks.cut;
+  // free ends: the cap (radius below 90% of the median, the taper rule of meshCenterline) is not wire; stop at the last full section
+  let capStart = 0, capEnd = 0;
+  if (!closed && !keepCaps) {
+    const n = radius.length, rMed = median(radius);
+    let a = 0, b = n - 1;
+    if (J0 === null) while (a < b - 6 && radius[a] < 0.9 * rMed) a++;
+    if (J1 === null) while (b > a + 6 && radius[b] < 0.9 * rMed) b--;
+    capStart = a;
+    capEnd = n - 1 - b;
+    if (a > 0 || b < n - 1) {
+      pts = pts.slice(3 * a, 3 * b + 3);
+      radius = radius.slice(a, b + 1);
+      spread = spread.slice(a, b + 1);
+    }
+  }
   // the centre line of a tube means nothing on scales below its radius: average over +-half a radius
   // (a running mean of half-width w moves an arc of radius R inward by about w^2 / (6 R): 0.04% of the curvature at w = r / 2, R = 10 r)
   const half = Math.max(1, Math.round((smoothRadii * rEst) / step));
   if (smoothRadii > 0 && pts.length / 3 > 2 * half + 1) pts = runningMean(pts, closed, half);
-  return { xyz: pts, radius, spread, dropped };
+  const again = trimKinks(pts, radius, spread, closed, J0 === null, J1 === null, step / rEst);
+  folded += again.cut;
+  return { xyz: again.pts, radius: again.radius, spread: again.spread, dropped, capStart, capEnd, folded };
+}
+
+/**
+ * Free ends: a tube cannot bend more tightly than its radius (a curvature radius under r would make
+ * it cut into itself), so an end step that turns by more than `maxTurn` = step / r radians from the
+ * next one is the cap's or a lump's, not the wire's: such end samples are left out.
+ */
+function trimKinks(
+  pts: Float64Array, radius: Float64Array, spread: Float64Array, closed: boolean, freeStart: boolean, freeEnd: boolean, maxTurn: number,
+): { pts: Float64Array<ArrayBuffer>; radius: Float64Array<ArrayBuffer>; spread: Float64Array<ArrayBuffer>; cut: number } {
+  if (closed) return { pts: Float64Array.from(pts), radius: Float64Array.from(radius), spread: Float64Array.from(spread), cut: 0 };
+  const turn = (i: number, j: number, k: number) => {
+    const a = [pts[3 * j] - pts[3 * i], pts[3 * j + 1] - pts[3 * i + 1], pts[3 * j + 2] - pts[3 * i + 2]];
+    const b = [pts[3 * k] - pts[3 * j], pts[3 * k + 1] - pts[3 * j + 1], pts[3 * k + 2] - pts[3 * j + 2]];
+    const c = Math.hypot(a[1] * b[2] - a[2] * b[1], a[2] * b[0] - a[0] * b[2], a[0] * b[1] - a[1] * b[0]);
+    return Math.atan2(c, a[0] * b[0] + a[1] * b[1] + a[2] * b[2]);
+  };
+  const n = pts.length / 3;
+  let a = 0, b = n - 1;
+  if (freeStart) while (b - a > 8 && turn(a, a + 1, a + 2) > maxTurn) a++;
+  if (freeEnd) while (b - a > 8 && turn(b - 2, b - 1, b) > maxTurn) b--;
+  return { pts: Float64Array.from(pts.subarray(3 * a, 3 * b + 3)), radius: Float64Array.from(radius.subarray(a, b + 1)), spread: Float64Array.from(spread.subarray(a, b + 1)), cut: a + n - 1 - b };
 }
