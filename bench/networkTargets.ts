@@ -38,7 +38,7 @@ function evaluate(net: WireNetwork, sk: NetworkSkeleton, R: number, tripod: bool
     if (tripod) {
       let q = NaN;
       try {
-        const prof = fitProfile(b.trace, { bootstrap: 0 });
+        const prof = fitProfile(b.trace, { bootstrap: 0, ...(coordError !== undefined ? { coordinateError: coordError * R } : {}) });
         const ks: number[] = [];
         for (let i = 0; i < prof.n; i++) {
           const p = [prof.x[i], prof.y[i], prof.z[i]];
@@ -58,6 +58,11 @@ function evaluate(net: WireNetwork, sk: NetworkSkeleton, R: number, tripod: bool
   return { counts, junction, rms, kappa };
 }
 
+// settings to compare (default: the shipped defaults): NET_SMOOTH=<radii> NET_STEP=<radii>
+const tweak = process.env.NET_SMOOTH !== undefined ? { smoothRadii: Number(process.env.NET_SMOOTH) } : {};
+const tweakStep = process.env.NET_STEP !== undefined ? Number(process.env.NET_STEP) : undefined;
+// NET_COORD=<radii>: fit the arms with that coordinate error given (the --coordinate-error option) instead of the estimated noise
+const coordError = process.env.NET_COORD !== undefined ? Number(process.env.NET_COORD) : undefined;
 const out: Outcome[] = [];
 for (let c = 0; c < cases; c++) {
   for (const kind of ["tripod", "ladder"]) {
@@ -73,7 +78,7 @@ for (let c = 0; c < cases; c++) {
     const mesh = voxelNetworkMesh(sk, R, voxel, noise, seed);
     const t0 = performance.now();
     try {
-      const net = meshNetwork(mesh, `${kind}-${seed}.stl`, { unit: "nm" });
+      const net = meshNetwork(mesh, `${kind}-${seed}.stl`, { unit: "nm", ...tweak, ...(tweakStep !== undefined ? { step: tweakStep * R } : {}) });
       const e = evaluate(net, sk, R, kind === "tripod");
       out.push({ kind, seed, ...e, triangles: mesh.index.length / 3, seconds: (performance.now() - t0) / 1000 });
     } catch (err) {

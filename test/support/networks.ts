@@ -74,6 +74,28 @@ export function ladderSkeleton(length: number, width: number, rungGap: number, p
   };
 }
 
+/**
+ * A square lattice of nx by ny nodes `spacing` apart in the xy plane, joined by straight wires:
+ * junctions of four at the interior nodes and of three on the edges; the corners are bends (no junction).
+ */
+export function latticeSkeleton(nx: number, ny: number, spacing: number, per = 2): NetworkSkeleton {
+  const chains: Vec3[][] = [];
+  const line = (a: Vec3, b: Vec3): Vec3[] => {
+    const n = Math.max(2, Math.ceil(Math.hypot(b[0] - a[0], b[1] - a[1]) / per));
+    return Array.from({ length: n + 1 }, (_, i) => [a[0] + ((b[0] - a[0]) * i) / n, a[1] + ((b[1] - a[1]) * i) / n, 0] as Vec3);
+  };
+  for (let j = 0; j < ny; j++) chains.push(line([0, j * spacing, 0], [(nx - 1) * spacing, j * spacing, 0]));
+  for (let i = 0; i < nx; i++) chains.push(line([i * spacing, 0, 0], [i * spacing, (ny - 1) * spacing, 0]));
+  const junctions: Vec3[] = [];
+  for (let j = 0; j < ny; j++) for (let i = 0; i < nx; i++) {
+    const corner = (i === 0 || i === nx - 1) && (j === 0 || j === ny - 1);
+    if (!corner) junctions.push([i * spacing, j * spacing, 0]);
+  }
+  // edges between neighbouring nodes, less the corners' bends joining two edges into one branch
+  const edges = 2 * nx * ny - nx - ny;
+  return { chains, junctions, ends: [], branches: edges - 4, cycles: (nx - 1) * (ny - 1), armKappa: 0 };
+}
+
 /** Rotation matrix (row-major) from a seeded random unit quaternion. */
 export function randomRotation(seed: number): number[] {
   const n = normalStream(seed);

@@ -12,7 +12,7 @@ import { formatLength, formatPoint, makeSource } from "./units.js";
 
 /** Options of `meshNetwork`: those of `meshCenterline` (its `branches` policy is not used) plus the junction settings. */
 export interface MeshNetworkOptions extends CenterlineOptions {
-  /** Junction nodes of the skeleton closer than this many tube radii are one junction [2]. */
+  /** Junction nodes of the skeleton closer than this many tube radii (along it) are one junction [3]. */
   readonly mergeRadii?: number;
   /** Half-width of the running mean over each branch's centre line, in tube radii [0.5; 0: none]. */
   readonly smoothRadii?: number;
@@ -171,7 +171,7 @@ function networkOfComponent(
   });
   for (let v = 0; v < nN; v++) for (let c = 0; c < 3; c++) if (cnt[v] > 0) nodePos[3 * v + c] /= cnt[v];
   const sg: SkeletonGraph = { nodes: nN, nodePos, edgeA, edgeB, edgePos };
-  const split = splitGraph(sg, (options.spurRadii ?? 2.5) * rEst, (options.mergeRadii ?? 2) * rEst);
+  const split = splitGraph(sg, (options.spurRadii ?? 2.5) * rEst, (options.mergeRadii ?? 3) * rEst);
   if (split.pruned > 0) notes.push(`${name}: pruned ${split.pruned} side spurs of the level-set graph (longest ${fmtL(split.prunedMax)})`);
   const step = options.step ?? 0.5 * rEst;
   const grid = buildTriangleGrid(positions, index, 2 * rEst);
@@ -179,6 +179,17 @@ function networkOfComponent(
   const jPos = split.junctions.map((j) => [j.x, j.y, j.z] as Xyz);
   const branches: Omit<RawBranch, "component">[] = [];
   let skipped = 0;
+  // junctions joined by no wire (a link too short for a centre line) are one junction (an X seen as two T's)
+  const same = new UnionFind(split.junctions.length);
+  let merged = 0;
+  const linkTooShort = (chain: (typeof split.chains)[number]): boolean => {
+    if (chain.from?.kind === "junction" && chain.to?.kind === "junction" && chain.from.index !== chain.to.index) {
+      if (same.find(chain.from.index) !== same.find(chain.to.index)) merged++;
+      same.union(chain.from.index, chain.to.index);
+      return true;
+    }
+    return false;
+  };
   for (const chain of split.chains) {
     const at = (t: Terminal | null): Xyz | null => (t?.kind === "junction" ? jPos[t.index] : null);
     const J0 = at(chain.from), J1 = at(chain.to);
@@ -190,15 +201,16 @@ function networkOfComponent(
       if (!near(J0) && !near(J1)) seeds.push(...p);
     }
     if (seeds.length < 6) {
-      skipped++;
+      if (!linkTooShort(chain)) skipped++;
       continue;
     }
     const refined = refineBranch(positions, index, grid, Float64Array.from(seeds), chain.closed, J0, J1, rEst, step, passes, options.smoothRadii ?? 0.5, options.keepCaps ?? false);
     if (refined === null) {
-      skipped++;
+      if (!linkTooShort(chain)) skipped++;
       continue;
     }
     const length = polylineLength(refined.xyz, chain.closed);
+    if (length < 2 * rEst && linkTooShort(chain)) continue;
     const rMed = median(refined.radius);
     const rHigh = [...refined.radius].sort((a, b) => a - b)[Math.floor(0.9 * (refined.radius.length - 1))];
     if (chain.from?.kind !== "junction" && chain.to?.kind !== "junction" && !chain.closed && length < 3 * rHigh) {
@@ -217,10 +229,28 @@ function networkOfComponent(
   }
   if (skipped > 0) notes.push(`${name}: ${skipped} branches too short for a centre line (under about two tube radii between junctions) left out`);
   if (branches.length === 0) return `${name}: skipped: no branch long enough for a centre line`;
-  notes.push(`${name}: ${split.junctions.length} junctions, ${branches.length} branches, ${split.skeletonCycles} independent cycles in the level-set graph (${nT} triangles)`);
+  // renumber the junctions after the merges; a merged junction sits at the mean of its parts
+  const rootIndex = new Map<number, number>();
+  const parts: number[][] = [];
+  split.junctions.forEach((_, j) => {
+    const r = same.find(j);
+    if (!rootIndex.has(r)) {
+      rootIndex.set(r, parts.length);
+      parts.push([]);
+    }
+    parts[rootIndex.get(r) as number].push(j);
+  });
+  const re = (t: Terminal | null): Terminal | null => (t?.kind === "junction" ? { kind: "junction", index: rootIndex.get(same.find(t.index)) as number } : t);
+  const renumbered = branches.map((b) => ({ ...b, from: re(b.from), to: re(b.to) }));
+  if (merged > 0) notes.push(`${name}: ${merged} pairs of junction nodes joined by no wire (under two tube radii apart) merged`);
+  const junctions = parts.map((m) => {
+    const mean = (c: "x" | "y" | "z") => m.reduce((acc, j) => acc + split.junctions[j][c], 0) / m.length;
+    return { x: mean("x"), y: mean("y"), z: mean("z"), scale: rEst };
+  });
+  notes.push(`${name}: ${junctions.length} junctions, ${branches.length} branches, ${split.skeletonCycles} independent cycles in the level-set graph (${nT} triangles)`);
   return {
-    branches,
-    junctions: split.junctions.map((j) => ({ x: j.x, y: j.y, z: j.z, scale: rEst })),
+    branches: renumbered,
+    junctions,
     nodes: nN,
     notes,
   };
