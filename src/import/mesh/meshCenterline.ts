@@ -178,7 +178,7 @@ function wireOfComponent(
       .map((j) => `${j.arms.length} arms meet near ${fmtP(j.x, j.y, j.z)} (arm lengths ${j.arms.map(fmtL).join(", ")})`)
       .join("; ");
     if ((options.branches ?? "error") === "error") {
-      throw new InputError(file, null, name, `branched: ${desc}; split the mesh into single wires, or keep the longest path (branches: "longest")`);
+      throw new InputError(file, null, name, `branched: ${desc}; split the mesh into its wires (--branches split), or keep the longest path (branches: "longest")`);
     }
     notes.push(`${name}: branched: ${desc}; kept the longest path only`);
   }
