@@ -53,7 +53,7 @@ export function balancedLevel(
   sm: Smoother, pilot: SmoothFit, C: Skyline, grid: GridBasis, interior: Uint8Array, seed: number,
   options: { quantity?: 0 | 1; probes?: number; maxDecades?: number; c?: number } = {},
 ): BalancedLevel {
-  const quantity = options.quantity ?? 1, wanted = options.probes ?? Number(process.env.PROBES ?? 16), maxDecades = options.maxDecades ?? 5, c = options.c ?? 1;
+  const quantity = options.quantity ?? 1, wanted = options.probes ?? 32, maxDecades = options.maxDecades ?? 5, c = options.c ?? 1;
   const K = sm.basis.K, m = grid.m;
   const d12 = new Float64Array(12), kt = new Float64Array(5);
   const { xis, scratch, dc } = symmetricProbes(K, Math.max(1, Math.round(wanted / 8)), seed ^ 0x5bd1e995);
@@ -125,15 +125,16 @@ export function balancedLevel(
  * (an unbiased-risk / Mallows C_p argument: Mallows 1973, Technometrics 15:661; Stein 1981, Ann.
  * Stat. 9:1135; both from memory). The variances come from common-random-number probes: the same
  * noise draws pushed through every level, so differences between levels are estimated with little
- * noise. The chosen level minimises R_k over the ladder pilot x 10^(k/4), k = 0..4 maxDecades.
+ * noise. The chosen level minimises R_k over the ladder pilot x 10^(k/4), k = 0..4 maxDecades;
+ * `refinedFactor` is the vertex of the parabola through it and its neighbours.
  * Unlike a plug-in risk, the bias term is not clamped at 0 (NUMERICS.md sec. 7 item 1: the clamp
  * made every level look unbiased). Cost O(levels (K b^2 + probes (K b + M))), M scored points.
  */
 export function riskLevel(
   sm: Smoother, pilot: SmoothFit, C: Skyline, grid: GridBasis, interior: Uint8Array, seed: number,
   options: { quantity?: 0 | 1; probes?: number; maxDecades?: number } = {},
-): BalancedLevel & { readonly risks: Float64Array } {
-  const quantity = options.quantity ?? 0, wanted = options.probes ?? Number(process.env.PROBES ?? 16), maxDecades = options.maxDecades ?? 3;
+): BalancedLevel & { readonly risks: Float64Array; readonly refinedFactor: number } {
+  const quantity = options.quantity ?? 0, wanted = options.probes ?? 32, maxDecades = options.maxDecades ?? 3;
   const K = sm.basis.K, m = grid.m;
   const d12 = new Float64Array(12), kt = new Float64Array(5);
   const { xis, scratch, dc } = symmetricProbes(K, Math.max(1, Math.round(wanted / 8)), seed ^ 0x1b873593);
@@ -142,7 +143,7 @@ export function riskLevel(
   for (let j = 0; j < m; ++j) if (interior[j]) use.push(j);
   const top = 4 * maxDecades;
   const risks = new Float64Array(top + 1).fill(NaN);
-  if (use.length === 0) return { fit: pilot, factorOfPilot: 1, atTop: false, scored: 0, risks };
+  if (use.length === 0) return { fit: pilot, factorOfPilot: 1, atTop: false, scored: 0, risks, refinedFactor: 1 };
   const M = use.length;
   // Per level: values and per-probe perturbations on the scored points.
   const evalLevel = (f: number) => {
@@ -173,5 +174,13 @@ export function riskLevel(
     risks[k] = r / M;
     if (Number.isFinite(r) && r < bestRisk) { bestRisk = r; best = k; bestFit = lv.fit; }
   }
-  return { fit: bestFit, factorOfPilot: Math.pow(10, best / 4), atTop: best === top, scored: M, risks };
+  // The vertex of the parabola through the least risk and its two neighbours (in quarter decades,
+  // at most half a step away): the level then moves continuously with the data instead of jumping
+  // a quarter decade when two ladder levels trade places.
+  let vertex = best;
+  if (best > 0 && best < top) {
+    const a = risks[best - 1], b = risks[best], c = risks[best + 1], den = a - 2 * b + c;
+    if (den > 0) vertex = best + Math.max(-0.5, Math.min(0.5, (0.5 * (a - c)) / den));
+  }
+  return { fit: bestFit, factorOfPilot: Math.pow(10, best / 4), atTop: best === top, scored: M, risks, refinedFactor: Math.pow(10, vertex / 4) };
 }
