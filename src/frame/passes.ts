@@ -29,6 +29,14 @@ export function segmentCount(n: number, closed: boolean): number {
   return Math.min(MAX_SEGMENTS, Math.max(closed ? 12 : 8, target));
 }
 
+/** Chord-length parameter of the points into `u`; returns the span (closing chord included for a ring). */
+export function chordLength(y: Float64Array, closed: boolean, u: Float64Array): number {
+  const n = y.length / 3;
+  u[0] = 0;
+  for (let i = 1; i < n; ++i) u[i] = u[i - 1] + Math.hypot(y[3 * i] - y[3 * i - 3], y[3 * i + 1] - y[3 * i - 2], y[3 * i + 2] - y[3 * i - 1]);
+  return closed ? u[n - 1] + Math.hypot(y[0] - y[3 * n - 3], y[1] - y[3 * n - 2], y[2] - y[3 * n - 1]) : u[n - 1];
+}
+
 /** Hampel-style redescending weight of a normal-plane residual e with robust scale sc. */
 export function robustWeight(e: number, sc: number): number {
   const r = e / sc;
@@ -167,8 +175,9 @@ export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnos
       if (turn > SPARSE_TURN) {
         sparse = true;
         nseg = Math.min(MAX_SEGMENTS, 4 * n);
-        u.set(start.u);
-        span = start.span;
+        // The plain chord length of the points: the running median of the start parameter pulls a
+        // few points per turn toward the axis (a 60-atom helix read back with +-30% curvature waves).
+        span = chordLength(y, closed, u);
         w.fill(1);
         diagnostics.push(`sparse trace: the curve turns by ${turn.toFixed(2)} rad between samples (median); fitted with ${nseg} knot intervals, ${sigmaKnown === undefined ? "near-interpolating the points (give the coordinate error to smooth them)" : "smoothed to the coordinate error given"}`);
       }
