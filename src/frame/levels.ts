@@ -119,7 +119,7 @@ function interpolate(x: Float64Array, v: Float64Array, t: number): number {
  */
 export function chooseLevels(
   trace: Trace, start: Start, fit: PassesResult, samples: Samples,
-  set: { readonly lambda?: number; readonly seed: number; readonly torsionBalance: number; readonly adaptive: boolean; readonly tauPilot?: number }, diagnostics: string[],
+  set: { readonly lambda?: number; readonly seed: number; readonly torsionBalance: number; readonly adaptive: boolean}, diagnostics: string[],
 ): Levels {
   const { basis, smoother, sel, table, u, w } = fit;
   const closed = start.closed;
@@ -161,12 +161,9 @@ export function chooseLevels(
     for (let j = 0; j < grid.m; j += stride) at.push(j);
     const sub = stride === 1 ? grid : gridBasis(basis, Float64Array.from(at, (j) => gridU[j]));
     const interior = Uint8Array.from(at, (j) => (closed || (gridS[j] > resolution && gridS[j] < length - resolution) ? 1 : 0));
-    // The torsion ladder starts at the passes' (discrepancy) level, whatever the curvature level.
-    const tauPilot = set.tauPilot !== undefined && set.tauPilot !== kappaFit.lambda ? solveAt(smoother, set.tauPilot) : kappaFit;
-    const b = balancedLevel(smoother, tauPilot, C, sub, interior, set.seed, { c: set.torsionBalance });
-    // (never below the curvature level: torsion is the higher derivative)
-    tauFit = b.fit.lambda >= kappaFit.lambda ? b.fit : kappaFit;
-    tauFactor = tauFit.lambda / kappaFit.lambda;
+    const b = balancedLevel(smoother, kappaFit, C, sub, interior, set.seed, { c: set.torsionBalance });
+    tauFit = b.fit;
+    tauFactor = b.factorOfPilot;
     if (tauFactor !== 1) diagnostics.push(`torsion: smoothing level ${tauFactor.toPrecision(3)}x the curvature level (balancing rule: the largest level whose torsion stays within the noise of every less-smoothed one)`);
     if (b.atTop) diagnostics.push("torsion: the balancing rule reached the top of its scan (torsion nearly constant along the wire)");
   }

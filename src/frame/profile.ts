@@ -210,7 +210,6 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
   if (set.coordinateError !== undefined) diagnostics.push(`noise: the coordinate error given (${describeLength(set.coordinateError, trace.source)} per coordinate) is the noise level; it is not estimated`);
   const start = robustStart(trace, options, diagnostics);
   let fit = runPasses(trace, start, set, diagnostics);
-  const passLevel = fit.sel.fit.lambda;
   if (set.curvatureRule === "risk" && set.lambda === undefined && !fit.sparse && fit.sel.sigmaFrom !== "unknown") {
     // The curvature level of least estimated error, then foot points, weights and arc length at
     // that level (one more pass from where the passes ended, the noise kept): a fit is best at its
@@ -223,7 +222,7 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
     }
   }
   const samples = sampleAt(trace, start, fit, set);
-  const levels = chooseLevels(trace, start, fit, samples, { ...set, tauPilot: passLevel }, diagnostics);
+  const levels = chooseLevels(trace, start, fit, samples, set, diagnostics);
   if (fit.sel.sigmaFrom === "unknown" && set.replicates > 0) {
     diagnostics.push(`noise not estimable: a sparse trace of ${fit.u.length} points leaves too few residual degrees of freedom; no bands (give the coordinate error to get them)`);
     return fitBands(trace, start, fit, levels, samples, { ...set, replicates: 0 }, diagnostics);

@@ -40,7 +40,8 @@ export interface BalancedLevel {
  * from memory). The third derivative wants more smoothing than positions or curvature (Rice &
  * Rosenblatt 1983, Ann. Stat. 11:141), but its bias can never be estimated reliably, only its noise.
  *
- * On a ladder of levels lambda_k = pilot x 10^(k/4), k = 0..4 maxDecades, the quantity q_k is
+ * On a ladder of levels lambda_k = pilot x 10^(k/8), k = 0..8 maxDecades (eighth decades: with
+ * quarter decades the choice jumped by a factor 1.8 between near-identical inputs), the quantity q_k is
  * computed on a FIXED set of grid points (interior, and where the pilot curvature is resolved: 3
  * noise standard deviations), with its noise standard deviation SD_k from `probes` draws (rounded to a multiple of 8, see
  * `symmetricProbes`) of
@@ -51,7 +52,7 @@ export interface BalancedLevel {
  */
 export function balancedLevel(
   sm: Smoother, pilot: SmoothFit, C: Skyline, grid: GridBasis, interior: Uint8Array, seed: number,
-  options: { quantity?: 0 | 1; probes?: number; maxDecades?: number; c?: number } = {},
+  options: { quantity?: 0 | 1; probes?: number; maxDecades?: number; c?: number; stepsPerDecade?: number } = {},
 ): BalancedLevel {
   const quantity = options.quantity ?? 1, wanted = options.probes ?? 32, maxDecades = options.maxDecades ?? 5, c = options.c ?? 1;
   const K = sm.basis.K, m = grid.m;
@@ -97,9 +98,10 @@ export function balancedLevel(
   };
   levels.push(evalLevel(0));
   let chosen = 0;
-  const top = 4 * maxDecades;
+  const steps = options.stepsPerDecade ?? 8;
+  const top = steps * maxDecades;
   for (let k = 1; k <= top; ++k) {
-    const lv = evalLevel(k / 4);
+    const lv = evalLevel(k / steps);
     let ok = true;
     for (let j = 0; j < levels.length && ok; ++j) {
       let d2 = 0, cnt = 0;
@@ -113,7 +115,7 @@ export function balancedLevel(
     levels.push(lv);
     chosen = k;
   }
-  return { fit: levels[chosen].fit, factorOfPilot: Math.pow(10, chosen / 4), atTop: chosen === top, scored: use.length };
+  return { fit: levels[chosen].fit, factorOfPilot: Math.pow(10, chosen / steps), atTop: chosen === top, scored: use.length };
 }
 
 /**
