@@ -56,7 +56,7 @@ export interface Trace {
 /** Per-sample flag bits of a Profile (`flags[i] & FLAG_...`). */
 export const FLAG_TORSION_UNDEFINED = 1; // kappa cannot be told from 0: tau is NaN, Frenet N, B undefined
 export const FLAG_FRAME_TRANSPORTED = 2; // N, B come from the twist-free (parallel-transport) frame
-export const FLAG_END = 4; // within one resolution length of an open end: bias is larger there
+export const FLAG_END = 4; // within one resolution length of an open end (3.5 sample spacings on a sparse trace): bias is larger there
 export const FLAG_TORSION_NOT_MEASURABLE = 8; // planar projection: torsion cannot be measured
 export const FLAG_BIAS = 16; // smoothing bias comparable to the band: the band may under-cover (feature near the resolution)
 export const FLAG_JUNCTION_ZONE = 32; // a branch of a wire network near a junction: the geometry there is the junction's, not the wire's (set after the fit, by the network pipeline)
