@@ -39,6 +39,9 @@ export function normalEquations(
   const G = makeSkyline(envelope(K, ORDER - 1, basis.periodic));
   const rhs = new Float64Array(3 * K);
   const tOut = new Float64Array(1), b = new Float64Array(24), idx = new Int32Array(ORDER);
+  const gd = G.data;
+  const rowBase = new Int32Array(K);
+  for (let r = 0; r < K; ++r) rowBase[r] = G.offset[r] - G.first[r];
   let yWy = 0, wSum = 0;
   const n = u.length;
   for (let p = 0; p < n; ++p) {
@@ -50,16 +53,18 @@ export function normalEquations(
     yWy += wp * (x * x + y * y + z * z);
     wSum += wp;
     for (let j = 0; j < ORDER; ++j) idx[j] = coefIndex(basis, i, j);
+    // Each entry of G gets one term per point (distinct coefficient pairs), so the sums run in point
+    // order whatever the order within a point; rowBase[m] + q addresses entry (m, q), m >= q.
     for (let j = 0; j < ORDER; ++j) {
       const bj = wp * b[j], m = idx[j];
       rhs[m] += bj * x;
       rhs[K + m] += bj * y;
       rhs[2 * K + m] += bj * z;
+      const rm = rowBase[m];
       for (let k = 0; k <= j; ++k) {
-        // Inlined skyAdd (hot loop): entry (max, min) of the lower envelope.
         const q = idx[k];
-        if (q <= m) G.data[G.offset[m] + q - G.first[m]] += bj * b[k];
-        else G.data[G.offset[q] + m - G.first[q]] += bj * b[k];
+        if (q <= m) gd[rm + q] += bj * b[k];
+        else gd[rowBase[q] + m] += bj * b[k];
       }
     }
   }
