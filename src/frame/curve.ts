@@ -1,4 +1,5 @@
 import { PIECES, type SplineBasis } from "./bspline.js";
+import { hypot3 } from "./hypot3.js";
 
 /** Quintic: six active basis functions per interval (local copy: imported bindings are slow in hot loops). */
 const ORDER = 6;
@@ -112,7 +113,7 @@ export function arcTable(basis: SplineBasis, coef: Float64Array, per = 4): ArcTa
   const out = new Float64Array(12), st = new Float64Array(1), sb = new Float64Array(24);
   const sp = (x: number) => {
     evalCurve(basis, coef, x, 1, out, st, sb);
-    return Math.hypot(out[3], out[4], out[5]);
+    return hypot3(out[3], out[4], out[5]);
   };
   for (let k = 0; k <= m; ++k) {
     u[k] = basis.u0 + k * du;

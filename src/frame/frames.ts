@@ -9,6 +9,7 @@
  * samples whose N, B were transported. Cost O(m). Degenerate: with nothing resolved the frame starts
  * from the coordinate axis most perpendicular to T at the first sample.
  */
+import { hypot3 } from "./hypot3.js";
 export function frames(
   r1: Float64Array,
   kv: Float64Array,
@@ -19,10 +20,10 @@ export function frames(
   const T = new Float64Array(3 * m), N = new Float64Array(3 * m), B = new Float64Array(3 * m);
   const transported = new Uint8Array(m);
   for (let j = 0; j < m; ++j) {
-    const l = Math.hypot(r1[3 * j], r1[3 * j + 1], r1[3 * j + 2]);
+    const l = hypot3(r1[3 * j], r1[3 * j + 1], r1[3 * j + 2]);
     T[3 * j] = r1[3 * j] / l; T[3 * j + 1] = r1[3 * j + 1] / l; T[3 * j + 2] = r1[3 * j + 2] / l;
     if (resolved[j]) {
-      const k = Math.hypot(kv[3 * j], kv[3 * j + 1], kv[3 * j + 2]);
+      const k = hypot3(kv[3 * j], kv[3 * j + 1], kv[3 * j + 2]);
       setNormal(T, N, j, kv[3 * j] / k, kv[3 * j + 1] / k, kv[3 * j + 2] / k);
     }
   }
@@ -63,12 +64,12 @@ function setNormal(T: Float64Array, N: Float64Array, j: number, vx: number, vy: 
   const tx = T[3 * j], ty = T[3 * j + 1], tz = T[3 * j + 2];
   let d = vx * tx + vy * ty + vz * tz;
   let nx = vx - d * tx, ny = vy - d * ty, nz = vz - d * tz;
-  let l = Math.hypot(nx, ny, nz);
+  let l = hypot3(nx, ny, nz);
   if (!(l > 1e-12)) {
     const ax = Math.abs(tx) < 0.9 ? 1 : 0, ay = ax ? 0 : 1;
     d = ax * tx + ay * ty;
     nx = ax - d * tx; ny = ay - d * ty; nz = -d * tz;
-    l = Math.hypot(nx, ny, nz);
+    l = hypot3(nx, ny, nz);
   }
   N[3 * j] = nx / l; N[3 * j + 1] = ny / l; N[3 * j + 2] = nz / l;
 }

@@ -9,6 +9,7 @@ import { makeBasis, type SplineBasis } from "./bspline.js";
 import { arcAt, arcTable, evalCurve, kappaTau, type ArcTable } from "./curve.js";
 import { checkPass, describeLength, LENGTH_RATIO_LIMIT } from "./fitGuard.js";
 import { InputError } from "../errors.js";
+import { hypot3 } from "./hypot3.js";
 import { medianOf } from "./robustStart.js";
 import { lambdaForWavelength, makeSmoother, selectSmoothing, wavelengthForLambda, type Selection, type Smoother } from "./smoother.js";
 import type { Start } from "./profile.js";
@@ -128,7 +129,7 @@ export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnos
       }
       u[i] = ui;
       evalCurve(basis, coef, ui, checkSparse ? 3 : 0, d12, st, sb);
-      resid[i] = Math.hypot(d12[0] - y[3 * i], d12[1] - y[3 * i + 1], d12[2] - y[3 * i + 2]);
+      resid[i] = hypot3(d12[0] - y[3 * i], d12[1] - y[3 * i + 1], d12[2] - y[3 * i + 2]);
       if (checkSparse) turns[i] = kappaTau(d12, kt)[0] * start.medianStep;
     }
     // Robust weights from the residual norms (Rayleigh median in 3D: 1.1774 sigma; half-normal in

@@ -4,6 +4,7 @@
  * Pure functions over interleaved xyz (any unit: every result is a ratio or in the input's unit).
  */
 import { canonicalFrame } from "./canonicalFrame.js";
+import { hypot3 } from "./hypot3.js";
 
 /** k-th smallest of a[0..count) (0-based), reordering a in place: Hoare's selection (Hoare 1961,
  * CACM 4:321, "Algorithm 65: find"), insertion sort below 16 values. O(count) expected. */
@@ -54,7 +55,7 @@ export function medianOf(values: ArrayLike<number>, count = values.length): numb
 export function stepLengths(y: Float64Array): Float64Array {
   const n = y.length / 3;
   const st = new Float64Array(Math.max(n - 1, 0));
-  for (let i = 1; i < n; ++i) st[i - 1] = Math.hypot(y[3 * i] - y[3 * i - 3], y[3 * i + 1] - y[3 * i - 2], y[3 * i + 2] - y[3 * i - 1]);
+  for (let i = 1; i < n; ++i) st[i - 1] = hypot3(y[3 * i] - y[3 * i - 3], y[3 * i + 1] - y[3 * i - 2], y[3 * i + 2] - y[3 * i - 1]);
   return st;
 }
 
@@ -81,7 +82,7 @@ export function toCanonical(xyz: Float64Array, planar: boolean): CanonicalTrace 
   for (let i = 0; i < n; ++i) { cx += xyz[3 * i]; cy += xyz[3 * i + 1]; cz += xyz[3 * i + 2]; }
   cx /= n; cy /= n; cz /= n;
   let chord = 0;
-  for (let i = 1; i < n; ++i) chord += Math.hypot(xyz[3 * i] - xyz[3 * i - 3], xyz[3 * i + 1] - xyz[3 * i - 2], xyz[3 * i + 2] - xyz[3 * i - 1]);
+  for (let i = 1; i < n; ++i) chord += hypot3(xyz[3 * i] - xyz[3 * i - 3], xyz[3 * i + 1] - xyz[3 * i - 2], xyz[3 * i + 2] - xyz[3 * i - 1]);
   if (!(chord > 0) || !Number.isFinite(chord)) return null;
   const y = new Float64Array(3 * n);
   for (let i = 0; i < n; ++i) {
@@ -137,7 +138,7 @@ export function grossOutliers(y: Float64Array, closed: boolean): Uint8Array {
       }
       px = medianInPlace(bx, c); py = medianInPlace(by, c); pz = medianInPlace(bz, c);
     }
-    d[i] = Math.hypot(y[3 * i] - px, y[3 * i + 1] - py, y[3 * i + 2] - pz);
+    d[i] = hypot3(y[3 * i] - px, y[3 * i + 1] - py, y[3 * i + 2] - pz);
   }
   const medStep = medianOf(stepLengths(y));
   const scale = Math.max(medianInPlace(d.slice()), OUTLIER_SCALE_FLOOR * medStep);
@@ -147,7 +148,7 @@ export function grossOutliers(y: Float64Array, closed: boolean): Uint8Array {
   // through its two neighbours. A point on the way (the start of a long straight segment, the far
   // end of one) forces no detour and is kept even where its neighbourhood median is far. Its scale
   // comes from at most 20000 points spread along the trace; only candidates are judged.
-  const dist = (a: number, b: number) => Math.hypot(y[3 * a] - y[3 * b], y[3 * a + 1] - y[3 * b + 1], y[3 * a + 2] - y[3 * b + 2]);
+  const dist = (a: number, b: number) => hypot3(y[3 * a] - y[3 * b], y[3 * a + 1] - y[3 * b + 1], y[3 * a + 2] - y[3 * b + 2]);
   const idx = (j: number) => (closed ? (j + n) % n : j);
   const detour = (i: number): number => {
     let best = Infinity;
@@ -160,11 +161,11 @@ export function grossOutliers(y: Float64Array, closed: boolean): Uint8Array {
     if (best !== Infinity) return best;
     const a = i === 0 ? 1 : n - 2, b = i === 0 ? 2 : n - 3;
     const ux = y[3 * a] - y[3 * b], uy = y[3 * a + 1] - y[3 * b + 1], uz = y[3 * a + 2] - y[3 * b + 2];
-    const ul = Math.hypot(ux, uy, uz) || 1;
+    const ul = hypot3(ux, uy, uz) || 1;
     const vx = y[3 * i] - y[3 * a], vy = y[3 * i + 1] - y[3 * a + 1], vz = y[3 * i + 2] - y[3 * a + 2];
-    const perp = Math.hypot(vy * uz - vz * uy, vz * ux - vx * uz, vx * uy - vy * ux) / ul;
+    const perp = hypot3(vy * uz - vz * uy, vz * ux - vx * uz, vx * uy - vy * ux) / ul;
     // Along the line (within 0.5 rad) the end point continues the wire, however far it is.
-    return perp > Math.sin(0.5) * Math.hypot(vx, vy, vz) ? perp : 0;
+    return perp > Math.sin(0.5) * hypot3(vx, vy, vz) ? perp : 0;
   };
   const stride = Math.max(1, Math.ceil(n / 20_000));
   const sample = new Float64Array(Math.ceil(n / stride));
@@ -208,8 +209,8 @@ export function startParameter(y: Float64Array, closed: boolean): { u: Float64Ar
   const n = y.length / 3;
   const sm = runningMedian(y, n >= 60 ? 2 : 0, closed);
   const u = new Float64Array(n);
-  for (let i = 1; i < n; ++i) u[i] = u[i - 1] + Math.hypot(sm[3 * i] - sm[3 * i - 3], sm[3 * i + 1] - sm[3 * i - 2], sm[3 * i + 2] - sm[3 * i - 1]);
-  const span = closed ? u[n - 1] + Math.hypot(sm[0] - sm[3 * n - 3], sm[1] - sm[3 * n - 2], sm[2] - sm[3 * n - 1]) : u[n - 1];
+  for (let i = 1; i < n; ++i) u[i] = u[i - 1] + hypot3(sm[3 * i] - sm[3 * i - 3], sm[3 * i + 1] - sm[3 * i - 2], sm[3 * i + 2] - sm[3 * i - 1]);
+  const span = closed ? u[n - 1] + hypot3(sm[0] - sm[3 * n - 3], sm[1] - sm[3 * n - 2], sm[2] - sm[3 * n - 1]) : u[n - 1];
   return { u, span };
 }
 
@@ -234,8 +235,8 @@ export function referenceLength(y: Float64Array, closed: boolean): number {
     }
   }
   let len = 0;
-  for (let k = 1; k < blocks; ++k) len += Math.hypot(pts[3 * k] - pts[3 * k - 3], pts[3 * k + 1] - pts[3 * k - 2], pts[3 * k + 2] - pts[3 * k - 1]);
-  if (closed && blocks > 1) len += Math.hypot(pts[0] - pts[3 * blocks - 3], pts[1] - pts[3 * blocks - 2], pts[2] - pts[3 * blocks - 1]);
+  for (let k = 1; k < blocks; ++k) len += hypot3(pts[3 * k] - pts[3 * k - 3], pts[3 * k + 1] - pts[3 * k - 2], pts[3 * k + 2] - pts[3 * k - 1]);
+  if (closed && blocks > 1) len += hypot3(pts[0] - pts[3 * blocks - 3], pts[1] - pts[3 * blocks - 2], pts[2] - pts[3 * blocks - 1]);
   return len;
 }
 
@@ -274,7 +275,7 @@ export function differenceNoise(y: Float64Array, u: Float64Array, normalDims: 1 
     }
     // Normal-plane part: remove the component along the chord through the neighbours.
     let tx = y[3 * (i + 1)] - y[3 * (i - 1)], ty = y[3 * (i + 1) + 1] - y[3 * (i - 1) + 1], tz = y[3 * (i + 1) + 2] - y[3 * (i - 1) + 2];
-    const tl = Math.hypot(tx, ty, tz);
+    const tl = hypot3(tx, ty, tz);
     if (!(tl > 0)) continue;
     tx /= tl; ty /= tl; tz /= tl;
     const along = e[0] * tx + e[1] * ty + e[2] * tz;
