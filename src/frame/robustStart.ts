@@ -256,32 +256,27 @@ export function differenceNoise(y: Float64Array, u: Float64Array, normalDims: 1 
   if (n < 7) return NaN;
   const r2 = new Float64Array(n);
   let m = 0;
-  const e = [0, 0, 0];
   for (let i = 2; i < n - 2; ++i) {
-    const t = [u[i - 2], u[i - 1], u[i + 1], u[i + 2]], x = u[i];
-    if (!(t[0] < t[1] && t[1] < x && x < t[2] && t[2] < t[3])) continue;
-    // Lagrange weights of the cubic through the four neighbours, evaluated at u_i.
-    const w = [0, 0, 0, 0];
-    for (let a = 0; a < 4; ++a) {
-      let p = 1;
-      for (let b = 0; b < 4; ++b) if (b !== a) p *= (x - t[b]) / (t[a] - t[b]);
-      w[a] = p;
-    }
-    const idx = [i - 2, i - 1, i + 1, i + 2];
-    for (let c = 0; c < 3; ++c) {
-      let acc = -y[3 * i + c];
-      for (let a = 0; a < 4; ++a) acc += w[a] * y[3 * idx[a] + c];
-      e[c] = acc;
-    }
+    const t0 = u[i - 2], t1 = u[i - 1], t2 = u[i + 1], t3 = u[i + 2], x = u[i];
+    if (!(t0 < t1 && t1 < x && x < t2 && t2 < t3)) continue;
+    // Lagrange weights of the cubic through the four neighbours, evaluated at u_i (each a product
+    // of three factors, left to right).
+    const w0 = ((x - t1) / (t0 - t1)) * ((x - t2) / (t0 - t2)) * ((x - t3) / (t0 - t3));
+    const w1 = ((x - t0) / (t1 - t0)) * ((x - t2) / (t1 - t2)) * ((x - t3) / (t1 - t3));
+    const w2 = ((x - t0) / (t2 - t0)) * ((x - t1) / (t2 - t1)) * ((x - t3) / (t2 - t3));
+    const w3 = ((x - t0) / (t3 - t0)) * ((x - t1) / (t3 - t1)) * ((x - t2) / (t3 - t2));
+    const ia = 3 * (i - 2), ib = 3 * (i - 1), ic = 3 * (i + 1), id = 3 * (i + 2), ii = 3 * i;
+    const e0 = -y[ii] + w0 * y[ia] + w1 * y[ib] + w2 * y[ic] + w3 * y[id];
+    const e1 = -y[ii + 1] + w0 * y[ia + 1] + w1 * y[ib + 1] + w2 * y[ic + 1] + w3 * y[id + 1];
+    const e2 = -y[ii + 2] + w0 * y[ia + 2] + w1 * y[ib + 2] + w2 * y[ic + 2] + w3 * y[id + 2];
     // Normal-plane part: remove the component along the chord through the neighbours.
-    let tx = y[3 * (i + 1)] - y[3 * (i - 1)], ty = y[3 * (i + 1) + 1] - y[3 * (i - 1) + 1], tz = y[3 * (i + 1) + 2] - y[3 * (i - 1) + 2];
+    let tx = y[ic] - y[ib], ty = y[ic + 1] - y[ib + 1], tz = y[ic + 2] - y[ib + 2];
     const tl = hypot3(tx, ty, tz);
     if (!(tl > 0)) continue;
     tx /= tl; ty /= tl; tz /= tl;
-    const along = e[0] * tx + e[1] * ty + e[2] * tz;
-    const f = 1 + w[0] * w[0] + w[1] * w[1] + w[2] * w[2] + w[3] * w[3];
-    const q = (e[0] * e[0] + e[1] * e[1] + e[2] * e[2] - along * along) / f;
-    r2[m++] = q;
+    const along = e0 * tx + e1 * ty + e2 * tz;
+    const f = 1 + w0 * w0 + w1 * w1 + w2 * w2 + w3 * w3;
+    r2[m++] = (e0 * e0 + e1 * e1 + e2 * e2 - along * along) / f;
   }
   if (m < 5) return NaN;
   return Math.sqrt(medianInPlace(r2, m) / (normalDims === 2 ? 1.3863 : 0.4549));
