@@ -17,30 +17,37 @@ export interface BootstrapOutput {
 
 /** xoshiro128** seeded by splitmix32 (Blackman & Vigna 2018, public domain); normals by Box-Muller. */
 export function normalGenerator(seed: number): () => number {
-  let x = seed >>> 0;
+  // The state lives in typed arrays (closure variables holding doubles or 32-bit integers outside
+  // the small-integer range cost a heap allocation per update); the bit operations are unchanged.
+  const st = new Int32Array(5), spare = new Float64Array(1);
+  st[4] = seed >>> 0;
   const split = () => {
-    x = (x + 0x9e3779b9) >>> 0;
+    const x = (st[4] + 0x9e3779b9) >>> 0;
+    st[4] = x;
     let z = x;
     z = Math.imul(z ^ (z >>> 16), 0x85ebca6b) >>> 0;
     z = Math.imul(z ^ (z >>> 13), 0xc2b2ae35) >>> 0;
     return (z ^ (z >>> 16)) >>> 0;
   };
-  let a = split(), b = split(), c = split(), d = split();
+  st[0] = split(); st[1] = split(); st[2] = split(); st[3] = split();
   const next = () => {
+    let a = st[0], b = st[1], c = st[2], d = st[3];
     const r = Math.imul(((Math.imul(b, 5) << 7) | (Math.imul(b, 5) >>> 25)) >>> 0, 9) >>> 0;
     const t = (b << 9) >>> 0;
     c ^= a; d ^= b; b ^= c; a ^= d; c ^= t;
     d = ((d << 11) | (d >>> 21)) >>> 0;
+    st[0] = a; st[1] = b; st[2] = c; st[3] = d;
     return r / 4294967296;
   };
-  let spare = NaN;
+  spare[0] = NaN;
   return () => {
-    if (!Number.isNaN(spare)) { const v = spare; spare = NaN; return v; }
+    const sv = spare[0];
+    if (!Number.isNaN(sv)) { spare[0] = NaN; return sv; }
     let p = next();
     while (p <= 0) p = next();
     const q = next();
     const r = Math.sqrt(-2 * Math.log(p));
-    spare = r * Math.sin(2 * Math.PI * q);
+    spare[0] = r * Math.sin(2 * Math.PI * q);
     return r * Math.cos(2 * Math.PI * q);
   };
 }
