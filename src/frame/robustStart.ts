@@ -44,6 +44,54 @@ export function medianInPlace(a: Float64Array, count = a.length): number {
   return 0.5 * (lo + hi);
 }
 
+/**
+ * Median of a[0..5) (not changed) by the 9-comparator sorting network for 5 inputs (Knuth, TAOCP
+ * vol. 3, sec. 5.3.4, from memory; checked against a full sort in test/frame/speedInvariance.test.ts).
+ * The same value as `medianInPlace(a, 5)`, without its insertion sort.
+ */
+export function median5(a: Float64Array): number {
+  let a0 = a[0], a1 = a[1], a2 = a[2], a3 = a[3], a4 = a[4], t: number;
+  if (a0 > a1) { t = a0; a0 = a1; a1 = t; }
+  if (a3 > a4) { t = a3; a3 = a4; a4 = t; }
+  if (a2 > a4) { t = a2; a2 = a4; a4 = t; }
+  if (a2 > a3) { t = a2; a2 = a3; a3 = t; }
+  if (a0 > a3) { t = a0; a0 = a3; a3 = t; }
+  if (a0 > a2) { t = a0; a0 = a2; a2 = t; }
+  if (a1 > a4) { t = a1; a1 = a4; a4 = t; }
+  if (a1 > a3) { t = a1; a1 = a3; a3 = t; }
+  if (a1 > a2) { t = a1; a1 = a2; a2 = t; }
+  return a2;
+}
+
+/**
+ * Median of a[0..8) (not changed): the mean of the 4th and 5th smallest, as `medianInPlace(a, 8)`,
+ * by Batcher's odd-even merge sorting network for 8 inputs (19 comparators; Batcher 1968, AFIPS
+ * SJCC 32:307, from memory; checked against a full sort in test/frame/speedInvariance.test.ts).
+ */
+export function median8(a: Float64Array): number {
+  let a0 = a[0], a1 = a[1], a2 = a[2], a3 = a[3], a4 = a[4], a5 = a[5], a6 = a[6], a7 = a[7], t: number;
+  if (a0 > a1) { t = a0; a0 = a1; a1 = t; }
+  if (a2 > a3) { t = a2; a2 = a3; a3 = t; }
+  if (a4 > a5) { t = a4; a4 = a5; a5 = t; }
+  if (a6 > a7) { t = a6; a6 = a7; a7 = t; }
+  if (a0 > a2) { t = a0; a0 = a2; a2 = t; }
+  if (a1 > a3) { t = a1; a1 = a3; a3 = t; }
+  if (a4 > a6) { t = a4; a4 = a6; a6 = t; }
+  if (a5 > a7) { t = a5; a5 = a7; a7 = t; }
+  if (a1 > a2) { t = a1; a1 = a2; a2 = t; }
+  if (a5 > a6) { t = a5; a5 = a6; a6 = t; }
+  if (a0 > a4) { t = a0; a0 = a4; a4 = t; }
+  if (a1 > a5) { t = a1; a1 = a5; a5 = t; }
+  if (a2 > a6) { t = a2; a2 = a6; a6 = t; }
+  if (a3 > a7) { t = a3; a3 = a7; a7 = t; }
+  if (a2 > a4) { t = a2; a2 = a4; a4 = t; }
+  if (a3 > a5) { t = a3; a3 = a5; a5 = t; }
+  if (a1 > a2) { t = a1; a1 = a2; a2 = t; }
+  if (a3 > a4) { t = a3; a3 = a4; a4 = t; }
+  if (a5 > a6) { t = a5; a5 = a6; a6 = t; }
+  return 0.5 * (a3 + a4);
+}
+
 /** Median of the first `count` values (the input is not changed; NaN for none). */
 export function medianOf(values: ArrayLike<number>, count = values.length): number {
   if (count === 0) return NaN;
@@ -136,7 +184,8 @@ export function grossOutliers(y: Float64Array, closed: boolean): Uint8Array {
         bx[c] = y[3 * a]; by[c] = y[3 * a + 1]; bz[c] = y[3 * a + 2]; ++c;
         bx[c] = y[3 * b]; by[c] = y[3 * b + 1]; bz[c] = y[3 * b + 2]; ++c;
       }
-      px = medianInPlace(bx, c); py = medianInPlace(by, c); pz = medianInPlace(bz, c);
+      if (c === 8) { px = median8(bx); py = median8(by); pz = median8(bz); }
+      else { px = medianInPlace(bx, c); py = medianInPlace(by, c); pz = medianInPlace(bz, c); }
     }
     d[i] = hypot3(y[3 * i] - px, y[3 * i + 1] - py, y[3 * i + 2] - pz);
   }
@@ -192,7 +241,7 @@ export function runningMedian(y: Float64Array, half: number, closed: boolean): F
         const j = closed ? (i + k + n) % n : i + k;
         buf[m++] = y[3 * j + c];
       }
-      out[3 * i + c] = medianInPlace(buf, m);
+      out[3 * i + c] = m === 5 ? median5(buf) : medianInPlace(buf, m);
     }
   }
   return out;
