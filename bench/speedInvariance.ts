@@ -6,15 +6,24 @@
  * (each element against max(|a|, |b|), floored at 1e-12 of the field's largest magnitude), and fails
  * (exit code 1) above 1e-9 or on any differing flag, count or NaN pattern. Used to show a speed
  * change leaves kappa, tau and their bands alone. `--small` skips the 1e5-point case.
+ * `... fixture FILE` writes the digest of the small cases of test/support/speedCases.ts that
+ * test/frame/speedInvariance.test.ts compares against (regenerate it only for a deliberate change
+ * of results, never for a speed change).
  */
 import { readFileSync, writeFileSync } from "node:fs";
 import { fitProfile, type ProfileOptions } from "../src/frame/profile.js";
 import type { Profile, Trace } from "../src/types.js";
 import { helixCurve, sampleCurve, sampleCurveUneven, trefoilCurve, vivianiCurve, ellipseCurve, bendCurve, type TestCurve } from "../test/support/curves.js";
 import { normalStream } from "../test/support/rng.js";
+import { speedCaseDigests } from "../test/support/speedCases.js";
 
 const [mode, file] = process.argv.slice(2);
 const small = process.argv.includes("--small");
+if (mode === "fixture" && file !== undefined) {
+  writeFileSync(file, JSON.stringify(speedCaseDigests()) + "\n");
+  console.log(`wrote ${file}`);
+  process.exit(0);
+}
 if ((mode !== "save" && mode !== "compare") || file === undefined) throw new Error("usage: speedInvariance.ts save|compare FILE [--small]");
 
 function trace(xyz: Float64Array, dims: 2 | 3, closed?: boolean): Trace {
