@@ -120,11 +120,13 @@ export function sqrtDiagonal(f: Skyline): Float64Array {
 /**
  * Selected inverse: the entries of A^{-1} on the envelope of A's factor, as a skyline with the same
  * shape, by the Takahashi recursion Z = D^{-1} L^{-1} + (I - L^T) Z, processed from the last row up.
- * Cost O(K b^2) for banded-plus-dense-tail envelopes.
+ * Cost O(K b^2) for banded-plus-dense-tail envelopes. `out`: optional storage for the result's data.
  */
-export function selectedInverse(f: Skyline): Skyline {
+export function selectedInverse(f: Skyline, out?: Float64Array): Skyline {
   const { n, first, offset, data } = f;
-  const z = { n, first, offset, data: new Float64Array(data.length) };
+  // Every envelope entry is written before it is read (rows are done from the last up), so `out`
+  // (storage of the same length, reused by the caller) needs no clearing.
+  const z = { n, first, offset, data: out ?? new Float64Array(data.length) };
   const colRows = columnPattern(first);
   const zd = z.data;
   const lk = new Float64Array(n);

@@ -68,8 +68,13 @@ export function solveAt(sm: Smoother, lambda: number): SmoothFit {
 }
 
 /** Effective degrees of freedom per coordinate, tr((G + lambda P)^-1 G), by the selected inverse. */
+const edfScratch = new WeakMap<Int32Array, Float64Array>();
+
 export function edfOf(sm: Smoother, fit: SmoothFit): number {
-  const Z = selectedInverse(fit.factor);
+  // The selected inverse is only summed here: its storage is reused per envelope.
+  let buf = edfScratch.get(fit.factor.first);
+  if (!buf || buf.length !== fit.factor.data.length) { buf = new Float64Array(fit.factor.data.length); edfScratch.set(fit.factor.first, buf); }
+  const Z = selectedInverse(fit.factor, buf);
   const G = sm.normal.G;
   let t = 0;
   for (let i = 0; i < G.n; ++i) {
@@ -159,25 +164,30 @@ export function gcvLevel(sm: Smoother, hintLogGcv?: number): { fit: SmoothFit; e
  * discrepancy principle, Reinsch 1967, Numer. Math. 10:177): it smooths more than GCV, which
  * derivatives want. null when RSS stays below the target up to the top of the range.
  */
-export function discrepancyLevel(sm: Smoother, sigma: number, normalDims: number, fromLog: number): SmoothFit | null {
+export function discrepancyLevel(sm: Smoother, sigma: number, normalDims: number, fromLog: number, fitAtFrom?: SmoothFit): SmoothFit | null {
   const n = sm.normal.wSum;
   const target = normalDims * n * sigma * sigma;
   const hi = sm.logLambdaRange[1];
   let left = fromLog, right = fromLog;
-  let fitRight = solveAt(sm, Math.pow(10, right));
+  // `fitAtFrom`: the caller's fit at 10^fromLog, when it has one (the same numbers as solving again).
+  let fitRight = fitAtFrom ?? solveAt(sm, Math.pow(10, right));
   if (fitRight.rss > target) return fitRight;
+  let fitLeft = fitRight;
   while (fitRight.rss < target && right < hi) {
     left = right;
+    fitLeft = fitRight;
     right = Math.min(hi, right + 1);
     fitRight = solveAt(sm, Math.pow(10, right));
   }
   if (fitRight.rss < target) return null;
   for (let it = 0; it < 40 && right - left > 1e-3; ++it) {
     const mid = 0.5 * (left + right);
-    if (solveAt(sm, Math.pow(10, mid)).rss <= target) left = mid;
+    const fitMid = solveAt(sm, Math.pow(10, mid));
+    if (fitMid.rss <= target) { left = mid; fitLeft = fitMid; }
     else right = mid;
   }
-  return solveAt(sm, Math.pow(10, left));
+  // The fit at 10^left was solved on the way (solving is deterministic: no need to solve again).
+  return fitLeft;
 }
 
 /**
@@ -205,11 +215,11 @@ export function selectSmoothing(sm: Smoother, normalDims: number, options: Selec
   if (options.sigmaKnown !== undefined) { sigma = options.sigmaKnown; sigmaFrom = "given"; }
   else if (options.sigmaFloor !== undefined && !(est >= options.sigmaFloor)) { sigma = options.sigmaFloor; sigmaFrom = "floor"; }
   const fromLog = Math.max(g.logLambda, options.minLambda !== undefined ? Math.log10(options.minLambda) : -Infinity);
-  let fit = sigma > 0 ? discrepancyLevel(sm, sigma, normalDims, fromLog) : null;
+  let fit = sigma > 0 ? discrepancyLevel(sm, sigma, normalDims, fromLog, fromLog === g.logLambda ? g.fit : undefined) : null;
   let rule: Selection["rule"] = "discrepancy";
   if (!fit) {
     rule = "gcv-x3";
     fit = solveAt(sm, Math.max(3 * Math.pow(10, g.logLambda), options.minLambda ?? 0));
   }
-  return { fit, edf: edfOf(sm, fit), sigma, sigmaFrom, lambdaGcv: Math.pow(10, g.logLambda), edfGcv: g.edf, rule, basisSegments };
+  return { fit, edf: fit === g.fit ? g.edf : edfOf(sm, fit), sigma, sigmaFrom, lambdaGcv: Math.pow(10, g.logLambda), edfGcv: g.edf, rule, basisSegments };
 }
