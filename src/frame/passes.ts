@@ -39,6 +39,39 @@ export function robustWeight(e: number, sc: number): number {
   return (1 - q * q) * (1 - q * q);
 }
 
+/**
+ * Foot points: Newton on |r(u) - p_i|^2 from u[i] (steps limited to one knot interval, at most 4,
+ * clamped to an open domain), u[i] and the distance resid[i] updated in place; `turns` (when given)
+ * gets the turning angle per median step at each foot point. A function of its own so that the JIT
+ * optimises this loop alone, whatever the rest of the pass does.
+ */
+function projectFootPoints(
+  basis: SplineBasis, coef: Float64Array, y: Float64Array, u: Float64Array, resid: Float64Array, turns: Float64Array | null, medianStep: number, closed: boolean,
+): void {
+  const n = u.length;
+  const d12 = new Float64Array(12), st = new Float64Array(1), sb = new Float64Array(24), kt = new Float64Array(5);
+  for (let i = 0; i < n; ++i) {
+    let ui = u[i];
+    for (let it = 0; it < 4; ++it) {
+      evalCurve(basis, coef, ui, 2, d12, st, sb);
+      const ex = d12[0] - y[3 * i], ey = d12[1] - y[3 * i + 1], ez = d12[2] - y[3 * i + 2];
+      const g = ex * d12[3] + ey * d12[4] + ez * d12[5];
+      const sp2 = d12[3] * d12[3] + d12[4] * d12[4] + d12[5] * d12[5];
+      const hss = sp2 + ex * d12[6] + ey * d12[7] + ez * d12[8];
+      let du = -g / (hss > 0.1 * sp2 ? hss : sp2);
+      if (du > basis.h) du = basis.h;
+      else if (du < -basis.h) du = -basis.h;
+      ui += du;
+      if (!closed) ui = Math.min(Math.max(ui, basis.u0), basis.u0 + basis.nseg * basis.h);
+      if (Math.abs(du) < 1e-7 * basis.h) break;
+    }
+    u[i] = ui;
+    evalCurve(basis, coef, ui, turns ? 3 : 0, d12, st, sb);
+    resid[i] = hypot3(d12[0] - y[3 * i], d12[1] - y[3 * i + 1], d12[2] - y[3 * i + 2]);
+    if (turns) turns[i] = kappaTau(d12, kt)[0] * medianStep;
+  }
+}
+
 /** The settings the passes read. */
 export interface PassSettings {
   readonly passes: number;
@@ -90,7 +123,6 @@ export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnos
   let sm: Smoother | undefined;
   let nearInterpolation = NaN;
   const sigmaKnown = set.coordinateError !== undefined ? set.coordinateError / scale : undefined;
-  const d12 = new Float64Array(12), st = new Float64Array(1), sb = new Float64Array(24), kt = new Float64Array(5);
   const resid = new Float64Array(n);
   for (let pass = 0; pass <= set.passes; ++pass) {
     sm = makeSmoother(basis, u, y, w);
@@ -112,26 +144,7 @@ export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnos
     const coef = sel.fit.coef;
     const checkSparse = pass === 0 && !sparse && n <= 2000 && set.segments === undefined;
     const turns = new Float64Array(checkSparse ? n : 0);
-    for (let i = 0; i < n; ++i) {
-      let ui = u[i];
-      for (let it = 0; it < 4; ++it) {
-        evalCurve(basis, coef, ui, 2, d12, st, sb);
-        const ex = d12[0] - y[3 * i], ey = d12[1] - y[3 * i + 1], ez = d12[2] - y[3 * i + 2];
-        const g = ex * d12[3] + ey * d12[4] + ez * d12[5];
-        const sp2 = d12[3] * d12[3] + d12[4] * d12[4] + d12[5] * d12[5];
-        const hss = sp2 + ex * d12[6] + ey * d12[7] + ez * d12[8];
-        let du = -g / (hss > 0.1 * sp2 ? hss : sp2);
-        if (du > basis.h) du = basis.h;
-        else if (du < -basis.h) du = -basis.h;
-        ui += du;
-        if (!closed) ui = Math.min(Math.max(ui, basis.u0), basis.u0 + basis.nseg * basis.h);
-        if (Math.abs(du) < 1e-7 * basis.h) break;
-      }
-      u[i] = ui;
-      evalCurve(basis, coef, ui, checkSparse ? 3 : 0, d12, st, sb);
-      resid[i] = hypot3(d12[0] - y[3 * i], d12[1] - y[3 * i + 1], d12[2] - y[3 * i + 2]);
-      if (checkSparse) turns[i] = kappaTau(d12, kt)[0] * start.medianStep;
-    }
+    projectFootPoints(basis, coef, y, u, resid, checkSparse ? turns : null, start.medianStep, closed);
     // Robust weights from the residual norms (Rayleigh median in 3D: 1.1774 sigma; half-normal in
     // 2D: 0.6745 sigma), the scale floored at 10% of the median step so clean points where the fit
     // is biased (a tight bend, a clamped end) keep their weight (NUMERICS.md sec. 7 item 5).
