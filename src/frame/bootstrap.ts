@@ -177,6 +177,16 @@ export function drawRhs(C: Skyline, xi: Float64Array, db: Float64Array, scratch:
  * one sweep over the factor serves all three. `w` is scratch of length 3K.
  */
 export function solveLdl3(f: Skyline, b: Float64Array, x: Float64Array, w: Float64Array): Float64Array {
+  // One loop per function (forward, diagonal, backward, scatter): a loop compiled on the stack
+  // before the later loops have run would otherwise be deoptimised on every call.
+  forward3(f, b, w);
+  diagonal3(f, w);
+  backward3(f, w);
+  scatter3(w, x, f.n);
+  return x;
+}
+
+function forward3(f: Skyline, b: Float64Array, w: Float64Array): void {
   const { n, first, offset, data } = f;
   for (let i = 0; i < n; ++i) {
     const fi = first[i], o = offset[i] - fi;
@@ -187,11 +197,19 @@ export function solveLdl3(f: Skyline, b: Float64Array, x: Float64Array, w: Float
     }
     w[3 * i] = s0; w[3 * i + 1] = s1; w[3 * i + 2] = s2;
   }
+}
+
+function diagonal3(f: Skyline, w: Float64Array): void {
+  const { n, first, offset, data } = f;
   for (let i = 0; i < n; ++i) {
     const d = data[offset[i] + i - first[i]];
     if (d === 0) { w[3 * i] = 0; w[3 * i + 1] = 0; w[3 * i + 2] = 0; }
     else { w[3 * i] /= d; w[3 * i + 1] /= d; w[3 * i + 2] /= d; }
   }
+}
+
+function backward3(f: Skyline, w: Float64Array): void {
+  const { n, first, offset, data } = f;
   for (let i = n - 1; i >= 0; --i) {
     const fi = first[i], o = offset[i] - fi;
     const x0 = w[3 * i], x1 = w[3 * i + 1], x2 = w[3 * i + 2];
@@ -200,28 +218,31 @@ export function solveLdl3(f: Skyline, b: Float64Array, x: Float64Array, w: Float
       w[3 * k] -= l * x0; w[3 * k + 1] -= l * x1; w[3 * k + 2] -= l * x2;
     }
   }
+}
+
+function scatter3(w: Float64Array, x: Float64Array, n: number): void {
   for (let k = 0; k < n; ++k) { x[k] = w[3 * k]; x[n + k] = w[3 * k + 1]; x[2 * n + k] = w[3 * k + 2]; }
-  return x;
 }
 
 /** Scratch of {@link drawCoefPerturbation}: dB, the solve's workspace, C's scaled factor, and (for
  * fixed probe vectors only) dB per probe. */
 export interface DrawScratch {
   db: Float64Array;
-  rhs?: Float64Array;
-  sol?: Float64Array;
-  sqrtD?: Float64Array;
+  rhs?: Float64Array | undefined;
+  sol?: Float64Array | undefined;
+  sqrtD?: Float64Array | undefined;
   /** L sqrt(D) of C's factor, entry by entry on its envelope (strictly lower part). */
-  lsd?: Float64Array;
+  lsd?: Float64Array | undefined;
   /** The C that sqrtD and lsd belong to. */
-  factorOf?: Skyline;
-  sol3?: Float64Array;
-  probeRhs?: Map<Float64Array, { C: Skyline; db: Float64Array }>;
+  factorOf?: Skyline | undefined;
+  sol3?: Float64Array | undefined;
+  probeRhs?: Map<Float64Array, { C: Skyline; db: Float64Array }> | undefined;
 }
 
 /** Scratch for drawing with coefficient count K (vectors xi refilled between draws: no dB cache). */
 export function drawScratch(K: number): DrawScratch {
-  return { db: new Float64Array(3 * K), sol3: new Float64Array(3 * K) };
+  // Every field present from the start: one object shape for all scratch objects.
+  return { db: new Float64Array(3 * K), rhs: undefined, sol: undefined, sqrtD: undefined, lsd: undefined, factorOf: undefined, sol3: new Float64Array(3 * K), probeRhs: undefined };
 }
 
 /**
@@ -237,7 +258,9 @@ export function noiseProbes(K: number, probes: number, seed: number): { xis: Flo
     for (let k = 0; k < 3 * K; ++k) xi[k] = rnd();
     xis.push(xi);
   }
-  return { xis, scratch: { ...drawScratch(K), probeRhs: new Map() }, dc: new Float64Array(3 * K) };
+  const scratch = drawScratch(K);
+  scratch.probeRhs = new Map();
+  return { xis, scratch, dc: new Float64Array(3 * K) };
 }
 
 /** Basis values and derivatives tabulated at fixed parameters, for repeated evaluation. */

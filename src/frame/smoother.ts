@@ -1,6 +1,6 @@
 import type { SplineBasis } from "./bspline.js";
 import { differencePenalty, normalEquations, type Normal } from "./design.js";
-import { factorLdl, makeSkyline, selectedInverse, solveLdl, symMul, type Skyline } from "./skyline.js";
+import { factorLdl, selectedInverse, solveLdl, symMul, type Skyline } from "./skyline.js";
 
 /**
  * A penalised spline smoother for one parametrisation: the normal equations, the penalty, and
@@ -48,13 +48,26 @@ export function wavelengthForLambda(lambda: number, rho: number, h: number): num
 
 /** Solves at one lambda. Cost O(K b^2). */
 export function solveAt(sm: Smoother, lambda: number): SmoothFit {
+  // No loops here: they sit in the leaf functions below, so the JIT's on-stack replacement of a
+  // loop never compiles this driver before its later calls have run (that deoptimised every call).
   const { G, rhs, yWy } = sm.normal;
-  const K = sm.basis.K;
-  const A = makeSkyline(G.first);
-  const P = sm.P;
-  for (let k = 0; k < A.data.length; ++k) A.data[k] = G.data[k] + lambda * P.data[k];
+  const A: Skyline = { n: G.n, first: G.first, offset: G.offset, data: combined(G.data, lambda, sm.P.data) };
   factorLdl(A, 0);
-  const coef = new Float64Array(3 * K);
+  const coef = new Float64Array(3 * sm.basis.K);
+  const rss = solveCoordinates(A, G, rhs, yWy, coef);
+  return { lambda, coef, factor: A, rss: Math.max(rss, 0) };
+}
+
+/** g + lambda p, entry by entry (G and P share their envelope). */
+function combined(g: Float64Array, lambda: number, p: Float64Array): Float64Array {
+  const out = new Float64Array(g.length);
+  for (let k = 0; k < out.length; ++k) out[k] = g[k] + lambda * p[k];
+  return out;
+}
+
+/** Coefficients of x, y, z into `coef` from the factor A, and the weighted RSS (yWy - 2 c.b + c.G c). */
+function solveCoordinates(A: Skyline, G: Skyline, rhs: Float64Array, yWy: number, coef: Float64Array): number {
+  const K = A.n;
   const tmp = new Float64Array(K), Gc = new Float64Array(K);
   let rss = yWy;
   for (let c = 0; c < 3; ++c) {
@@ -64,7 +77,7 @@ export function solveAt(sm: Smoother, lambda: number): SmoothFit {
     symMul(G, coef, c * K, Gc);
     for (let i = 0; i < K; ++i) rss += -2 * tmp[i] * b[i] + tmp[i] * Gc[i];
   }
-  return { lambda, coef, factor: A, rss: Math.max(rss, 0) };
+  return rss;
 }
 
 /** Effective degrees of freedom per coordinate, tr((G + lambda P)^-1 G), by the selected inverse. */
