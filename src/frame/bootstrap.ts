@@ -305,6 +305,54 @@ export function kappaTauAt(gb: GridBasis, cf: Float64Array, dc: Float64Array | n
   return kappaTau(d12, out);
 }
 
+/** out = a + b (the perturbed coefficients, formed once per replicate as kappaTauAt would per point). */
+function addInto(a: Float64Array, b: Float64Array, out: Float64Array): void {
+  for (let k = 0; k < out.length; ++k) out[k] = a[k] + b[k];
+}
+
+/**
+ * First to third derivatives at grid point j for coefficients cs into d12[3..11] (d12[0..2], the
+ * position, is left alone: kappaTau does not read it); the sums of kappaTauAt (bit-identical).
+ */
+function derivativesAt(gb: GridBasis, cs: Float64Array, j: number, d12: Float64Array): void {
+  const K = gb.basis.K, vals = gb.values;
+  const iv = gb.interval[j];
+  const wrap = gb.basis.periodic && iv + ORDER > K;
+  const bb = 24 * j;
+  let a0 = 0, a1 = 0, a2 = 0, b0 = 0, b1 = 0, b2 = 0, c0 = 0, c1 = 0, c2 = 0;
+  for (let q = 0; q < ORDER; ++q) {
+    const mm = wrap ? (iv + q) % K : iv + q;
+    const cx = cs[mm], cy = cs[K + mm], cz = cs[2 * K + mm];
+    const v1 = vals[bb + 6 + q], v2 = vals[bb + 12 + q], v3 = vals[bb + 18 + q];
+    a0 += v1 * cx; a1 += v1 * cy; a2 += v1 * cz;
+    b0 += v2 * cx; b1 += v2 * cy; b2 += v2 * cz;
+    c0 += v3 * cx; c1 += v3 * cy; c2 += v3 * cz;
+  }
+  d12[3] = a0; d12[4] = a1; d12[5] = a2; d12[6] = b0; d12[7] = b1; d12[8] = b2; d12[9] = c0; d12[10] = c1; d12[11] = c2;
+}
+
+/** One replicate's kappa (and tau, when `tau` is given) on the grid, and the curvature vector's squared deviation added to curvatureVar. */
+function replicateKappa(
+  grid: GridBasis, cs: Float64Array, kappa: Float64Array, tau: Float64Array | null, off: number, kvec0: Float64Array, curvatureVar: Float64Array, d12: Float64Array, kt: Float64Array,
+): void {
+  for (let j = 0; j < grid.m; ++j) {
+    derivativesAt(grid, cs, j, d12);
+    kappaTau(d12, kt);
+    kappa[off + j] = kt[0];
+    if (tau) tau[off + j] = kt[1];
+    const ex = kt[2] - kvec0[3 * j], ey = kt[3] - kvec0[3 * j + 1], ez = kt[4] - kvec0[3 * j + 2];
+    curvatureVar[j] += ex * ex + ey * ey + ez * ez;
+  }
+}
+
+/** One replicate's tau on the grid. */
+function replicateTau(grid: GridBasis, cs: Float64Array, tau: Float64Array, off: number, d12: Float64Array, kt: Float64Array): void {
+  for (let j = 0; j < grid.m; ++j) {
+    derivativesAt(grid, cs, j, d12);
+    tau[off + j] = kappaTau(d12, kt)[1];
+  }
+}
+
 /**
  * Parametric bootstrap of kappa and tau through the linear smoother (NUMERICS.md step 7): a
  * replicate is c + dc with dc = (G + lambda P)^{-1} dB, dB drawn from its exact Gaussian law
@@ -335,21 +383,18 @@ export function bootstrapBands(inp: {
   const scratch = drawScratch(K);
   const db = scratch.db, work = scratch.sol3 ?? new Float64Array(3 * K);
   const sameFactor = kappaFit.factor === tauFit.factor;
+  const cs = new Float64Array(3 * K);
   for (let r = 0; r < R; ++r) {
     for (let k = 0; k < 3 * K; ++k) xi[k] = rnd();
     // One draw of dB serves both factors (as drawCoefPerturbation twice, without the second product).
     drawRhs(C, xi, db, scratch);
     solveLdl3(kappaFit.factor, db, dc, work);
-    for (let j = 0; j < m; ++j) {
-      kappaTauAt(grid, kappaFit.coef, dc, j, d12, kt);
-      kappa[r * m + j] = kt[0];
-      if (sameFactor) tau[r * m + j] = kt[1];
-      const ex = kt[2] - kvec0[3 * j], ey = kt[3] - kvec0[3 * j + 1], ez = kt[4] - kvec0[3 * j + 2];
-      curvatureVar[j] += ex * ex + ey * ey + ez * ez;
-    }
+    addInto(kappaFit.coef, dc, cs);
+    replicateKappa(grid, cs, kappa, sameFactor ? tau : null, r * m, kvec0, curvatureVar, d12, kt);
     if (!sameFactor) {
       solveLdl3(tauFit.factor, db, dc, work);
-      for (let j = 0; j < m; ++j) tau[r * m + j] = kappaTauAt(grid, tauFit.coef, dc, j, d12, kt)[1];
+      addInto(tauFit.coef, dc, cs);
+      replicateTau(grid, cs, tau, r * m, d12, kt);
     }
   }
   for (let j = 0; j < m; ++j) curvatureVar[j] /= Math.max(R, 1) * inp.normalDims;
