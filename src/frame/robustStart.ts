@@ -50,7 +50,12 @@ export function medianInPlace(a: Float64Array, count = a.length): number {
  * The same value as `medianInPlace(a, 5)`, without its insertion sort.
  */
 export function median5(a: Float64Array): number {
-  let a0 = a[0], a1 = a[1], a2 = a[2], a3 = a[3], a4 = a[4], t: number;
+  return median5Of(a[0], a[1], a[2], a[3], a[4]);
+}
+
+/** {@link median5} of five numbers. */
+function median5Of(a0: number, a1: number, a2: number, a3: number, a4: number): number {
+  let t: number;
   if (a0 > a1) { t = a0; a0 = a1; a1 = t; }
   if (a3 > a4) { t = a3; a3 = a4; a4 = t; }
   if (a2 > a4) { t = a2; a2 = a4; a4 = t; }
@@ -179,7 +184,14 @@ export function grossOutliers(y: Float64Array, closed: boolean): Uint8Array {
       px = 2 * y[3 * a] - y[3 * b]; py = 2 * y[3 * a + 1] - y[3 * b + 1]; pz = 2 * y[3 * a + 2] - y[3 * b + 2];
     } else {
       let c = 0;
-      for (let k = 1; k <= half; ++k) {
+      if (half === OUTLIER_HALF && i >= OUTLIER_HALF && i + OUTLIER_HALF < n) {
+        // Interior: the neighbours without wrapping, in the same order as below.
+        for (let k = 1; k <= OUTLIER_HALF; ++k) {
+          const a = 3 * (i - k), b = 3 * (i + k);
+          bx[c] = y[a]; by[c] = y[a + 1]; bz[c] = y[a + 2]; ++c;
+          bx[c] = y[b]; by[c] = y[b + 1]; bz[c] = y[b + 2]; ++c;
+        }
+      } else for (let k = 1; k <= half; ++k) {
         const a = closed ? (i - k + n) % n : i - k, b = closed ? (i + k) % n : i + k;
         bx[c] = y[3 * a]; by[c] = y[3 * a + 1]; bz[c] = y[3 * a + 2]; ++c;
         bx[c] = y[3 * b]; by[c] = y[3 * b + 1]; bz[c] = y[3 * b + 2]; ++c;
@@ -235,6 +247,14 @@ export function runningMedian(y: Float64Array, half: number, closed: boolean): F
   const buf = new Float64Array(2 * half + 1);
   for (let i = 0; i < n; ++i) {
     const h = closed ? Math.min(half, (n - 1) >> 1) : Math.min(half, i, n - 1 - i);
+    if (h === 2 && i >= 2 && i + 2 < n) {
+      // Interior, +-2: the five values straight from y (the window needs no wrap here).
+      for (let c = 0; c < 3; ++c) {
+        const q = 3 * i + c;
+        out[q] = median5Of(y[q - 6], y[q - 3], y[q], y[q + 3], y[q + 6]);
+      }
+      continue;
+    }
     for (let c = 0; c < 3; ++c) {
       let m = 0;
       for (let k = -h; k <= h; ++k) {
