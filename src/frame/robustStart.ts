@@ -6,8 +6,11 @@
 import { canonicalFrame } from "./canonicalFrame.js";
 import { hypot3 } from "./hypot3.js";
 
-/** k-th smallest of a[0..count) (0-based), reordering a in place: Hoare's selection (Hoare 1961,
- * CACM 4:321, "Algorithm 65: find"), insertion sort below 16 values. O(count) expected. */
+/** k-th smallest of a[0..count) (0-based), reordering a in place so that a[0..k) <= a[k] <= a(k..count):
+ * Hoare's selection (Hoare 1961, CACM 4:321, "Algorithm 65: find"), insertion sort below 16 values,
+ * and above 600 values without NaN Floyd & Rivest's sampling bounds (1975, CACM 18:173, "Algorithm
+ * 489: SELECT", from memory), about half the comparisons; the k-th smallest is the same value
+ * whichever way it is found. O(count) expected. */
 export function selectInPlace(a: Float64Array, count: number, k: number): number {
   if (count <= 16) {
     for (let i = 1; i < count; ++i) {
@@ -16,6 +19,10 @@ export function selectInPlace(a: Float64Array, count: number, k: number): number
       while (j >= 0 && a[j] > v) { a[j + 1] = a[j]; --j; }
       a[j + 1] = v;
     }
+    return a[k];
+  }
+  if (count > 600 && !hasNaN(a, count)) {
+    floydRivest(a, 0, count - 1, k);
     return a[k];
   }
   let lo = 0, hi = count - 1;
@@ -32,6 +39,38 @@ export function selectInPlace(a: Float64Array, count: number, k: number): number
     else break;
   }
   return a[k];
+}
+
+function hasNaN(a: Float64Array, count: number): boolean {
+  for (let i = 0; i < count; ++i) if (a[i] !== a[i]) return true;
+  return false;
+}
+
+/** Floyd-Rivest selection of the k-th smallest in a[left..right] (no NaN), in place. */
+function floydRivest(a: Float64Array, left: number, right: number, k: number): void {
+  while (right > left) {
+    if (right - left > 600) {
+      // Recurse on a sample-sized range that holds the k-th smallest with high probability.
+      const n = right - left + 1, m = k - left + 1;
+      const z = Math.log(n), s = 0.5 * Math.exp((2 * z) / 3);
+      const sd = 0.5 * Math.sqrt((z * s * (n - s)) / n) * (m - n / 2 < 0 ? -1 : 1);
+      floydRivest(a, Math.max(left, Math.floor(k - (m * s) / n + sd)), Math.min(right, Math.floor(k + ((n - m) * s) / n + sd)), k);
+    }
+    const t = a[k];
+    let i = left, j = right;
+    let x = a[left]; a[left] = a[k]; a[k] = x;
+    if (a[right] > t) { x = a[right]; a[right] = a[left]; a[left] = x; }
+    while (i < j) {
+      x = a[i]; a[i] = a[j]; a[j] = x;
+      ++i; --j;
+      while (a[i] < t) ++i;
+      while (a[j] > t) --j;
+    }
+    if (a[left] === t) { x = a[left]; a[left] = a[j]; a[j] = x; }
+    else { ++j; x = a[j]; a[j] = a[right]; a[right] = x; }
+    if (j <= k) left = j + 1;
+    if (k <= j) right = j - 1;
+  }
 }
 
 /** Median of a[0..count), reordering a in place (the mean of the two middle values for an even count). */

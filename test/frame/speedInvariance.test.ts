@@ -12,7 +12,7 @@ import { drawRhs, drawScratch, gridBasis, kappaTauAt, normalGenerator, solveLdl3
 import { basisAt, locate, makeBasis, type SplineBasis } from "../../src/frame/bspline.js";
 import { evalCurve, kappaTau } from "../../src/frame/curve.js";
 import { hypot3 } from "../../src/frame/hypot3.js";
-import { median5, median8, medianInPlace } from "../../src/frame/robustStart.js";
+import { median5, median8, medianInPlace, medianOf, selectInPlace } from "../../src/frame/robustStart.js";
 import { factorLdl, makeSkyline, mulLsqrtD, solveLdl } from "../../src/frame/skyline.js";
 import { envelope } from "../../src/frame/design.js";
 import { speedCaseDigests } from "../support/speedCases.js";
@@ -98,6 +98,25 @@ describe("fast kernels equal the plain formulations bit for bit", () => {
       const v = Float64Array.from({ length: 8 }, (_, i) => (m >> i) & 1);
       expect(median8(v)).toBe(medianInPlace(v.slice(), 8));
       if (m < 32) expect(median5(v.subarray(0, 5))).toBe(medianInPlace(v.slice(0, 5), 5));
+    }
+  });
+
+  it("selection above 600 values (Floyd-Rivest) gives the k-th of a sort and partitions around it (seeded; ties, sorted, reversed)", () => {
+    const g = normalStream(21);
+    for (let t = 0; t < 300; ++t) {
+      const n = 601 + Math.floor(Math.abs(g()) * 1500);
+      const v = Float64Array.from({ length: n }, () => (t % 3 === 0 ? Math.round(4 * g()) : g()));
+      if (t % 7 === 1) v.sort();
+      if (t % 7 === 2) v.sort().reverse();
+      const s = v.slice().sort();
+      const k = Math.min(n - 1, Math.floor(Math.abs(g()) * n / 2));
+      const a = v.slice();
+      const kth = selectInPlace(a, n, k);
+      expect(kth === s[k]).toBe(true); // numerically (a tie of -0 and +0 may pick either)
+      let ok = true;
+      for (let i = 0; i < n; ++i) if ((i < k && a[i] > kth) || (i > k && a[i] < kth)) ok = false;
+      expect(ok).toBe(true);
+      expect(medianOf(v) === (n % 2 ? s[(n - 1) >> 1] : 0.5 * (s[n / 2 - 1] + s[n / 2]))).toBe(true);
     }
   });
 
