@@ -72,6 +72,26 @@ function projectFootPoints(
   }
 }
 
+/** w[i] = robustWeight(resid[i], sc) (one loop per function: see projectFootPoints). */
+function robustWeights(resid: Float64Array, sc: number, w: Float64Array): void {
+  for (let i = 0; i < resid.length; ++i) w[i] = robustWeight(resid[i], sc);
+}
+
+/** u[i] = s(u[i]), the arc length of the table's curve. */
+function toArcLength(table: ArcTable, u: Float64Array, closed: boolean): void {
+  for (let i = 0; i < u.length; ++i) u[i] = arcAt(table, u[i], closed);
+}
+
+/** u[i] reduced to [0, length) on a ring. */
+function wrapInto(u: Float64Array, length: number): void {
+  for (let i = 0; i < u.length; ++i) u[i] -= Math.floor(u[i] / length) * length;
+}
+
+/** u[i] = min(max(u[i] - a0, 0), span). */
+function shiftClamp(u: Float64Array, a0: number, span: number): void {
+  for (let i = 0; i < u.length; ++i) u[i] = Math.min(Math.max(u[i] - a0, 0), span);
+}
+
 /** The settings the passes read. */
 export interface PassSettings {
   readonly passes: number;
@@ -149,20 +169,20 @@ export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnos
     // 2D: 0.6745 sigma), the scale floored at 10% of the median step so clean points where the fit
     // is biased (a tight bend, a clamped end) keep their weight (NUMERICS.md sec. 7 item 5).
     const sc = Math.max(medianOf(resid) / (normalDims === 2 ? 1.1774 : 0.6745), 0.1 * start.medianStep);
-    if (sc > 0) for (let i = 0; i < n; ++i) w[i] = robustWeight(resid[i], sc);
+    if (sc > 0) robustWeights(resid, sc, w);
     // Map parameters to the arc length of the current fit; pin an open wire's end points to the
     // ends of the domain (else the open ends drift from pass to pass).
     const table = arcTable(basis, coef);
-    for (let i = 0; i < n; ++i) u[i] = arcAt(table, u[i], closed);
+    toArcLength(table, u, closed);
     if (closed) {
-      for (let i = 0; i < n; ++i) u[i] -= Math.floor(u[i] / table.length) * table.length;
+      wrapInto(u, table.length);
       span = table.length;
     } else {
       // The domain of the next pass runs from the first point's foot point to the last one's.
       const a0 = u[0], a1 = u[n - 1];
       span = a1 - a0;
       if (!(span > 0)) span = NaN;
-      for (let i = 0; i < n; ++i) u[i] = Math.min(Math.max(u[i] - a0, 0), span);
+      shiftClamp(u, a0, span);
       u[0] = 0; u[n - 1] = span;
     }
     checkPass({ length: span, u, resid, sigma: sel.sigmaFrom === "unknown" ? 0 : sel.sigma, closed, knotInterval: span / basis.nseg }, start.referenceLength, file, name, say);

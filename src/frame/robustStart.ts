@@ -170,49 +170,51 @@ export interface CanonicalTrace {
  */
 export function toCanonical(xyz: Float64Array, planar: boolean): CanonicalTrace | null {
   const n = xyz.length / 3;
-  let cx = 0, cy = 0, cz = 0;
-  for (let i = 0; i < n; ++i) { cx += xyz[3 * i]; cy += xyz[3 * i + 1]; cz += xyz[3 * i + 2]; }
-  cx /= n; cy /= n; cz /= n;
-  let chord = 0;
-  for (let i = 1; i < n; ++i) chord += hypot3(xyz[3 * i] - xyz[3 * i - 3], xyz[3 * i + 1] - xyz[3 * i - 2], xyz[3 * i + 2] - xyz[3 * i - 1]);
+  const [sx, sy, sz] = coordinateSums(xyz);
+  const cx = sx / n, cy = sy / n, cz = sz / n;
+  const chord = chordLength(xyz);
   if (!(chord > 0) || !Number.isFinite(chord)) return null;
-  const y = new Float64Array(3 * n);
-  for (let i = 0; i < n; ++i) {
+  const y = centredScaled(xyz, cx, cy, cz, chord);
+  const Q = planar ? Float64Array.of(1, 0, 0, 0, 1, 0, 0, 0, 1) : canonicalFrame(y);
+  rotateInPlace(y, Q);
+  return { y, Q, centre: [cx, cy, cz], scale: chord };
+}
+
+// The loops of toCanonical, one per function (the JIT compiles each alone); the same sums in the same order.
+function coordinateSums(xyz: Float64Array): [number, number, number] {
+  let cx = 0, cy = 0, cz = 0;
+  for (let i = 0; i < xyz.length / 3; ++i) { cx += xyz[3 * i]; cy += xyz[3 * i + 1]; cz += xyz[3 * i + 2]; }
+  return [cx, cy, cz];
+}
+
+function chordLength(xyz: Float64Array): number {
+  let chord = 0;
+  for (let i = 1; i < xyz.length / 3; ++i) chord += hypot3(xyz[3 * i] - xyz[3 * i - 3], xyz[3 * i + 1] - xyz[3 * i - 2], xyz[3 * i + 2] - xyz[3 * i - 1]);
+  return chord;
+}
+
+function centredScaled(xyz: Float64Array, cx: number, cy: number, cz: number, chord: number): Float64Array {
+  const y = new Float64Array(xyz.length);
+  for (let i = 0; i < xyz.length / 3; ++i) {
     y[3 * i] = (xyz[3 * i] - cx) / chord;
     y[3 * i + 1] = (xyz[3 * i + 1] - cy) / chord;
     y[3 * i + 2] = (xyz[3 * i + 2] - cz) / chord;
   }
-  const Q = planar ? Float64Array.of(1, 0, 0, 0, 1, 0, 0, 0, 1) : canonicalFrame(y);
-  for (let i = 0; i < n; ++i) {
+  return y;
+}
+
+function rotateInPlace(y: Float64Array, Q: Float64Array): void {
+  for (let i = 0; i < y.length / 3; ++i) {
     const a = y[3 * i], b = y[3 * i + 1], c = y[3 * i + 2];
     y[3 * i] = Q[0] * a + Q[1] * b + Q[2] * c;
     y[3 * i + 1] = Q[3] * a + Q[4] * b + Q[5] * c;
     y[3 * i + 2] = Q[6] * a + Q[7] * b + Q[8] * c;
   }
-  return { y, Q, centre: [cx, cy, cz], scale: chord };
 }
 
-/** Half-width of the neighbourhood used to judge each point. */
-const OUTLIER_HALF = 4;
-/** A point farther than this many robust scales from its neighbourhood's median is a gross outlier. */
-const OUTLIER_CUT = 5;
-/** Floor of the robust scale, as a fraction of the median step (NUMERICS.md sec. 7 item 2: 0.375). */
-const OUTLIER_SCALE_FLOOR = 0.375;
-
-/**
- * Gross outliers of an ordered trace, flagged before any parametrisation: the distance of each
- * point to the coordinate-wise median of its symmetric +-4 neighbours (truncated symmetrically at
- * open ends; the end points themselves are judged against the straight extrapolation of their two
- * neighbours), against a robust scale max(median distance, 0.375 x median step) (a Hampel-type
- * identifier: Hampel 1974, JASA 69:383; the running-median idea: Tukey 1977, "Exploratory Data
- * Analysis"). A point is flagged only when the detour it forces on the path agrees (see below), so
- * a long straight segment between exact points is not taken for outliers. Returns 1 for a kept
- * point, 0 for a gross outlier. Cost O(n).
- */
-export function grossOutliers(y: Float64Array, closed: boolean): Uint8Array {
+/** Distance of each point to the coordinate-wise median of its +-4 neighbours (see grossOutliers). */
+function neighbourhoodDistances(y: Float64Array, closed: boolean): Float64Array {
   const n = y.length / 3;
-  const keep = new Uint8Array(n).fill(1);
-  if (n < 7) return keep;
   const d = new Float64Array(n);
   const bx = new Float64Array(2 * OUTLIER_HALF), by = new Float64Array(2 * OUTLIER_HALF), bz = new Float64Array(2 * OUTLIER_HALF);
   for (let i = 0; i < n; ++i) {
@@ -240,6 +242,31 @@ export function grossOutliers(y: Float64Array, closed: boolean): Uint8Array {
     }
     d[i] = hypot3(y[3 * i] - px, y[3 * i + 1] - py, y[3 * i + 2] - pz);
   }
+  return d;
+}
+
+/** Half-width of the neighbourhood used to judge each point. */
+const OUTLIER_HALF = 4;
+/** A point farther than this many robust scales from its neighbourhood's median is a gross outlier. */
+const OUTLIER_CUT = 5;
+/** Floor of the robust scale, as a fraction of the median step (NUMERICS.md sec. 7 item 2: 0.375). */
+const OUTLIER_SCALE_FLOOR = 0.375;
+
+/**
+ * Gross outliers of an ordered trace, flagged before any parametrisation: the distance of each
+ * point to the coordinate-wise median of its symmetric +-4 neighbours (truncated symmetrically at
+ * open ends; the end points themselves are judged against the straight extrapolation of their two
+ * neighbours), against a robust scale max(median distance, 0.375 x median step) (a Hampel-type
+ * identifier: Hampel 1974, JASA 69:383; the running-median idea: Tukey 1977, "Exploratory Data
+ * Analysis"). A point is flagged only when the detour it forces on the path agrees (see below), so
+ * a long straight segment between exact points is not taken for outliers. Returns 1 for a kept
+ * point, 0 for a gross outlier. Cost O(n).
+ */
+export function grossOutliers(y: Float64Array, closed: boolean): Uint8Array {
+  const n = y.length / 3;
+  const keep = new Uint8Array(n).fill(1);
+  if (n < 7) return keep;
+  const d = neighbourhoodDistances(y, closed);
   const medStep = medianOf(stepLengths(y));
   const scale = Math.max(medianInPlace(d.slice()), OUTLIER_SCALE_FLOOR * medStep);
   if (!(scale > 0)) return keep;
