@@ -38,10 +38,21 @@ export function normalEquations(
   const K = basis.K;
   const G = makeSkyline(envelope(K, ORDER - 1, basis.periodic));
   const rhs = new Float64Array(3 * K);
-  const tOut = new Float64Array(1), b = new Float64Array(24), idx = new Int32Array(ORDER);
-  const gd = G.data;
   const rowBase = new Int32Array(K);
   for (let r = 0; r < K; ++r) rowBase[r] = G.offset[r] - G.first[r];
+  const sums = new Float64Array(2);
+  // The loop over the points is a function of its own that returns nothing: code the JIT compiles
+  // on the stack mid-loop then covers the rest of it (no deoptimisation at a later statement).
+  accumulateNormal(basis, u, xyz, w, G.data, rowBase, rhs, sums);
+  return { G, rhs, yWy: sums[0], wSum: sums[1] };
+}
+
+/** The per-point sums of {@link normalEquations}; sums[0] = yWy, sums[1] = sum of weights. */
+function accumulateNormal(
+  basis: SplineBasis, u: Float64Array, xyz: Float64Array, w: Float64Array, gd: Float64Array, rowBase: Int32Array, rhs: Float64Array, sums: Float64Array,
+): void {
+  const K = basis.K;
+  const tOut = new Float64Array(1), b = new Float64Array(24), idx = new Int32Array(ORDER);
   let yWy = 0, wSum = 0;
   const n = u.length;
   for (let p = 0; p < n; ++p) {
@@ -68,7 +79,8 @@ export function normalEquations(
       }
     }
   }
-  return { G, rhs, yWy, wSum };
+  sums[0] = yWy;
+  sums[1] = wSum;
 }
 
 /**
