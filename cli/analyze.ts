@@ -3,12 +3,15 @@
  * Writes profile.csv, model.json, chain.csv, wire.<mesh> and report.html into <dir>, all at once
  * (a temporary folder renamed into place) or not at all.
  */
+import { availableParallelism } from "node:os";
+import { join } from "node:path";
 import type { Command } from "@commander-js/extra-typings";
-import { ParameterError } from "../src/errors.js";
+import { InputError, ParameterError } from "../src/errors.js";
 import { MESH_FORMATS, type MeshFormat } from "../src/export/meshFormats.js";
 import { stageOutputDir } from "../src/export/stageOutputDir.js";
 import type { Material } from "../src/physics/types.js";
 import { PER_METRE } from "../src/types.js";
+import { SPLIT_BRANCHES_HELP } from "./centerline.js";
 import type { Io } from "./io.js";
 import { brief, parseChoiceOption, parseCountOption, parseLengthOption, parseLengthUnitOption, parseSeedOption } from "./options.js";
 import { checkInputFlags, DEFAULT_BOOTSTRAP, DEFAULT_SEED, HELP, INPUT_HELP, readOptionsOf, type InputFlags, type InputRequest } from "./profile.js";
@@ -212,12 +215,37 @@ export function addAnalyzeCommand(program: Command, io: Io): void {
     .option("--out-unit <unit>", "length unit of every output, nm, um, m or A (default: the input unit; for px the unit of the pixel size: nm below 1 um, else um)")
     .option("--format <format>", HELP.format)
     .option("--wire <n>", HELP.wire)
-    .option("--branches <policy>", HELP.branches)
+    .option("--branches <policy>", `${SPLIT_BRANCHES_HELP}: one analysis folder per branch (branch-1, branch-2, ...), network.json, network.html and summary.csv`)
+    .option("--jobs <n>", `worker threads for --branches split (default: the number of cores, here ${availableParallelism()})`)
     .option("--export <list>", "files for other tools, comma list: vtp (centerline.vtp, tube.vtp: VTK XML PolyData), ovf (needs --grid)")
     .option("--grid <length>", "cell size, with its unit, of the OVF 2.0 texture exports (texture.ovf text, texture-binary8.ovf, mask.ovf); needs --material")
     .option("--force", PIPELINE_HELP.force)
     .option("--quiet", "print no summary line")
     .action(async (input, flags, cmd) => {
+      if (flags.branches === "split") {
+        const { branches: _policy, jobs: jobsFlag, ...rest } = flags;
+        const req = { ...checkPipelineFlags(WHERE, input, rest), argv: rawArgsOf(cmd) };
+        if (req.inputs.wire !== undefined) throw new ParameterError(WHERE, "--wire", "does not go with --branches split (every branch is analysed)");
+        if (input === "-") throw new ParameterError(WHERE, "<input>", "--branches split reads a file, not standard input");
+        const jobs = jobsFlag === undefined ? availableParallelism() : parseCountOption(WHERE, "--jobs", jobsFlag);
+        if (jobs < 1) throw new ParameterError(WHERE, "--jobs", `must be at least 1 (got ${jobs})`);
+        const { runNetworkAnalysis, NETWORK_PAGE } = await import("./analyzeNetwork.js");
+        const run = await runNetworkAnalysis(input, flags.out, req, { jobs, ci: io.ci, where: WHERE }, io);
+        const failed = run.rows.filter((r) => r.error !== null);
+        const net = run.network;
+        if (!req.quiet) {
+          for (const r of failed) io.stderr(`twistline: ${WHERE}: ${r.wire}: ${r.error}\n`);
+          io.stderr(
+            `twistline: ${input}: a network of ${net.branches.length} branches, ${net.junctions.length} junctions, ${net.ends.length} free ends, ${net.cycles} independent cycles; ` +
+              `analysed ${net.branches.length - failed.length} of ${net.branches.length} branches; wrote ${join(flags.out, NETWORK_PAGE)}\n`,
+          );
+        }
+        if (failed.length > 0) {
+          throw new InputError(join(flags.out, "summary.csv"), null, "branches", `${failed.length} of ${net.branches.length} failed (see the error column); the others were written`);
+        }
+        return;
+      }
+      if (flags.jobs !== undefined) throw new ParameterError(WHERE, "--jobs", "only goes with --branches split (one wire runs on one thread)");
       await runAnalyze(input, flags.out, { ...checkPipelineFlags(WHERE, input, flags), argv: rawArgsOf(cmd) }, io);
     });
 }

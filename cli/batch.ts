@@ -296,13 +296,21 @@ export function addBatchCommand(program: Command, io: Io): void {
     .option("--coordinate-error <length>", "the standard deviation of the coordinate error per coordinate, with its unit, e.g. 0.2A, when known: the noise is then not estimated (default: estimated from the trace)")
     .option("--out-unit <unit>", "length unit of every output (default: each input's unit; for px the unit of the pixel size: nm below 1 um, else um)")
     .option("--format <format>", HELP.format)
-    .option("--branches <policy>", HELP.branches)
+    .option("--branches <policy>", `${HELP.branches}; or split: every input (a mesh, or a cloud with --format cloud) becomes a folder of its network, one branch-<k> folder per branch with network.json and network.html`)
     .option("--force", PIPELINE_HELP.force)
     .option("--quiet", "no progress and no summary line")
     .action(async (inputs, flags: PipelineFlags & { out: string; jobs?: string }) => {
       const jobs = flags.jobs === undefined ? availableParallelism() : parseCountOption(WHERE, "--jobs", flags.jobs);
       if (jobs < 1) throw new ParameterError(WHERE, "--jobs", `must be at least 1 (got ${jobs})`);
       const files = await expandInputs(inputs);
+      if (flags.branches === "split") {
+        const { branches: _policy, ...rest } = flags;
+        const req = checkPipelineFlags(WHERE, files[0], rest);
+        const { runNetworkBatch } = await import("./analyzeNetwork.js");
+        const rows = await runNetworkBatch(files, flags.out, req, { jobs, ci: io.ci, where: WHERE }, io);
+        reportFailures(rows, flags.out, req.quiet, io);
+        return;
+      }
       const req = checkPipelineFlags(WHERE, files[0], flags);
       const rows = await runBatch(files, flags.out, req, { jobs, ci: io.ci }, io);
       reportFailures(rows, flags.out, req.quiet, io);

@@ -12,6 +12,8 @@ import { fsProblem } from "../src/import/fsProblem.js";
 import { readTracesFile } from "../src/import/readTrace.js";
 import type { Material } from "../src/physics/types.js";
 import type { Trace } from "../src/types.js";
+import type { JunctionZone } from "../src/import/network/junctionZones.js";
+import { branchView, type BranchView } from "../src/report/branchView.js";
 import { jobOf, type PipelineRequest } from "./analyze.js";
 import { messageLine } from "./options.js";
 import { runWireJob } from "./wireJob.js";
@@ -33,12 +35,18 @@ export interface WorkerTask {
   readonly input: string;
   readonly name: string;
   readonly root: string;
+  /** A branch of a wire network, already read (analyze/batch with --branches split): analysed as is, no file read. */
+  readonly trace?: Trace;
+  /** The zones of the junctions at the branch's ends. */
+  readonly junctionZones?: readonly JunctionZone[];
 }
 
 /** The reply to a task. */
 export interface WorkerReply {
   readonly id: number;
   readonly rows: SummaryRow[];
+  /** For a network branch: what the network page shows of it (null when it failed). */
+  readonly view?: BranchView | null;
 }
 
 /** One-line message of an error; bugs are marked as such (the batch goes on either way). */
@@ -54,6 +62,7 @@ export async function runTask(task: WorkerTask, setup: WorkerSetup): Promise<Wor
   const t0 = performance.now();
   const noIo = { stdout: () => undefined, stderr: () => undefined };
   let traces: Trace[];
+  if (task.trace !== undefined) return runBranchTask(task, task.trace, setup);
   try {
     const { wire: _ignored, ...read } = jobOf(setup.request, task.input, setup.material, "", noIo).readOptions;
     traces = await readTracesFile(task.input, read);
@@ -81,6 +90,32 @@ export async function runTask(task: WorkerTask, setup: WorkerSetup): Promise<Wor
     }
   }
   return { id: task.id, rows };
+}
+
+/** One network branch into `root`/`name`, with its junction zones flagged; the reply carries its view. */
+async function runBranchTask(task: WorkerTask, trace: Trace, setup: WorkerSetup): Promise<WorkerReply> {
+  const t0 = performance.now();
+  const noIo = { stdout: () => undefined, stderr: () => undefined };
+  const dir = join(task.root, task.name);
+  try {
+    await mkdir(dir).catch((e: unknown) => {
+      const problem = fsProblem(e);
+      if (problem === null) throw e;
+      throw new ParameterError(setup.where ?? "analyze", "--out", `cannot make the folder ${task.name}: ${problem}`);
+    });
+    const job = {
+      ...jobOf(setup.request, task.input, setup.material, dir, noIo),
+      trace,
+      where: setup.where ?? "analyze",
+      ...(task.junctionZones !== undefined ? { junctionZones: task.junctionZones } : {}),
+    };
+    const r = await runWireJob(job, setup.viewerJs);
+    const view = branchView(r.analysis.profile, r.analysis.segments.length, r.analysis.model?.pinning ?? null);
+    return { id: task.id, rows: [{ wire: task.name, file: task.input, summary: r.summary, error: null, seconds: (performance.now() - t0) / 1000 }], view };
+  } catch (e) {
+    await rm(dir, { recursive: true, force: true });
+    return { id: task.id, rows: [{ wire: task.name, file: task.input, summary: null, error: errorLine(e), seconds: (performance.now() - t0) / 1000 }], view: null };
+  }
 }
 
 const setupData = workerData as Partial<WorkerSetup> | null;

@@ -10,6 +10,8 @@ import { defaultOutputUnit } from "../src/export/outputUnit.js";
 import { formatNumber } from "../src/export/formatNumber.js";
 import { TOOL_NAME, TOOL_VERSION } from "../src/export/version.js";
 import { formatOfPath, pickWire, readTracesFile, STDIN_NAME } from "../src/import/readTrace.js";
+import { readNetworkFile, type ReadNetworkOptions } from "../src/import/network/readNetwork.js";
+import { networkToJson } from "../src/export/networkDocument.js";
 import { PER_METRE, type LengthUnit, type Trace } from "../src/types.js";
 import type { Io } from "./io.js";
 import { brief, parseLengthUnitOption } from "./options.js";
@@ -24,6 +26,8 @@ export interface CenterlineRequest extends InputRequest {
   readonly out: string;
   readonly outUnit?: LengthUnit;
   readonly quiet: boolean;
+  /** --branches split: one CSV per branch of a network, plus <stem>-network.json. */
+  readonly split?: boolean;
 }
 
 /** Raw option values as commander hands them over (all text). */
@@ -40,8 +44,11 @@ export interface CenterlineFlags {
 
 /** Checks every option; throws ParameterError("centerline: --option: ...") on the first bad one. */
 export function checkCenterlineFlags(input: string, flags: CenterlineFlags): CenterlineRequest {
+  const split = flags.branches === "split";
+  const { branches: _policy, ...rest } = flags;
+  const inputFlags: CenterlineFlags = split ? rest : flags;
   const req: { -readonly [K in keyof CenterlineRequest]: CenterlineRequest[K] } = {
-    ...checkInputFlags(WHERE, input, flags),
+    ...checkInputFlags(WHERE, input, inputFlags),
     input,
     out: flags.out,
     quiet: flags.quiet === true,
@@ -50,6 +57,12 @@ export function checkCenterlineFlags(input: string, flags: CenterlineFlags): Cen
   if (req.out === "") throw new ParameterError(WHERE, "--out", "must not be empty");
   if (req.out !== "-" && extname(req.out).toLowerCase() !== ".csv") {
     throw new ParameterError(WHERE, "--out", `must end in .csv, or be - for standard output (got ${JSON.stringify(req.out)})`);
+  }
+  if (split) {
+    if (req.out === "-") throw new ParameterError(WHERE, "--out", "--branches split writes several files: give a file name (net.csv writes net-1.csv, ... and net-network.json)");
+    if (req.wire !== undefined) throw new ParameterError(WHERE, "--wire", "does not go with --branches split (every branch is written)");
+    if (input === "-") throw new ParameterError(WHERE, "<input>", "--branches split reads a file, not standard input");
+    req.split = true;
   }
   return req;
 }
@@ -145,6 +158,7 @@ export interface CenterlineOutcome {
  */
 export async function runCenterline(req: CenterlineRequest, io: Io): Promise<CenterlineOutcome> {
   await checkOutputPath(req, WHERE);
+  if (req.split === true) return runNetworkCenterline(req, io);
   const all = await readTracesFile(req.input, readOptionsOf(req, undefined, io));
   const file = req.input === "-" ? STDIN_NAME : req.input;
   const chosen = req.wire !== undefined
@@ -180,6 +194,54 @@ export async function runCenterline(req: CenterlineRequest, io: Io): Promise<Cen
   return { traces: chosen.map((c) => c.trace), paths, outUnit };
 }
 
+/** `<stem>-network.json` beside `out` (net.csv -> net-network.json). */
+export function networkJsonPath(out: string): string {
+  const ext = extname(out);
+  return join(dirname(out), `${basename(out, ext)}-network.json`);
+}
+
+/**
+ * --branches split: reads the network, checks every output path, then writes each branch's CSV
+ * (`<stem>-<k>.csv`, k = branch id: longest first) and `<stem>-network.json`, each atomically.
+ */
+async function runNetworkCenterline(req: CenterlineRequest, io: Io): Promise<CenterlineOutcome> {
+  const net = await readNetworkFile(req.input, networkReadOptions(req));
+  const traces = net.branches.map((b) => b.trace);
+  const outUnit = req.outUnit ?? defaultOutputUnit(traces[0].source);
+  const format = req.format ?? formatOfPath(req.input);
+  const ext = extname(req.out);
+  const stem = basename(req.out, ext);
+  const paths = net.branches.map((b) => join(dirname(req.out), `${stem}-${b.id}${ext}`));
+  const jsonPath = networkJsonPath(req.out);
+  for (const path of [...paths, jsonPath]) await checkOutputPath({ input: req.input, out: path }, WHERE);
+  const texts = traces.map((trace, i) => centerlineToCsv(trace, { unit: outUnit, wire: i + 1, wires: traces.length, format }));
+  const json = networkToJson(net, outUnit, paths.map((p) => ({ file: basename(p) })));
+  for (let i = 0; i < paths.length; ++i) await writeOutput(paths[i], texts[i], req.input, WHERE);
+  await writeOutput(jsonPath, json, req.input, WHERE);
+  if (!req.quiet) {
+    const k = PER_METRE[outUnit];
+    io.stderr(
+      `${TOOL_NAME}: ${req.input}: a network of ${net.branches.length} ${net.branches.length === 1 ? "branch" : "branches"}, ${net.junctions.length} junctions, ` +
+        `${net.ends.length} free ends, ${net.cycles} independent cycles; branch lengths ${net.branches.map((b) => brief(b.length * k)).join(", ")} ${outUnit} -> ${paths[0]}${paths.length > 1 ? ` ... ${basename(paths[paths.length - 1])}` : ""}, ${jsonPath}\n`,
+    );
+  }
+  return { traces, paths: [...paths, jsonPath], outUnit };
+}
+
+/** The network reader's options from a checked request. */
+export function networkReadOptions(req: InputRequest): ReadNetworkOptions {
+  const o: { -readonly [K in keyof ReadNetworkOptions]: ReadNetworkOptions[K] } = {};
+  if (req.unit !== undefined) o.unit = req.unit;
+  if (req.pixelSize !== undefined) o.pixelSize = req.pixelSize;
+  if (req.format !== undefined) o.format = req.format;
+  return o;
+}
+
+/** Help of --branches for the commands that split networks. */
+export const SPLIT_BRANCHES_HELP =
+  "a branched mesh or cloud: an error, keep its longest path, or split it into a network of wires: error, longest, split (default: error); " +
+  "split writes one output per branch (longest first) and a network.json of junctions, free ends and branches";
+
 /** Adds `centerline` to the program. */
 export function addCenterlineCommand(program: Command, io: Io): void {
   program
@@ -198,7 +260,7 @@ export function addCenterlineCommand(program: Command, io: Io): void {
     .option("--pixel-size <length>", HELP.pixelSize)
     .option("--format <format>", HELP.format)
     .option("--wire <n>", "write only this wire, from 1, to the --out file itself (default: every wire)")
-    .option("--branches <policy>", HELP.branches)
+    .option("--branches <policy>", `${SPLIT_BRANCHES_HELP} (net.csv -> net-1.csv, net-2.csv, ... and net-network.json)`)
     .option("--out-unit <unit>", "length unit of the output, nm, um, m or A (default: the input unit; for px the unit of the pixel size: nm below 1 um, else um)")
     .option("--quiet", "print no summary line")
     .action(async (input, flags) => {

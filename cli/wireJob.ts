@@ -14,6 +14,7 @@ import { readTraceFile, type ReadOneTraceOptions } from "../src/import/readTrace
 import { parseMaterial } from "../src/physics/parseMaterial.js";
 import type { Material } from "../src/physics/types.js";
 import { PER_METRE, type LengthUnit, type Trace } from "../src/types.js";
+import { markJunctionZones, type JunctionZone } from "../src/import/network/junctionZones.js";
 import { jsonErrorAt } from "./jsonErrorAt.js";
 import { withOptionNames } from "./options.js";
 import { checkStepSamples } from "./profile.js";
@@ -50,6 +51,8 @@ export interface WireJob extends PipelineSettings {
   readonly dir: string;
   /** Command name for messages (default "analyze"). */
   readonly where?: string;
+  /** A branch of a wire network: the zones of the junctions at its ends (samples there are flagged). */
+  readonly junctionZones?: readonly JunctionZone[];
 }
 
 /** What a finished job reports back. */
@@ -151,7 +154,10 @@ export async function runWireJob(job: WireJob, viewerJs: string, onStage: (stage
     ...(job.step !== undefined ? { step: job.step } : {}),
     ...(job.coordinateError !== undefined ? { coordinateError: job.coordinateError } : {}),
   };
-  const analysis = withOptionNames(job.where ?? "analyze", () => analyzeTrace(trace, options));
+  const fitted = withOptionNames(job.where ?? "analyze", () => analyzeTrace(trace, options));
+  const analysis = job.junctionZones !== undefined && job.junctionZones.length > 0
+    ? { ...fitted, profile: markJunctionZones(fitted.profile, job.junctionZones) }
+    : fitted;
   const unit = job.outUnit ?? defaultOutputUnit(trace.source);
   const k = PER_METRE[unit];
   checkStepSamples(job.where ?? "analyze", job.step, analysis.profile, unit);

@@ -59,6 +59,7 @@ export const FLAG_FRAME_TRANSPORTED = 2; // N, B come from the twist-free (paral
 export const FLAG_END = 4; // within one resolution length of an open end: bias is larger there
 export const FLAG_TORSION_NOT_MEASURABLE = 8; // planar projection: torsion cannot be measured
 export const FLAG_BIAS = 16; // smoothing bias comparable to the band: the band may under-cover (feature near the resolution)
+export const FLAG_JUNCTION_ZONE = 32; // a branch of a wire network near a junction: the geometry there is the junction's, not the wire's (set after the fit, by the network pipeline)
 
 /**
  * Curvature and torsion profile of a fitted wire. All arrays have one entry per sample.

@@ -19,6 +19,8 @@ export interface CurvaturePeak {
   readonly excess: number;
   /** Median curvature of the stretch that holds the peak (1/m). */
   readonly base: number;
+  /** Noise standard deviation of the curvature the peak was found against (1/m). */
+  readonly noise: number;
 }
 
 /**
@@ -55,7 +57,7 @@ export function curvaturePeaks(s: Float64Array, kappa: Float64Array, _bounds: re
     const width = s[h1 - 1] - s[h0];
     let turning = 0;
     for (let q = i0; q + 1 < i1; ++q) turning += 0.5 * (ex(q) + ex(q + 1)) * (s[q + 1] - s[q]);
-    if (width < 2.5 * resolution && width < 0.5 * (s[n - 1] - s[0]) && turning >= minAngle) out.push({ i0, i1, ipeak: ip, h0, h1, excess: h, base: base[ip] });
+    if (width < 2.5 * resolution && width < 0.5 * (s[n - 1] - s[0]) && turning >= minAngle) out.push({ i0, i1, ipeak: ip, h0, h1, excess: h, base: base[ip], noise: sigmaK });
     i = j;
   }
   return out;
@@ -103,8 +105,9 @@ export interface FeatureOptions {
 /**
  * Named features from the stretches and the curvature peaks:
  * - "bend": a peak wider than 1.5 resolution lengths at half height: position (the peak), extent
- *   (support), turning angle (integral of kappa over the support minus the stretch's median
- *   times the support's length, for a planar bend the angle between the tangents before and after),
+ *   (support), turning angle (on a straight wire, whose running-median curvature is within 6 noise
+ *   SDs of zero: the angle between the tangents one resolution length before and after the support;
+ *   on a curved one: the integral of kappa above its running median over the support),
  *   minimum radius 1/max kappa of the fit (an upper bound of the true minimum radius: smoothing
  *   flattens peaks), and the radius of a circle fitted to the input points of the half-height
  *   region when it holds at least 5 points;
@@ -125,8 +128,22 @@ export function findFeatures(profile: Profile, segments: readonly Segment[], pea
   const stretchOf = (i: number) => segments.findIndex((g) => g.i0 <= i && i < g.i1);
   if (!profile.closed) out.push({ kind: "end", s: s[0], s0: s[0], s1: s[0], before: -1, after: 0, within: 0, note: "start of the wire" });
   for (const p of peaks) {
+    // One resolution length outside the support each side: the tails there sink into the noise and
+    // the support misses them (84-87 deg for a 90 deg bend at 1% noise).
+    let a = p.i0, b = Math.min(n - 1, Math.max(p.i0, p.i1 - 1));
+    const sa = s[a] - res, sb = s[b] + res;
+    while (a > 0 && s[a - 1] >= sa) --a;
+    while (b < n - 1 && s[b + 1] <= sb) ++b;
     let turning = 0;
-    for (let i = p.i0; i + 1 < p.i1; ++i) turning += 0.5 * (kappa[i] + kappa[i + 1] - 2 * p.base) * (s[i + 1] - s[i]);
+    if (p.base <= 6 * p.noise) {
+      // Straight around the peak (its base curvature is noise): the angle between the tangents.
+      const T = profile.T;
+      const dot = T[3 * a] * T[3 * b] + T[3 * a + 1] * T[3 * b + 1] + T[3 * a + 2] * T[3 * b + 2];
+      turning = Math.acos(Math.min(1, Math.max(-1, dot)));
+    } else {
+      // On a curved wire: the excess over the running median, integrated over the support.
+      for (let i = p.i0; i + 1 < p.i1; ++i) turning += 0.5 * (kappa[i] + kappa[i + 1] - 2 * p.base) * (s[i + 1] - s[i]);
+    }
     const width = s[p.h1 - 1] - s[p.h0];
     const w = stretchOf(p.ipeak);
     let radius: Interval | undefined;

@@ -10,10 +10,10 @@ import { arcAt, evalCurve, kappaTau } from "./curve.js";
 import { describeLength } from "./fitGuard.js";
 import type { PassesResult } from "./passes.js";
 import type { Samples, Start } from "./profile.js";
-import { solveAt, wavelengthForLambda, type SmoothFit, type Smoother } from "./smoother.js";
+import { lambdaForWavelength, solveAt, wavelengthForLambda, type SmoothFit, type Smoother } from "./smoother.js";
 import type { Skyline } from "./skyline.js";
 import { symEigen3 } from "./symEigen3.js";
-import { balancedLevel } from "./torsionLevel.js";
+import { balancedLevel, riskLevel } from "./torsionLevel.js";
 import { adaptiveCurvature } from "./adaptiveLevel.js";
 import { differencePenalty } from "./design.js";
 
@@ -33,6 +33,58 @@ export interface Levels {
   readonly gridS: Float64Array;
   /** The smoother of the curvature fit (its penalty varies along the wire when adaptive). */
   readonly kappaSmoother: Smoother;
+}
+
+/** Outcome of the curvature level rule. */
+export interface CurvatureLevel {
+  /** The chosen level (canonical units). */
+  readonly lambda: number;
+  /** log10 of the chosen level over the passes' (discrepancy) level. */
+  readonly decades: number;
+  readonly atTop: boolean;
+}
+
+/**
+ * Curvature level by an unbiased estimate of the curvature's summed squared error (`riskLevel`):
+ * on a ladder of quarter-decade levels from one decade below the passes' discrepancy level to two
+ * above, the squared bias of each level is estimated against the least-smoothed one (its bias taken
+ * as negligible) minus the noise of the difference, and the variance from common-random-number
+ * probes; the level of least estimated error is chosen. The discrepancy rule aims at the positions:
+ * measured across wire families it smooths coils too little and localised features too much
+ * (NUMERICS.md sec. 7 item 8); this rule aims at the curvature itself. Scored on at most ~600
+ * interior grid points (one discrepancy resolution length from an open end). A mesh centre line is
+ * never resolved below four facets.
+ */
+export function curvatureLevel(
+  trace: Trace, start: Start, fit: PassesResult, seed: number,
+  options: { down?: number; up?: number } = {},
+): CurvatureLevel {
+  const { basis, smoother, sel, table, u, w } = fit;
+  const down = options.down ?? 1, up = options.up ?? 2;
+  const closed = start.closed, length = table.length, n = u.length;
+  const normalDims: 1 | 2 = trace.dims === 2 ? 1 : 2;
+  const rho = smoother.normal.wSum / length;
+  const resolution = Math.max(wavelengthForLambda(sel.fit.lambda, rho, basis.h), 2 * basis.h, 2 / rho);
+  const d12 = new Float64Array(12), st = new Float64Array(1), sb = new Float64Array(24);
+  const tangent = new Float64Array(3 * n);
+  for (let i = 0; i < n; ++i) {
+    evalCurve(basis, sel.fit.coef, u[i], 1, d12, st, sb);
+    const sp = Math.hypot(d12[3], d12[4], d12[5]);
+    tangent[3 * i] = d12[3] / sp; tangent[3 * i + 1] = d12[4] / sp; tangent[3 * i + 2] = d12[5] / sp;
+  }
+  const C = rhsNoiseFactor(basis, u, w, tangent, sel.sigma, normalDims);
+  const count = Math.min(600, Math.max(64, Math.ceil((10 * length) / resolution)));
+  const gridU = uniformGrid(basis, count, closed);
+  const interior = new Uint8Array(gridU.length);
+  for (let j = 0; j < gridU.length; ++j) {
+    const sj = arcAt(table, gridU[j], closed);
+    interior[j] = closed || (sj > resolution && sj < length - resolution) ? 1 : 0;
+  }
+  const pilot = solveAt(smoother, sel.fit.lambda * Math.pow(10, -down));
+  const r = riskLevel(smoother, pilot, C, gridBasis(basis, gridU), interior, seed ^ 0x3c6ef372, { quantity: 0, maxDecades: down + up });
+  const minLambda = start.minWavelength > 0 ? lambdaForWavelength(start.minWavelength, rho, basis.h) : 0;
+  const lambda = Math.max(pilot.lambda * r.refinedFactor, minLambda);
+  return { lambda, decades: Math.log10(lambda / sel.fit.lambda), atTop: r.atTop };
 }
 
 /** Running mean of v over +-half in s (s increasing). */
@@ -67,7 +119,7 @@ function interpolate(x: Float64Array, v: Float64Array, t: number): number {
  */
 export function chooseLevels(
   trace: Trace, start: Start, fit: PassesResult, samples: Samples,
-  set: { readonly lambda?: number; readonly seed: number; readonly torsionBalance: number; readonly adaptive: boolean }, diagnostics: string[],
+  set: { readonly lambda?: number; readonly seed: number; readonly torsionBalance: number; readonly adaptive: boolean; readonly tauPilot?: number }, diagnostics: string[],
 ): Levels {
   const { basis, smoother, sel, table, u, w } = fit;
   const closed = start.closed;
@@ -109,9 +161,12 @@ export function chooseLevels(
     for (let j = 0; j < grid.m; j += stride) at.push(j);
     const sub = stride === 1 ? grid : gridBasis(basis, Float64Array.from(at, (j) => gridU[j]));
     const interior = Uint8Array.from(at, (j) => (closed || (gridS[j] > resolution && gridS[j] < length - resolution) ? 1 : 0));
-    const b = balancedLevel(smoother, kappaFit, C, sub, interior, set.seed, { c: set.torsionBalance });
-    tauFit = b.fit;
-    tauFactor = b.factorOfPilot;
+    // The torsion ladder starts at the passes' (discrepancy) level, whatever the curvature level.
+    const tauPilot = set.tauPilot !== undefined && set.tauPilot !== kappaFit.lambda ? solveAt(smoother, set.tauPilot) : kappaFit;
+    const b = balancedLevel(smoother, tauPilot, C, sub, interior, set.seed, { c: set.torsionBalance });
+    // (never below the curvature level: torsion is the higher derivative)
+    tauFit = b.fit.lambda >= kappaFit.lambda ? b.fit : kappaFit;
+    tauFactor = tauFit.lambda / kappaFit.lambda;
     if (tauFactor !== 1) diagnostics.push(`torsion: smoothing level ${tauFactor.toPrecision(3)}x the curvature level (balancing rule: the largest level whose torsion stays within the noise of every less-smoothed one)`);
     if (b.atTop) diagnostics.push("torsion: the balancing rule reached the top of its scan (torsion nearly constant along the wire)");
   }

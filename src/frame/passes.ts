@@ -30,6 +30,14 @@ export function segmentCount(n: number, closed: boolean): number {
   return Math.min(MAX_SEGMENTS, Math.max(closed ? 12 : 8, target));
 }
 
+/** Chord-length parameter of the points into `u`; returns the span (closing chord included for a ring). */
+export function chordLength(y: Float64Array, closed: boolean, u: Float64Array): number {
+  const n = y.length / 3;
+  u[0] = 0;
+  for (let i = 1; i < n; ++i) u[i] = u[i - 1] + Math.hypot(y[3 * i] - y[3 * i - 3], y[3 * i + 1] - y[3 * i - 2], y[3 * i + 2] - y[3 * i - 1]);
+  return closed ? u[n - 1] + Math.hypot(y[0] - y[3 * n - 3], y[1] - y[3 * n - 2], y[2] - y[3 * n - 1]) : u[n - 1];
+}
+
 /** Hampel-style redescending weight of a normal-plane residual e with robust scale sc. */
 export function robustWeight(e: number, sc: number): number {
   const r = e / sc;
@@ -100,6 +108,15 @@ export interface PassSettings {
   readonly coordinateError?: number;
 }
 
+/** Where a refit at a fixed level starts: the parameters, weights and noise of earlier passes. */
+export interface PassResume {
+  readonly u: Float64Array;
+  readonly w: Float64Array;
+  readonly span: number;
+  /** Noise SD (canonical units), kept (not re-estimated at the fixed level). */
+  readonly sigma: number;
+}
+
 /** What the passes leave for the later stages (canonical units). */
 export interface PassesResult {
   readonly basis: SplineBasis;
@@ -123,7 +140,7 @@ export interface PassesResult {
  * interval), unless the user gave the coordinate error; the noise is never estimated from fewer than
  * 20 residual degrees of freedom (then the difference-based estimate stands in: an upper bound).
  */
-export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnostics: string[]): PassesResult {
+export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnostics: string[], resume?: PassResume): PassesResult {
   const file = trace.source.file;
   const y = start.canon.y;
   const n = y.length / 3;
@@ -132,9 +149,9 @@ export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnos
   const scale = start.canon.scale;
   const say = (d: number) => describeLength(d * scale, trace.source);
   const name = (i: number) => (trace.rows ? `row ${trace.rows[start.kept[i]]}` : `point ${start.kept[i] + 1}`);
-  const u = start.u.slice();
-  let span = start.span;
-  const w = new Float64Array(n).fill(1);
+  const u = resume ? resume.u.slice() : start.u.slice();
+  let span = resume ? resume.span : start.span;
+  const w = resume ? resume.w.slice() : new Float64Array(n).fill(1);
   const fullSegments = segmentCount(n, closed);
   let nseg = set.segments ?? Math.min(fullSegments, INITIAL_SEGMENTS_CAP);
   let basis: SplineBasis = makeBasis(0, span, nseg, closed);
@@ -142,7 +159,7 @@ export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnos
   let sel: Selection | undefined;
   let sm: Smoother | undefined;
   let nearInterpolation = NaN;
-  const sigmaKnown = set.coordinateError !== undefined ? set.coordinateError / scale : undefined;
+  const sigmaKnown = resume ? resume.sigma : set.coordinateError !== undefined ? set.coordinateError / scale : undefined;
   const resid = new Float64Array(n);
   for (let pass = 0; pass <= set.passes; ++pass) {
     sm = makeSmoother(basis, u, y, w);
@@ -192,8 +209,9 @@ export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnos
       if (turn > SPARSE_TURN) {
         sparse = true;
         nseg = Math.min(MAX_SEGMENTS, 4 * n);
-        u.set(start.u);
-        span = start.span;
+        // The plain chord length of the points: the running median of the start parameter pulls a
+        // few points per turn toward the axis (a 60-atom helix read back with +-30% curvature waves).
+        span = chordLength(y, closed, u);
         w.fill(1);
         diagnostics.push(`sparse trace: the curve turns by ${turn.toFixed(2)} rad between samples (median); fitted with ${nseg} knot intervals, ${sigmaKnown === undefined ? "near-interpolating the points (give the coordinate error to smooth them)" : "smoothed to the coordinate error given"}`);
       }

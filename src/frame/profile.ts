@@ -7,7 +7,7 @@ import { detectClosed } from "./detectClosed.js";
 import { runPasses, type PassesResult } from "./passes.js";
 export { segmentCount } from "./passes.js";
 import { differenceNoise, grossOutliers, medianOf, referenceLength, startParameter, stepLengths, toCanonical, type CanonicalTrace } from "./robustStart.js";
-import { chooseLevels } from "./levels.js";
+import { chooseLevels, curvatureLevel } from "./levels.js";
 
 /** Options of `fitProfile`; lengths in metres. */
 export interface ProfileOptions {
@@ -35,6 +35,11 @@ export interface ProfileOptions {
   /** Constant c of the torsion balancing rule (default 1; see `balancedLevel`). */
   readonly torsionBalance?: number;
   /**
+   * How the curvature level is chosen: "risk" (default: least estimated error of the curvature, see
+   * `curvatureLevel`) or "discrepancy" (the passes' level, aimed at the positions).
+   */
+  readonly curvatureRule?: "risk" | "discrepancy";
+  /**
    * Spatially adaptive curvature smoothing (default false: the discrepancy level everywhere). Opt-in
    * and experimental: better on localised features, worse on slowly varying wires (see adaptiveLevel.ts).
    */
@@ -51,6 +56,7 @@ interface Settings {
   readonly lambda?: number;
   readonly coordinateError?: number;
   readonly torsionBalance: number;
+  readonly curvatureRule: "risk" | "discrepancy";
   readonly keepSamples: boolean;
   readonly adaptive: boolean;
 }
@@ -69,7 +75,7 @@ function settingsOf(options: ProfileOptions, n: number): Settings {
   // Dense traces converge in fewer foot-point passes (measured at 1e5 points: the same kappa error
   // to 1% with 2 passes as with 3).
   const s: { -readonly [K in keyof Settings]: Settings[K] } = {
-    replicates: R, seed, passes: options.passes ?? (n > 20_000 ? 2 : 3), torsionBalance: options.torsionBalance ?? 1, keepSamples: options.keepSamples ?? false, adaptive: options.adaptive ?? false,
+    replicates: R, seed, passes: options.passes ?? (n > 20_000 ? 2 : 3), torsionBalance: options.torsionBalance ?? 1, curvatureRule: options.curvatureRule ?? "risk", keepSamples: options.keepSamples ?? false, adaptive: options.adaptive ?? false,
   };
   if (options.step !== undefined) s.step = options.step;
   if (options.segments !== undefined) s.segments = options.segments;
@@ -203,9 +209,21 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
   const diagnostics: string[] = [...trace.diagnostics];
   if (set.coordinateError !== undefined) diagnostics.push(`noise: the coordinate error given (${describeLength(set.coordinateError, trace.source)} per coordinate) is the noise level; it is not estimated`);
   const start = robustStart(trace, options, diagnostics);
-  const fit = runPasses(trace, start, set, diagnostics);
+  let fit = runPasses(trace, start, set, diagnostics);
+  const passLevel = fit.sel.fit.lambda;
+  if (set.curvatureRule === "risk" && set.lambda === undefined && !fit.sparse && fit.sel.sigmaFrom !== "unknown") {
+    // The curvature level of least estimated error, then foot points, weights and arc length at
+    // that level (one more pass from where the passes ended, the noise kept): a fit is best at its
+    // level when its parameters come from that level.
+    const lv = curvatureLevel(trace, start, fit, set.seed);
+    if (Math.abs(lv.decades) > 1e-9) {
+      const refit = runPasses(trace, start, { passes: 1, lambda: lv.lambda, segments: fit.basis.nseg }, diagnostics, { u: fit.u, w: fit.w, span: fit.table.length, sigma: fit.sel.sigma });
+      fit = { ...refit, sel: { ...refit.sel, sigmaFrom: fit.sel.sigmaFrom, rule: fit.sel.rule } };
+      diagnostics.push(`curvature: smoothing level ${Math.pow(10, lv.decades).toPrecision(2)}x the discrepancy level (least estimated curvature error${lv.atTop ? ", top of the scan" : ""})`);
+    }
+  }
   const samples = sampleAt(trace, start, fit, set);
-  const levels = chooseLevels(trace, start, fit, samples, set, diagnostics);
+  const levels = chooseLevels(trace, start, fit, samples, { ...set, tauPilot: passLevel }, diagnostics);
   if (fit.sel.sigmaFrom === "unknown" && set.replicates > 0) {
     diagnostics.push(`noise not estimable: a sparse trace of ${fit.u.length} points leaves too few residual degrees of freedom; no bands (give the coordinate error to get them)`);
     return fitBands(trace, start, fit, levels, samples, { ...set, replicates: 0 }, diagnostics);

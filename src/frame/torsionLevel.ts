@@ -2,6 +2,27 @@ import { drawCoefPerturbation, kappaTauAt, noiseProbes, type GridBasis } from ".
 import type { Skyline } from "./skyline.js";
 import { solveAt, type SmoothFit, type Smoother } from "./smoother.js";
 
+/**
+ * Noise probes closed under sign flips of the coordinates: each of `base` seeded standard-normal
+ * draws (3K, coefficient-major) in all 8 sign patterns of (x, y, z). A mirror image of the data is,
+ * in the canonical frame, the data with some coordinates' signs flipped, and its right-hand-side
+ * law is the flipped law (the envelope factor of D C D is D L D); a probe set closed under the
+ * flips gives it the same set of curvature and torsion perturbations, so every decision taken on
+ * the probes (the levels) is exactly mirror-symmetric and a mirror image gets exactly -tau.
+ */
+export function symmetricProbes(K: number, base: number, seed: number): ReturnType<typeof noiseProbes> {
+  const raw = noiseProbes(K, base, seed);
+  const xis: Float64Array[] = [];
+  for (const xi of raw.xis) {
+    for (let pattern = 0; pattern < 8; ++pattern) {
+      const f = xi.slice();
+      for (let c = 0; c < 3; ++c) if (pattern & (1 << c)) for (let k = c; k < f.length; k += 3) f[k] = -f[k];
+      xis.push(f);
+    }
+  }
+  return { ...raw, xis };
+}
+
 /** Outcome of the balancing rule. */
 export interface BalancedLevel {
   readonly fit: SmoothFit;
@@ -21,7 +42,8 @@ export interface BalancedLevel {
  *
  * On a ladder of levels lambda_k = pilot x 10^(k/4), k = 0..4 maxDecades, the quantity q_k is
  * computed on a FIXED set of grid points (interior, and where the pilot curvature is resolved: 3
- * noise standard deviations), with its noise standard deviation SD_k from `probes` draws of
+ * noise standard deviations), with its noise standard deviation SD_k from `probes` draws (rounded to a multiple of 8, see
+ * `symmetricProbes`) of
  * normal-plane noise pushed through each level's factor (common random numbers). The chosen level
  * is the largest k whose RMS difference to every less-smoothed level j < k stays within
  * c x RMS(SD_j): smoothing more changes the answer by no more than the noise of the less-smoothed
@@ -31,10 +53,11 @@ export function balancedLevel(
   sm: Smoother, pilot: SmoothFit, C: Skyline, grid: GridBasis, interior: Uint8Array, seed: number,
   options: { quantity?: 0 | 1; probes?: number; maxDecades?: number; c?: number } = {},
 ): BalancedLevel {
-  const quantity = options.quantity ?? 1, probes = options.probes ?? 16, maxDecades = options.maxDecades ?? 5, c = options.c ?? 1;
+  const quantity = options.quantity ?? 1, wanted = options.probes ?? 32, maxDecades = options.maxDecades ?? 5, c = options.c ?? 1;
   const K = sm.basis.K, m = grid.m;
   const d12 = new Float64Array(12), kt = new Float64Array(5);
-  const { xis, scratch, dc } = noiseProbes(K, probes, seed ^ 0x5bd1e995);
+  const { xis, scratch, dc } = symmetricProbes(K, Math.max(1, Math.round(wanted / 8)), seed ^ 0x5bd1e995);
+  const probes = xis.length;
   // The scored set: interior points where the pilot's curvature vector is resolved.
   const kvec = new Float64Array(3 * m), kvar = new Float64Array(m), q0 = new Float64Array(m);
   for (let j = 0; j < m; ++j) {
@@ -91,4 +114,73 @@ export function balancedLevel(
     chosen = k;
   }
   return { fit: levels[chosen].fit, factorOfPilot: Math.pow(10, chosen / 4), atTop: chosen === top, scored: use.length };
+}
+
+/**
+ * Smoothing level for a derivative quantity (the curvature by default) by an unbiased estimate of
+ * its summed squared error. With q_k a level's values on the scored points and q_0 the pilot's
+ * (the least-smoothed level, its bias taken as negligible),
+ * E sum (q_k - q_0)^2 = sum (b_k - b_0)^2 + sum Var(q_k - q_0), so
+ * R_k = sum (q_k - q_0)^2 - sum Var(q_k - q_0) + sum Var(q_k) estimates sum b_k^2 + sum Var(q_k)
+ * (an unbiased-risk / Mallows C_p argument: Mallows 1973, Technometrics 15:661; Stein 1981, Ann.
+ * Stat. 9:1135; both from memory). The variances come from common-random-number probes: the same
+ * noise draws pushed through every level, so differences between levels are estimated with little
+ * noise. The chosen level minimises R_k over the ladder pilot x 10^(k/4), k = 0..4 maxDecades;
+ * `refinedFactor` is the vertex of the parabola through it and its neighbours.
+ * Unlike a plug-in risk, the bias term is not clamped at 0 (NUMERICS.md sec. 7 item 1: the clamp
+ * made every level look unbiased). Cost O(levels (K b^2 + probes (K b + M))), M scored points.
+ */
+export function riskLevel(
+  sm: Smoother, pilot: SmoothFit, C: Skyline, grid: GridBasis, interior: Uint8Array, seed: number,
+  options: { quantity?: 0 | 1; probes?: number; maxDecades?: number } = {},
+): BalancedLevel & { readonly risks: Float64Array; readonly refinedFactor: number } {
+  const quantity = options.quantity ?? 0, wanted = options.probes ?? 32, maxDecades = options.maxDecades ?? 3;
+  const K = sm.basis.K, m = grid.m;
+  const d12 = new Float64Array(12), kt = new Float64Array(5);
+  const { xis, scratch, dc } = symmetricProbes(K, Math.max(1, Math.round(wanted / 8)), seed ^ 0x1b873593);
+  const probes = xis.length;
+  const use: number[] = [];
+  for (let j = 0; j < m; ++j) if (interior[j]) use.push(j);
+  const top = 4 * maxDecades;
+  const risks = new Float64Array(top + 1).fill(NaN);
+  if (use.length === 0) return { fit: pilot, factorOfPilot: 1, atTop: false, scored: 0, risks, refinedFactor: 1 };
+  const M = use.length;
+  // Per level: values and per-probe perturbations on the scored points.
+  const evalLevel = (f: number) => {
+    const fit = f === 0 ? pilot : solveAt(sm, pilot.lambda * Math.pow(10, f));
+    const q = new Float64Array(M), qp = new Float64Array(M * probes);
+    for (let a = 0; a < M; ++a) q[a] = kappaTauAt(grid, fit.coef, null, use[a], d12, kt)[quantity];
+    for (let p = 0; p < probes; ++p) {
+      drawCoefPerturbation(C, fit.factor, xis[p], dc, scratch);
+      for (let a = 0; a < M; ++a) qp[p * M + a] = kappaTauAt(grid, fit.coef, dc, use[a], d12, kt)[quantity] - q[a];
+    }
+    return { fit, q, qp };
+  };
+  const base = evalLevel(0);
+  let best = 0, bestRisk = Infinity, bestFit = pilot;
+  for (let k = 0; k <= top; ++k) {
+    const lv = k === 0 ? base : evalLevel(k / 4);
+    let r = 0;
+    for (let a = 0; a < M; ++a) {
+      const d = lv.q[a] - base.q[a];
+      let vd = 0, vk = 0;
+      for (let p = 0; p < probes; ++p) {
+        const ek = lv.qp[p * M + a], e0 = base.qp[p * M + a];
+        vd += (ek - e0) ** 2; vk += ek * ek;
+      }
+      // Each probe is one draw of the noise: the mean square over probes is the variance.
+      r += d * d - vd / probes + vk / probes;
+    }
+    risks[k] = r / M;
+    if (Number.isFinite(r) && r < bestRisk) { bestRisk = r; best = k; bestFit = lv.fit; }
+  }
+  // The vertex of the parabola through the least risk and its two neighbours (in quarter decades,
+  // at most half a step away): the level then moves continuously with the data instead of jumping
+  // a quarter decade when two ladder levels trade places.
+  let vertex = best;
+  if (best > 0 && best < top) {
+    const a = risks[best - 1], b = risks[best], c = risks[best + 1], den = a - 2 * b + c;
+    if (den > 0) vertex = best + Math.max(-0.5, Math.min(0.5, (0.5 * (a - c)) / den));
+  }
+  return { fit: bestFit, factorOfPilot: Math.pow(10, best / 4), atTop: best === top, scored: M, risks, refinedFactor: Math.pow(10, vertex / 4) };
 }

@@ -196,7 +196,7 @@ describe("readTracesFile(path, options): one list of wires for every format", ()
     // A tube's surface vertices read as a cloud: the spanning tree's longest path cannot follow one
     // wire through a thick surface, and the orderer says so (naming where) instead of returning it.
     const mesh = write("mesh-as-cloud.ply", toPlyAscii(bentGeo));
-    await expect(readTracesFile(mesh, { format: "cloud" })).rejects.toThrow(/mesh-as-cloud\.ply: points: the cloud crosses itself or branches near \(.*\) nm \(a side branch of \d+ points reaching [\d.]+ nm from the path.*\): the order along one wire is ambiguous there; trace the wire as an ordered polyline, or split it$/);
+    await expect(readTracesFile(mesh, { format: "cloud" })).rejects.toThrow(/mesh-as-cloud\.ply: points: the cloud crosses itself or branches near \(.*\) nm \(a side branch of \d+ points reaching [\d.]+ nm from the path.*\): the order along one wire is ambiguous there; trace the wire as an ordered polyline, or split it into its wires \(--branches split\)$/);
   });
 
   it("reads unordered text with format cloud in the declared unit, honouring the file's closure", async () => {

@@ -158,19 +158,30 @@ export function denseTruth(curve: TestCurve, m: number): { xyz: Float64Array; ka
   return { xyz, kappa, tau };
 }
 
-/** Index of the nearest dense-truth point to each fitted sample: brute force for the first sample,
- * then a window around the previous match (samples are ordered along the curve). */
+/** Index of the nearest dense-truth point to each fitted sample: the first sample is matched to
+ * each of the (up to 4) nearest local minima of the distance, the rest follow in a window around the
+ * previous match (samples are ordered along the curve), and the start whose track lies closest to
+ * the samples wins (a curve that crosses itself, such as Viviani's, has two branches at the crossing). */
 export function matchTruth(truth: { xyz: Float64Array }, x: Float64Array, y: Float64Array, z: Float64Array, closed = false): Int32Array {
   const m = truth.xyz.length / 3, n = x.length;
-  const out = new Int32Array(n);
   const win = Math.ceil((8 * m) / Math.max(n, 1)) + 20;
   const d2 = (i: number, j: number) => (truth.xyz[3 * i] - x[j]) ** 2 + (truth.xyz[3 * i + 1] - y[j]) ** 2 + (truth.xyz[3 * i + 2] - z[j]) ** 2;
-  let prev = -1;
-  for (let j = 0; j < n; ++j) {
-    let best = -1, bd = Infinity;
-    if (prev < 0) {
-      for (let i = 0; i < m; ++i) { const d = d2(i, j); if (d < bd) { bd = d; best = i; } }
-    } else {
+  const first = new Float64Array(m);
+  for (let i = 0; i < m; ++i) first[i] = d2(i, 0);
+  const minima: number[] = [];
+  for (let i = 0; i < m; ++i) {
+    const a = closed ? first[(i - 1 + m) % m] : i > 0 ? first[i - 1] : Infinity;
+    const b = closed ? first[(i + 1) % m] : i < m - 1 ? first[i + 1] : Infinity;
+    if (first[i] <= a && first[i] <= b) minima.push(i);
+  }
+  minima.sort((p, q) => first[p] - first[q]);
+  let bestTrack = new Int32Array(n), bestCost = Infinity;
+  for (const start of minima.slice(0, 4)) {
+    const out = new Int32Array(n);
+    out[0] = start;
+    let prev = start, cost = first[start];
+    for (let j = 1; j < n; ++j) {
+      let best = -1, bd = Infinity;
       for (let k = -win; k <= win; ++k) {
         let i = prev + k;
         if (closed) i = ((i % m) + m) % m;
@@ -178,11 +189,13 @@ export function matchTruth(truth: { xyz: Float64Array }, x: Float64Array, y: Flo
         const d = d2(i, j);
         if (d < bd) { bd = d; best = i; }
       }
+      out[j] = best;
+      prev = best;
+      cost += bd;
     }
-    out[j] = best;
-    prev = best;
+    if (cost < bestCost) { bestCost = cost; bestTrack = out; }
   }
-  return out;
+  return bestTrack;
 }
 
 /** Applies x -> Q x + t with Q a rotation from a unit quaternion (qw, qx, qy, qz). */

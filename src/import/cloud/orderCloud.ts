@@ -133,7 +133,7 @@ export function orderCloud(xyz: Readonly<Float64Array>, file: string, options: C
   if (sideBranches.length > 0 && !options.allowBranches) {
     const b = sideBranches[0];
     throw new InputError(file, null, "points",
-      `the cloud crosses itself or branches near ${fmtP(b.x, b.y, b.z)} (a side branch of ${b.points} points reaching ${fmtL(b.extent)} from the path${sideBranches.length > 1 ? `; ${sideBranches.length - 1} more such places` : ""}): the order along one wire is ambiguous there; trace the wire as an ordered polyline, or split it`);
+      `the cloud crosses itself or branches near ${fmtP(b.x, b.y, b.z)} (a side branch of ${b.points} points reaching ${fmtL(b.extent)} from the path${sideBranches.length > 1 ? `; ${sideBranches.length - 1} more such places` : ""}): the order along one wire is ambiguous there; trace the wire as an ordered polyline, or split it into its wires (--branches split)`);
   }
   for (const b of sideBranches.slice(0, 5)) {
     diagnostics.push(`long side branch of ${b.points} points reaching ${fmtL(b.extent)} from the curve near ${fmtP(b.x, b.y, b.z)}: a self-crossing or a branch; the ordering may be wrong there`);

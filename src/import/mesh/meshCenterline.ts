@@ -76,7 +76,7 @@ export function meshCenterline(mesh: Mesh, file: string, options: CenterlineOpti
 }
 
 /** Median edge length of a triangle mesh (each triangle's three edges): the tessellation's scale. */
-function medianEdge(positions: Float64Array, index: Uint32Array): number {
+export function medianEdge(positions: Float64Array, index: Uint32Array): number {
   const e = new Float64Array(index.length);
   for (let f = 0; f < index.length; f += 3) {
     for (let k = 0; k < 3; ++k) {
@@ -88,7 +88,7 @@ function medianEdge(positions: Float64Array, index: Uint32Array): number {
   return e.length ? e[e.length >> 1] : 0;
 }
 
-function extract(mesh: Mesh, tris: Readonly<Uint32Array>): { positions: Float64Array; index: Uint32Array } {
+export function extract(mesh: Mesh, tris: Readonly<Uint32Array>): { positions: Float64Array; index: Uint32Array } {
   if (tris.length * 3 === mesh.index.length) return { positions: mesh.positions, index: mesh.index };
   const map = new Int32Array(mesh.positions.length / 3).fill(-1);
   const index = new Uint32Array(tris.length * 3);
@@ -178,7 +178,7 @@ function wireOfComponent(
       .map((j) => `${j.arms.length} arms meet near ${fmtP(j.x, j.y, j.z)} (arm lengths ${j.arms.map(fmtL).join(", ")})`)
       .join("; ");
     if ((options.branches ?? "error") === "error") {
-      throw new InputError(file, null, name, `branched: ${desc}; split the mesh into single wires, or keep the longest path (branches: "longest")`);
+      throw new InputError(file, null, name, `branched: ${desc}; split the mesh into its wires (--branches split), or keep the longest path (branches: "longest")`);
     }
     notes.push(`${name}: branched: ${desc}; kept the longest path only`);
   }
@@ -247,7 +247,7 @@ function wireOfComponent(
 }
 
 /** Adds samples every `step` up to `extra` beyond each open end, along the end chord over ~1 radius. */
-function extendEnds(p: Float64Array, extra: number, step: number): Float64Array {
+export function extendEnds(p: Float64Array, extra: number, step: number): Float64Array {
   const n = p.length / 3;
   const k = Math.max(1, Math.ceil(extra / step));
   const m = Math.min(n - 1, Math.max(1, Math.round(extra / (1.5 * step))));

@@ -123,7 +123,7 @@ describe("orderCloud(xyz, file, options)", () => {
     for (let i = 0; i <= 300; i++) pts.push((i - 150) * NM, 0, 0); // bar along x
     for (let i = 1; i <= 80; i++) pts.push(0, i * NM, 0); // a branch along y from the middle
     expect(() => orderCloud(Float64Array.from(pts), "t.xyz", { unit: "nm" })).toThrow(
-      /^t\.xyz: points: the cloud crosses itself or branches near \(.*\) nm \(a side branch of \d+ points reaching [\d.]+ nm from the path\): the order along one wire is ambiguous there; trace the wire as an ordered polyline, or split it$/,
+      /^t\.xyz: points: the cloud crosses itself or branches near \(.*\) nm \(a side branch of \d+ points reaching [\d.]+ nm from the path\): the order along one wire is ambiguous there; trace the wire as an ordered polyline, or split it into its wires \(--branches split\)$/,
     );
     const r = orderCloud(Float64Array.from(pts), "t.xyz", { unit: "nm", allowBranches: true });
     expect(r.sideBranches).toHaveLength(1);
