@@ -6,7 +6,8 @@
  * fresh children, default 1; CPU includes the garbage collector's helper threads), peak RSS, and the
  * load average before the runs (the machine is shared: compare figures at similar load).
  * `--stages` adds a second, separate run of the stages of the geometry core one by one in each child
- * (robust start, passes, sampling, levels, bands) with the CPU milliseconds of each.
+ * (robust start, passes, curvature level and refit, sampling, levels, bands; as fitProfile with its
+ * defaults) with the CPU milliseconds of each.
  * Invented synthetic data, seeded.
  */
 import { execFileSync } from "node:child_process";
@@ -18,7 +19,7 @@ const self = fileURLToPath(import.meta.url);
 if (process.argv[2] === "--child") {
   const { fitProfile, robustStart } = await import("../src/frame/profile.js");
   const { runPasses } = await import("../src/frame/passes.js");
-  const { chooseLevels } = await import("../src/frame/levels.js");
+  const { chooseLevels, curvatureLevel } = await import("../src/frame/levels.js");
   const { fitBands } = await import("../src/frame/bands.js");
   const { arcAt } = await import("../src/frame/curve.js");
   const { normalStream } = await import("../test/support/rng.js");
@@ -53,9 +54,15 @@ if (process.argv[2] === "--child") {
     const set = { replicates: 200, seed: 1, passes: n > 20_000 ? 2 : 3, torsionBalance: 1, keepSamples: false, adaptive: false };
     const diagnostics: string[] = [];
     const start = cpuOf("robustStart", () => robustStart(trace, {}, diagnostics));
-    const fit = cpuOf("runPasses", () => runPasses(trace, start, set, diagnostics));
+    let fit = cpuOf("runPasses", () => runPasses(trace, start, set, diagnostics));
+    const passLevel = fit.sel.fit.lambda;
+    const lv = cpuOf("curvatureLevel", () => curvatureLevel(trace, start, fit, set.seed));
+    if (Math.abs(lv.decades) > 1e-9) {
+      const refit = cpuOf("refit", () => runPasses(trace, start, { passes: 1, lambda: lv.lambda, segments: fit.basis.nseg }, diagnostics, { u: fit.u, w: fit.w, span: fit.table.length, sigma: fit.sel.sigma }));
+      fit = { ...refit, sel: { ...refit.sel, sigmaFrom: fit.sel.sigmaFrom, rule: fit.sel.rule } };
+    }
     const samples = cpuOf("samples", () => {
-      // As sampleAt in profile.ts for one sample per kept point (foot points in order here).
+      // As sampleAt in profile.ts for one sample per kept point.
       const u = fit.u, mm = u.length;
       const order = Uint32Array.from({ length: mm }, (_, i) => i).sort((a, b) => u[a] - u[b] || a - b);
       const su = new Float64Array(mm), s = new Float64Array(mm), traceIndex = new Int32Array(mm);
@@ -64,7 +71,7 @@ if (process.argv[2] === "--child") {
       for (let j = 0; j < mm; ++j) s[j] = Math.max(0, arcAt(fit.table, su[j], start.closed) - s0);
       return { u: su, traceIndex, s };
     });
-    const levels = cpuOf("chooseLevels", () => chooseLevels(trace, start, fit, samples, set, diagnostics));
+    const levels = cpuOf("chooseLevels", () => chooseLevels(trace, start, fit, samples, { ...set, tauPilot: passLevel }, diagnostics));
     cpuOf("fitBands", () => fitBands(trace, start, fit, levels, samples, set, diagnostics));
   }
   console.log(JSON.stringify({ n, ms, cpuMs: (cpu.user + cpu.system) / 1000, rssMB, segments: p.segments, kappaRelRms: Math.sqrt(e / m), stages }));
