@@ -17,30 +17,37 @@ export interface BootstrapOutput {
 
 /** xoshiro128** seeded by splitmix32 (Blackman & Vigna 2018, public domain); normals by Box-Muller. */
 export function normalGenerator(seed: number): () => number {
-  let x = seed >>> 0;
+  // The state lives in typed arrays (closure variables holding doubles or 32-bit integers outside
+  // the small-integer range cost a heap allocation per update); the bit operations are unchanged.
+  const st = new Int32Array(5), spare = new Float64Array(1);
+  st[4] = seed >>> 0;
   const split = () => {
-    x = (x + 0x9e3779b9) >>> 0;
+    const x = (st[4] + 0x9e3779b9) >>> 0;
+    st[4] = x;
     let z = x;
     z = Math.imul(z ^ (z >>> 16), 0x85ebca6b) >>> 0;
     z = Math.imul(z ^ (z >>> 13), 0xc2b2ae35) >>> 0;
     return (z ^ (z >>> 16)) >>> 0;
   };
-  let a = split(), b = split(), c = split(), d = split();
+  st[0] = split(); st[1] = split(); st[2] = split(); st[3] = split();
   const next = () => {
+    let a = st[0], b = st[1], c = st[2], d = st[3];
     const r = Math.imul(((Math.imul(b, 5) << 7) | (Math.imul(b, 5) >>> 25)) >>> 0, 9) >>> 0;
     const t = (b << 9) >>> 0;
     c ^= a; d ^= b; b ^= c; a ^= d; c ^= t;
     d = ((d << 11) | (d >>> 21)) >>> 0;
+    st[0] = a; st[1] = b; st[2] = c; st[3] = d;
     return r / 4294967296;
   };
-  let spare = NaN;
+  spare[0] = NaN;
   return () => {
-    if (!Number.isNaN(spare)) { const v = spare; spare = NaN; return v; }
+    const sv = spare[0];
+    if (!Number.isNaN(sv)) { spare[0] = NaN; return sv; }
     let p = next();
     while (p <= 0) p = next();
     const q = next();
     const r = Math.sqrt(-2 * Math.log(p));
-    spare = r * Math.sin(2 * Math.PI * q);
+    spare[0] = r * Math.sin(2 * Math.PI * q);
     return r * Math.cos(2 * Math.PI * q);
   };
 }
@@ -59,6 +66,9 @@ export function rhsNoiseFactor(
   const st = new Float64Array(1), b = new Float64Array(24), idx = new Int32Array(ORDER);
   const Pm = new Float64Array(9);
   const s2 = sigma * sigma;
+  const data = C.data;
+  const rowBase = new Int32Array(C.n);
+  for (let r = 0; r < C.n; ++r) rowBase[r] = C.offset[r] - C.first[r];
   for (let p = 0; p < u.length; ++p) {
     const wp = w[p];
     if (wp === 0) continue;
@@ -77,19 +87,29 @@ export function rhsNoiseFactor(
     basisAt(st[0], basis.h, 0, b);
     for (let j = 0; j < ORDER; ++j) idx[j] = coefIndex(basis, i, j);
     const f = wp * wp * s2;
+    const p0 = Pm[0], p1 = Pm[1], p2 = Pm[2], p4 = Pm[4], p5 = Pm[5], p8 = Pm[8];
+    // Each entry of C gets one term per point (the pairs (j, k) meet distinct coefficient pairs),
+    // so the sums run in point order as before; rowBase[r] + q addresses entry (r, q), r >= q.
     for (let j = 0; j < ORDER; ++j) {
-      for (let k = 0; k <= j; ++k) {
-        const v = f * b[j] * b[k];
-        const mj = idx[j], mk = idx[k];
-        for (let a = 0; a < 3; ++a) {
-          for (let c = 0; c < 3; ++c) {
-            const r = 3 * mj + a, q = 3 * mk + c;
-            if (j === k && q > r) continue; // diagonal block: lower half only
-            // Inlined skyAdd (hot loop).
-            if (q <= r) C.data[C.offset[r] + q - C.first[r]] += v * Pm[3 * a + c];
-            else C.data[C.offset[q] + r - C.first[q]] += v * Pm[3 * a + c];
-          }
-        }
+      const mj = idx[j], fb = f * b[j];
+      // Diagonal block (lower half).
+      {
+        const v = fb * b[j];
+        const r0 = rowBase[3 * mj] + 3 * mj, r1 = rowBase[3 * mj + 1] + 3 * mj, r2 = rowBase[3 * mj + 2] + 3 * mj;
+        data[r0] += v * p0;
+        data[r1] += v * p1; data[r1 + 1] += v * p4;
+        data[r2] += v * p2; data[r2 + 1] += v * p5; data[r2 + 2] += v * p8;
+      }
+      for (let k = 0; k < j; ++k) {
+        const v = fb * b[k];
+        const mk = idx[k];
+        const w0 = v * p0, w1 = v * p1, w2 = v * p2, w4 = v * p4, w5 = v * p5, w8 = v * p8;
+        // Block (mj, mk) when mj > mk, else its transpose (a periodic basis wraps); P is symmetric.
+        const hi = mj > mk ? mj : mk, lo = mj > mk ? mk : mj;
+        const q = 3 * lo, r0 = rowBase[3 * hi] + q, r1 = rowBase[3 * hi + 1] + q, r2 = rowBase[3 * hi + 2] + q;
+        data[r0] += w0; data[r0 + 1] += w1; data[r0 + 2] += w2;
+        data[r1] += w1; data[r1 + 1] += w4; data[r1 + 2] += w5;
+        data[r2] += w2; data[r2 + 1] += w5; data[r2 + 2] += w8;
       }
     }
   }
@@ -103,27 +123,132 @@ export function rhsNoiseFactor(
 }
 
 /** Draws dB (3K, coefficient-major) and returns the coefficient perturbation (x, y, z blocks of K)
- * dc = A^{-1} dB for a factorised A. Scratch arrays are allocated by the caller. */
+ * dc = A^{-1} dB for a factorised A. Scratch arrays are allocated by the caller (`drawScratch`);
+ * scratch made by `noiseProbes` keeps dB per probe vector (the probes never change), so drawing the
+ * same probe through another factor skips the product with C's factor. */
 export function drawCoefPerturbation(
-  C: Skyline, factor: Skyline, xi: Float64Array, dcOut: Float64Array, scratch: { db: Float64Array; rhs: Float64Array; sol: Float64Array; sqrtD?: Float64Array },
+  C: Skyline, factor: Skyline, xi: Float64Array, dcOut: Float64Array, scratch: DrawScratch,
 ): Float64Array {
-  const K = factor.n;
-  scratch.sqrtD ??= sqrtDiagonal(C);
-  mulLsqrtD(C, xi, scratch.db, scratch.sqrtD);
-  for (let c = 0; c < 3; ++c) {
-    for (let k = 0; k < K; ++k) scratch.rhs[k] = scratch.db[3 * k + c];
-    solveLdl(factor, scratch.rhs, scratch.sol);
-    dcOut.set(scratch.sol, c * K);
-  }
+  let db = scratch.db;
+  if (scratch.probeRhs) {
+    const hit = scratch.probeRhs.get(xi);
+    if (hit && hit.C === C) db = hit.db;
+    else {
+      db = new Float64Array(xi.length);
+      drawRhs(C, xi, db, scratch);
+      scratch.probeRhs.set(xi, { C, db });
+    }
+  } else drawRhs(C, xi, db, scratch);
+  solveLdl3(factor, db, dcOut, scratch.sol3 ??= new Float64Array(db.length));
   return dcOut;
 }
 
-/** Scratch arrays of {@link drawCoefPerturbation}. */
-export interface DrawScratch { db: Float64Array; rhs: Float64Array; sol: Float64Array; sqrtD?: Float64Array }
+/**
+ * dB = L sqrt(D) xi for C's factor L D L^T (a draw from N(0, C) when xi ~ N(0, I)). The same
+ * products as `mulLsqrtD` (L_ik sqrt(D_k) is formed once per factor and reused: bit-identical).
+ */
+export function drawRhs(C: Skyline, xi: Float64Array, db: Float64Array, scratch: DrawScratch): Float64Array {
+  if (scratch.factorOf !== C || !scratch.sqrtD || !scratch.lsd) {
+    const sd = sqrtDiagonal(C);
+    const { n, first, offset, data } = C;
+    const lsd = new Float64Array(data.length);
+    for (let i = 0; i < n; ++i) {
+      const fi = first[i], oi = offset[i];
+      for (let k = fi; k < i; ++k) lsd[oi + k - fi] = data[oi + k - fi] * sd[k];
+    }
+    scratch.sqrtD = sd;
+    scratch.lsd = lsd;
+    scratch.factorOf = C;
+  }
+  const { n, first, offset } = C;
+  const sd = scratch.sqrtD, lsd = scratch.lsd;
+  for (let i = 0; i < n; ++i) {
+    const fi = first[i], o = offset[i] - fi;
+    let s = sd[i] * xi[i];
+    for (let k = fi; k < i; ++k) s += lsd[o + k] * xi[k];
+    db[i] = s;
+  }
+  return db;
+}
+
+/**
+ * Solves (L D L^T) x_c = b_c for the three coordinates at once: b interleaved (b[3k + c]), x as
+ * x, y, z blocks of K. Each coordinate sees exactly the operations of `solveLdl` (bit-identical);
+ * one sweep over the factor serves all three. `w` is scratch of length 3K.
+ */
+export function solveLdl3(f: Skyline, b: Float64Array, x: Float64Array, w: Float64Array): Float64Array {
+  // One loop per function (forward, diagonal, backward, scatter): a loop compiled on the stack
+  // before the later loops have run would otherwise be deoptimised on every call.
+  forward3(f, b, w);
+  diagonal3(f, w);
+  backward3(f, w);
+  scatter3(w, x, f.n);
+  return x;
+}
+
+function forward3(f: Skyline, b: Float64Array, w: Float64Array): void {
+  const { n, first, offset, data } = f;
+  for (let i = 0; i < n; ++i) {
+    const fi = first[i], o = offset[i] - fi;
+    let s0 = b[3 * i], s1 = b[3 * i + 1], s2 = b[3 * i + 2];
+    for (let k = fi; k < i; ++k) {
+      const l = data[o + k];
+      s0 -= l * w[3 * k]; s1 -= l * w[3 * k + 1]; s2 -= l * w[3 * k + 2];
+    }
+    w[3 * i] = s0; w[3 * i + 1] = s1; w[3 * i + 2] = s2;
+  }
+}
+
+function diagonal3(f: Skyline, w: Float64Array): void {
+  const { n, first, offset, data } = f;
+  for (let i = 0; i < n; ++i) {
+    const d = data[offset[i] + i - first[i]];
+    if (d === 0) { w[3 * i] = 0; w[3 * i + 1] = 0; w[3 * i + 2] = 0; }
+    else { w[3 * i] /= d; w[3 * i + 1] /= d; w[3 * i + 2] /= d; }
+  }
+}
+
+function backward3(f: Skyline, w: Float64Array): void {
+  const { n, first, offset, data } = f;
+  for (let i = n - 1; i >= 0; --i) {
+    const fi = first[i], o = offset[i] - fi;
+    const x0 = w[3 * i], x1 = w[3 * i + 1], x2 = w[3 * i + 2];
+    for (let k = fi; k < i; ++k) {
+      const l = data[o + k];
+      w[3 * k] -= l * x0; w[3 * k + 1] -= l * x1; w[3 * k + 2] -= l * x2;
+    }
+  }
+}
+
+function scatter3(w: Float64Array, x: Float64Array, n: number): void {
+  for (let k = 0; k < n; ++k) { x[k] = w[3 * k]; x[n + k] = w[3 * k + 1]; x[2 * n + k] = w[3 * k + 2]; }
+}
+
+/** Scratch of {@link drawCoefPerturbation}: dB, the solve's workspace, C's scaled factor, and (for
+ * fixed probe vectors only) dB per probe. */
+export interface DrawScratch {
+  db: Float64Array;
+  rhs?: Float64Array | undefined;
+  sol?: Float64Array | undefined;
+  sqrtD?: Float64Array | undefined;
+  /** L sqrt(D) of C's factor, entry by entry on its envelope (strictly lower part). */
+  lsd?: Float64Array | undefined;
+  /** The C that sqrtD and lsd belong to. */
+  factorOf?: Skyline | undefined;
+  sol3?: Float64Array | undefined;
+  probeRhs?: Map<Float64Array, { C: Skyline; db: Float64Array }> | undefined;
+}
+
+/** Scratch for drawing with coefficient count K (vectors xi refilled between draws: no dB cache). */
+export function drawScratch(K: number): DrawScratch {
+  // Every field present from the start: one object shape for all scratch objects.
+  return { db: new Float64Array(3 * K), rhs: undefined, sol: undefined, sqrtD: undefined, lsd: undefined, factorOf: undefined, sol3: new Float64Array(3 * K), probeRhs: undefined };
+}
 
 /**
  * `probes` seeded standard-normal vectors of length 3K (common random numbers: the same draws for
  * every smoothing level compared), with the scratch arrays and a perturbation buffer for drawing.
+ * The vectors must not be changed: the scratch keeps dB per vector.
  */
 export function noiseProbes(K: number, probes: number, seed: number): { xis: Float64Array[]; scratch: DrawScratch; dc: Float64Array } {
   const rnd = normalGenerator(seed);
@@ -133,7 +258,9 @@ export function noiseProbes(K: number, probes: number, seed: number): { xis: Flo
     for (let k = 0; k < 3 * K; ++k) xi[k] = rnd();
     xis.push(xi);
   }
-  return { xis, scratch: { db: new Float64Array(3 * K), rhs: new Float64Array(K), sol: new Float64Array(K) }, dc: new Float64Array(3 * K) };
+  const scratch = drawScratch(K);
+  scratch.probeRhs = new Map();
+  return { xis, scratch, dc: new Float64Array(3 * K) };
 }
 
 /** Basis values and derivatives tabulated at fixed parameters, for repeated evaluation. */
@@ -157,19 +284,73 @@ export function gridBasis(basis: SplineBasis, at: Float64Array): GridBasis {
 
 /** kappa, tau and the curvature vector at grid point j for coefficients cf (+ optional dc). */
 export function kappaTauAt(gb: GridBasis, cf: Float64Array, dc: Float64Array | null, j: number, d12: Float64Array, out: Float64Array): Float64Array {
-  const basis = gb.basis, K = basis.K;
-  d12.fill(0);
+  const K = gb.basis.K, vals = gb.values;
+  const iv = gb.interval[j];
+  const wrap = gb.basis.periodic && iv + ORDER > K;
   const bb = 24 * j;
+  // Twelve sums over the six active coefficients, in the order of the plain loop (bit-identical).
+  let p0 = 0, p1 = 0, p2 = 0, a0 = 0, a1 = 0, a2 = 0, b0 = 0, b1 = 0, b2 = 0, c0 = 0, c1 = 0, c2 = 0;
   for (let q = 0; q < ORDER; ++q) {
-    const mm = coefIndex(basis, gb.interval[j], q);
+    const mm = wrap ? (iv + q) % K : iv + q;
     let cx = cf[mm], cy = cf[K + mm], cz = cf[2 * K + mm];
     if (dc) { cx += dc[mm]; cy += dc[K + mm]; cz += dc[2 * K + mm]; }
-    for (let d = 0; d < 4; ++d) {
-      const v = gb.values[bb + d * 6 + q];
-      d12[3 * d] += v * cx; d12[3 * d + 1] += v * cy; d12[3 * d + 2] += v * cz;
-    }
+    const v0 = vals[bb + q], v1 = vals[bb + 6 + q], v2 = vals[bb + 12 + q], v3 = vals[bb + 18 + q];
+    p0 += v0 * cx; p1 += v0 * cy; p2 += v0 * cz;
+    a0 += v1 * cx; a1 += v1 * cy; a2 += v1 * cz;
+    b0 += v2 * cx; b1 += v2 * cy; b2 += v2 * cz;
+    c0 += v3 * cx; c1 += v3 * cy; c2 += v3 * cz;
   }
+  d12[0] = p0; d12[1] = p1; d12[2] = p2; d12[3] = a0; d12[4] = a1; d12[5] = a2;
+  d12[6] = b0; d12[7] = b1; d12[8] = b2; d12[9] = c0; d12[10] = c1; d12[11] = c2;
   return kappaTau(d12, out);
+}
+
+/** out = a + b (the perturbed coefficients, formed once per replicate as kappaTauAt would per point). */
+function addInto(a: Float64Array, b: Float64Array, out: Float64Array): void {
+  for (let k = 0; k < out.length; ++k) out[k] = a[k] + b[k];
+}
+
+/**
+ * First to third derivatives at grid point j for coefficients cs into d12[3..11] (d12[0..2], the
+ * position, is left alone: kappaTau does not read it); the sums of kappaTauAt (bit-identical).
+ */
+function derivativesAt(gb: GridBasis, cs: Float64Array, j: number, d12: Float64Array): void {
+  const K = gb.basis.K, vals = gb.values;
+  const iv = gb.interval[j];
+  const wrap = gb.basis.periodic && iv + ORDER > K;
+  const bb = 24 * j;
+  let a0 = 0, a1 = 0, a2 = 0, b0 = 0, b1 = 0, b2 = 0, c0 = 0, c1 = 0, c2 = 0;
+  for (let q = 0; q < ORDER; ++q) {
+    const mm = wrap ? (iv + q) % K : iv + q;
+    const cx = cs[mm], cy = cs[K + mm], cz = cs[2 * K + mm];
+    const v1 = vals[bb + 6 + q], v2 = vals[bb + 12 + q], v3 = vals[bb + 18 + q];
+    a0 += v1 * cx; a1 += v1 * cy; a2 += v1 * cz;
+    b0 += v2 * cx; b1 += v2 * cy; b2 += v2 * cz;
+    c0 += v3 * cx; c1 += v3 * cy; c2 += v3 * cz;
+  }
+  d12[3] = a0; d12[4] = a1; d12[5] = a2; d12[6] = b0; d12[7] = b1; d12[8] = b2; d12[9] = c0; d12[10] = c1; d12[11] = c2;
+}
+
+/** One replicate's kappa (and tau, when `tau` is given) on the grid, and the curvature vector's squared deviation added to curvatureVar. */
+function replicateKappa(
+  grid: GridBasis, cs: Float64Array, kappa: Float64Array, tau: Float64Array | null, off: number, kvec0: Float64Array, curvatureVar: Float64Array, d12: Float64Array, kt: Float64Array,
+): void {
+  for (let j = 0; j < grid.m; ++j) {
+    derivativesAt(grid, cs, j, d12);
+    kappaTau(d12, kt);
+    kappa[off + j] = kt[0];
+    if (tau) tau[off + j] = kt[1];
+    const ex = kt[2] - kvec0[3 * j], ey = kt[3] - kvec0[3 * j + 1], ez = kt[4] - kvec0[3 * j + 2];
+    curvatureVar[j] += ex * ex + ey * ey + ez * ez;
+  }
+}
+
+/** One replicate's tau on the grid. */
+function replicateTau(grid: GridBasis, cs: Float64Array, tau: Float64Array, off: number, d12: Float64Array, kt: Float64Array): void {
+  for (let j = 0; j < grid.m; ++j) {
+    derivativesAt(grid, cs, j, d12);
+    tau[off + j] = kappaTau(d12, kt)[1];
+  }
 }
 
 /**
@@ -199,21 +380,21 @@ export function bootstrapBands(inp: {
   const kappa = new Float64Array(R * m), tau = new Float64Array(R * m), curvatureVar = new Float64Array(m);
   const rnd = normalGenerator(inp.seed);
   const xi = new Float64Array(3 * K), dc = new Float64Array(3 * K);
-  const scratch: { db: Float64Array; rhs: Float64Array; sol: Float64Array; sqrtD?: Float64Array } = { db: new Float64Array(3 * K), rhs: new Float64Array(K), sol: new Float64Array(K) };
+  const scratch = drawScratch(K);
+  const db = scratch.db, work = scratch.sol3 ?? new Float64Array(3 * K);
   const sameFactor = kappaFit.factor === tauFit.factor;
+  const cs = new Float64Array(3 * K);
   for (let r = 0; r < R; ++r) {
     for (let k = 0; k < 3 * K; ++k) xi[k] = rnd();
-    drawCoefPerturbation(C, kappaFit.factor, xi, dc, scratch);
-    for (let j = 0; j < m; ++j) {
-      kappaTauAt(grid, kappaFit.coef, dc, j, d12, kt);
-      kappa[r * m + j] = kt[0];
-      if (sameFactor) tau[r * m + j] = kt[1];
-      const ex = kt[2] - kvec0[3 * j], ey = kt[3] - kvec0[3 * j + 1], ez = kt[4] - kvec0[3 * j + 2];
-      curvatureVar[j] += ex * ex + ey * ey + ez * ez;
-    }
+    // One draw of dB serves both factors (as drawCoefPerturbation twice, without the second product).
+    drawRhs(C, xi, db, scratch);
+    solveLdl3(kappaFit.factor, db, dc, work);
+    addInto(kappaFit.coef, dc, cs);
+    replicateKappa(grid, cs, kappa, sameFactor ? tau : null, r * m, kvec0, curvatureVar, d12, kt);
     if (!sameFactor) {
-      drawCoefPerturbation(C, tauFit.factor, xi, dc, scratch);
-      for (let j = 0; j < m; ++j) tau[r * m + j] = kappaTauAt(grid, tauFit.coef, dc, j, d12, kt)[1];
+      solveLdl3(tauFit.factor, db, dc, work);
+      addInto(tauFit.coef, dc, cs);
+      replicateTau(grid, cs, tau, r * m, d12, kt);
     }
   }
   for (let j = 0; j < m; ++j) curvatureVar[j] /= Math.max(R, 1) * inp.normalDims;

@@ -20,7 +20,7 @@ function cardinal(k: number, x: number): number {
  * PIECES[j * 6 + p]: coefficient of t^p in the basis function with local index j (0..5) on an
  * interval, t in [0, 1). Basis j is the cardinal piece B5(t + 5 - j).
  */
-const PIECES: Float64Array = (() => {
+export const PIECES: Float64Array = (() => {
   // Exact polynomial pieces by solving a Vandermonde system at 6 rational nodes (well conditioned).
   const nodes = [0, 0.2, 0.4, 0.6, 0.8, 1 - 1e-15];
   const out = new Float64Array(36);

@@ -1,13 +1,14 @@
-import { basisAt, locate, type SplineBasis } from "./bspline.js";
+import { PIECES, type SplineBasis } from "./bspline.js";
+import { hypot3 } from "./hypot3.js";
 
 /** Quintic: six active basis functions per interval (local copy: imported bindings are slow in hot loops). */
 const ORDER = 6;
-const coefIndex = (basis: SplineBasis, i: number, j: number): number => (basis.periodic ? (i + j) % basis.K : i + j);
 
 /**
  * Evaluates a spline space curve and its derivatives at u:
  * out[0..2] = r, out[3..5] = r', out[6..8] = r'', out[9..11] = r''' (derivatives in u).
- * `coef` holds x, y, z coefficient blocks of length K. No allocation: pass scratch arrays.
+ * `coef` holds x, y, z coefficient blocks of length K. No allocation; the scratch arguments are
+ * optional (scratchT[0] receives the local coordinate in the knot interval).
  */
 export function evalCurve(
   basis: SplineBasis,
@@ -15,23 +16,54 @@ export function evalCurve(
   u: number,
   nd: number,
   out: Float64Array,
-  scratchT: Float64Array = new Float64Array(1),
-  scratchB: Float64Array = new Float64Array(24),
+  scratchT?: Float64Array,
+  scratchB?: Float64Array,
 ): Float64Array {
-  const K = basis.K;
-  const i = locate(basis, u, scratchT);
-  basisAt(scratchT[0], basis.h, nd, scratchB);
-  out.fill(0, 0, 3 * (nd + 1));
+  // locate() and basisAt() inlined with the same arithmetic (bit-identical), summing straight into
+  // twelve locals; scratchB is no longer used (kept for callers).
+  void scratchB;
+  const K = basis.K, h = basis.h, nseg = basis.nseg;
+  let x = (u - basis.u0) / h;
+  let i: number;
+  if (basis.periodic) {
+    x -= Math.floor(x / nseg) * nseg;
+    i = Math.floor(x);
+    if (i >= nseg) i = nseg - 1;
+  } else {
+    i = Math.floor(x);
+    if (i < 0) i = 0;
+    else if (i >= nseg) i = nseg - 1;
+  }
+  const t = x - i;
+  if (scratchT) scratchT[0] = t;
+  const t2 = t * t, t3 = t2 * t, t4 = t3 * t, t5 = t4 * t;
+  const ih = 1 / h;
+  const wrap = basis.periodic && i + ORDER > K;
+  const P = PIECES;
+  let p0 = 0, p1 = 0, p2 = 0, a0 = 0, a1 = 0, a2 = 0, b0 = 0, b1 = 0, b2 = 0, c0 = 0, c1 = 0, c2 = 0;
   for (let j = 0; j < ORDER; ++j) {
-    const m = coefIndex(basis, i, j);
+    const m = wrap ? (i + j) % K : i + j;
     const cx = coef[m], cy = coef[K + m], cz = coef[2 * K + m];
-    for (let d = 0; d <= nd; ++d) {
-      const b = scratchB[d * 6 + j];
-      out[3 * d] += b * cx;
-      out[3 * d + 1] += b * cy;
-      out[3 * d + 2] += b * cz;
+    const q0 = P[j * 6], q1 = P[j * 6 + 1], q2 = P[j * 6 + 2], q3 = P[j * 6 + 3], q4 = P[j * 6 + 4], q5 = P[j * 6 + 5];
+    const v0 = q0 + q1 * t + q2 * t2 + q3 * t3 + q4 * t4 + q5 * t5;
+    p0 += v0 * cx; p1 += v0 * cy; p2 += v0 * cz;
+    if (nd >= 1) {
+      const v1 = (q1 + 2 * q2 * t + 3 * q3 * t2 + 4 * q4 * t3 + 5 * q5 * t4) * ih;
+      a0 += v1 * cx; a1 += v1 * cy; a2 += v1 * cz;
+      if (nd >= 2) {
+        const v2 = (2 * q2 + 6 * q3 * t + 12 * q4 * t2 + 20 * q5 * t3) * ih * ih;
+        b0 += v2 * cx; b1 += v2 * cy; b2 += v2 * cz;
+        if (nd >= 3) {
+          const v3 = (6 * q3 + 24 * q4 * t + 60 * q5 * t2) * ih * ih * ih;
+          c0 += v3 * cx; c1 += v3 * cy; c2 += v3 * cz;
+        }
+      }
     }
   }
+  out[0] = p0; out[1] = p1; out[2] = p2;
+  if (nd >= 1) { out[3] = a0; out[4] = a1; out[5] = a2; }
+  if (nd >= 2) { out[6] = b0; out[7] = b1; out[8] = b2; }
+  if (nd >= 3) { out[9] = c0; out[10] = c1; out[11] = c2; }
   return out;
 }
 
@@ -81,7 +113,7 @@ export function arcTable(basis: SplineBasis, coef: Float64Array, per = 4): ArcTa
   const out = new Float64Array(12), st = new Float64Array(1), sb = new Float64Array(24);
   const sp = (x: number) => {
     evalCurve(basis, coef, x, 1, out, st, sb);
-    return Math.hypot(out[3], out[4], out[5]);
+    return hypot3(out[3], out[4], out[5]);
   };
   for (let k = 0; k <= m; ++k) {
     u[k] = basis.u0 + k * du;

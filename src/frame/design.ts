@@ -38,6 +38,20 @@ export function normalEquations(
   const K = basis.K;
   const G = makeSkyline(envelope(K, ORDER - 1, basis.periodic));
   const rhs = new Float64Array(3 * K);
+  const rowBase = new Int32Array(K);
+  for (let r = 0; r < K; ++r) rowBase[r] = G.offset[r] - G.first[r];
+  const sums = new Float64Array(2);
+  // The loop over the points is a function of its own that returns nothing: code the JIT compiles
+  // on the stack mid-loop then covers the rest of it (no deoptimisation at a later statement).
+  accumulateNormal(basis, u, xyz, w, G.data, rowBase, rhs, sums);
+  return { G, rhs, yWy: sums[0], wSum: sums[1] };
+}
+
+/** The per-point sums of {@link normalEquations}; sums[0] = yWy, sums[1] = sum of weights. */
+function accumulateNormal(
+  basis: SplineBasis, u: Float64Array, xyz: Float64Array, w: Float64Array, gd: Float64Array, rowBase: Int32Array, rhs: Float64Array, sums: Float64Array,
+): void {
+  const K = basis.K;
   const tOut = new Float64Array(1), b = new Float64Array(24), idx = new Int32Array(ORDER);
   let yWy = 0, wSum = 0;
   const n = u.length;
@@ -50,20 +64,23 @@ export function normalEquations(
     yWy += wp * (x * x + y * y + z * z);
     wSum += wp;
     for (let j = 0; j < ORDER; ++j) idx[j] = coefIndex(basis, i, j);
+    // Each entry of G gets one term per point (distinct coefficient pairs), so the sums run in point
+    // order whatever the order within a point; rowBase[m] + q addresses entry (m, q), m >= q.
     for (let j = 0; j < ORDER; ++j) {
       const bj = wp * b[j], m = idx[j];
       rhs[m] += bj * x;
       rhs[K + m] += bj * y;
       rhs[2 * K + m] += bj * z;
+      const rm = rowBase[m];
       for (let k = 0; k <= j; ++k) {
-        // Inlined skyAdd (hot loop): entry (max, min) of the lower envelope.
         const q = idx[k];
-        if (q <= m) G.data[G.offset[m] + q - G.first[m]] += bj * b[k];
-        else G.data[G.offset[q] + m - G.first[q]] += bj * b[k];
+        if (q <= m) gd[rm + q] += bj * b[k];
+        else gd[rowBase[q] + m] += bj * b[k];
       }
     }
   }
-  return { G, rhs, yWy, wSum };
+  sums[0] = yWy;
+  sums[1] = wSum;
 }
 
 /**

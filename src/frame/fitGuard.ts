@@ -30,6 +30,28 @@ export function checkClosable(y: Float64Array, medianStep: number, file: string,
     `the wire was declared closed but its ends are ${say(gap)} apart (${(gap / medianStep).toFixed(0)} sample steps, ${((100 * gap) / total).toFixed(0)}% of its length): fit it open (--open), or give a trace whose ends meet`);
 }
 
+/**
+ * Ascending copy of v. Foot-point parameters are nearly in order (noise swaps neighbours only), so
+ * an insertion sort costs O(n + swaps); past 8 moves per value (or at a NaN) it hands over to the
+ * native sort. The same values as `v.slice().sort()` (a sorted array of numbers is unique).
+ */
+export function sortedCopy(v: Float64Array): Float64Array {
+  const a = v.slice();
+  const n = a.length;
+  let budget = 8 * n;
+  for (let i = 1; i < n; ++i) {
+    const x = a[i];
+    if (x !== x) return v.slice().sort(); // NaN: the native order (last)
+    let j = i - 1;
+    if (!(a[j] > x)) continue;
+    while (j >= 0 && a[j] > x) { a[j + 1] = a[j]; --j; }
+    a[j + 1] = x;
+    budget -= i - j;
+    if (budget < 0) return a.sort();
+  }
+  return a;
+}
+
 /** What one pass produced, as the guard needs it (canonical units). */
 export interface PassState {
   /** Fitted curve length. */
@@ -70,7 +92,7 @@ export function checkPass(state: PassState, referenceLength: number, file: strin
   }
   // Gaps between consecutive parameters (sorted copy: native typed-array sort), then the indices
   // of the widest gap only if it fails.
-  const su = u.slice().sort();
+  const su = sortedCopy(u);
   const gaps = new Float64Array(state.closed ? n : n - 1);
   for (let k = 1; k < n; ++k) gaps[k - 1] = su[k] - su[k - 1];
   if (state.closed) gaps[n - 1] = state.length - su[n - 1] + su[0];

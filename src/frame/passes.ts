@@ -9,6 +9,7 @@ import { makeBasis, type SplineBasis } from "./bspline.js";
 import { arcAt, arcTable, evalCurve, kappaTau, type ArcTable } from "./curve.js";
 import { checkPass, describeLength, LENGTH_RATIO_LIMIT } from "./fitGuard.js";
 import { InputError } from "../errors.js";
+import { hypot3 } from "./hypot3.js";
 import { medianOf } from "./robustStart.js";
 import { lambdaForWavelength, makeSmoother, selectSmoothing, wavelengthForLambda, type Selection, type Smoother } from "./smoother.js";
 import type { Start } from "./profile.js";
@@ -44,6 +45,59 @@ export function robustWeight(e: number, sc: number): number {
   if (r >= 8) return 0;
   const q = (r - 4) / 4;
   return (1 - q * q) * (1 - q * q);
+}
+
+/**
+ * Foot points: Newton on |r(u) - p_i|^2 from u[i] (steps limited to one knot interval, at most 4,
+ * clamped to an open domain), u[i] and the distance resid[i] updated in place; `turns` (when given)
+ * gets the turning angle per median step at each foot point. A function of its own so that the JIT
+ * optimises this loop alone, whatever the rest of the pass does.
+ */
+function projectFootPoints(
+  basis: SplineBasis, coef: Float64Array, y: Float64Array, u: Float64Array, resid: Float64Array, turns: Float64Array | null, medianStep: number, closed: boolean,
+): void {
+  const n = u.length;
+  const d12 = new Float64Array(12), st = new Float64Array(1), sb = new Float64Array(24), kt = new Float64Array(5);
+  for (let i = 0; i < n; ++i) {
+    let ui = u[i];
+    for (let it = 0; it < 4; ++it) {
+      evalCurve(basis, coef, ui, 2, d12, st, sb);
+      const ex = d12[0] - y[3 * i], ey = d12[1] - y[3 * i + 1], ez = d12[2] - y[3 * i + 2];
+      const g = ex * d12[3] + ey * d12[4] + ez * d12[5];
+      const sp2 = d12[3] * d12[3] + d12[4] * d12[4] + d12[5] * d12[5];
+      const hss = sp2 + ex * d12[6] + ey * d12[7] + ez * d12[8];
+      let du = -g / (hss > 0.1 * sp2 ? hss : sp2);
+      if (du > basis.h) du = basis.h;
+      else if (du < -basis.h) du = -basis.h;
+      ui += du;
+      if (!closed) ui = Math.min(Math.max(ui, basis.u0), basis.u0 + basis.nseg * basis.h);
+      if (Math.abs(du) < 1e-7 * basis.h) break;
+    }
+    u[i] = ui;
+    evalCurve(basis, coef, ui, turns ? 3 : 0, d12, st, sb);
+    resid[i] = hypot3(d12[0] - y[3 * i], d12[1] - y[3 * i + 1], d12[2] - y[3 * i + 2]);
+    if (turns) turns[i] = kappaTau(d12, kt)[0] * medianStep;
+  }
+}
+
+/** w[i] = robustWeight(resid[i], sc) (one loop per function: see projectFootPoints). */
+function robustWeights(resid: Float64Array, sc: number, w: Float64Array): void {
+  for (let i = 0; i < resid.length; ++i) w[i] = robustWeight(resid[i], sc);
+}
+
+/** u[i] = s(u[i]), the arc length of the table's curve. */
+function toArcLength(table: ArcTable, u: Float64Array, closed: boolean): void {
+  for (let i = 0; i < u.length; ++i) u[i] = arcAt(table, u[i], closed);
+}
+
+/** u[i] reduced to [0, length) on a ring. */
+function wrapInto(u: Float64Array, length: number): void {
+  for (let i = 0; i < u.length; ++i) u[i] -= Math.floor(u[i] / length) * length;
+}
+
+/** u[i] = min(max(u[i] - a0, 0), span). */
+function shiftClamp(u: Float64Array, a0: number, span: number): void {
+  for (let i = 0; i < u.length; ++i) u[i] = Math.min(Math.max(u[i] - a0, 0), span);
 }
 
 /** The settings the passes read. */
@@ -106,7 +160,6 @@ export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnos
   let sm: Smoother | undefined;
   let nearInterpolation = NaN;
   const sigmaKnown = resume ? resume.sigma : set.coordinateError !== undefined ? set.coordinateError / scale : undefined;
-  const d12 = new Float64Array(12), st = new Float64Array(1), sb = new Float64Array(24), kt = new Float64Array(5);
   const resid = new Float64Array(n);
   for (let pass = 0; pass <= set.passes; ++pass) {
     sm = makeSmoother(basis, u, y, w);
@@ -128,44 +181,25 @@ export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnos
     const coef = sel.fit.coef;
     const checkSparse = pass === 0 && !sparse && n <= 2000 && set.segments === undefined;
     const turns = new Float64Array(checkSparse ? n : 0);
-    for (let i = 0; i < n; ++i) {
-      let ui = u[i];
-      for (let it = 0; it < 4; ++it) {
-        evalCurve(basis, coef, ui, 2, d12, st, sb);
-        const ex = d12[0] - y[3 * i], ey = d12[1] - y[3 * i + 1], ez = d12[2] - y[3 * i + 2];
-        const g = ex * d12[3] + ey * d12[4] + ez * d12[5];
-        const sp2 = d12[3] * d12[3] + d12[4] * d12[4] + d12[5] * d12[5];
-        const hss = sp2 + ex * d12[6] + ey * d12[7] + ez * d12[8];
-        let du = -g / (hss > 0.1 * sp2 ? hss : sp2);
-        if (du > basis.h) du = basis.h;
-        else if (du < -basis.h) du = -basis.h;
-        ui += du;
-        if (!closed) ui = Math.min(Math.max(ui, basis.u0), basis.u0 + basis.nseg * basis.h);
-        if (Math.abs(du) < 1e-7 * basis.h) break;
-      }
-      u[i] = ui;
-      evalCurve(basis, coef, ui, checkSparse ? 3 : 0, d12, st, sb);
-      resid[i] = Math.hypot(d12[0] - y[3 * i], d12[1] - y[3 * i + 1], d12[2] - y[3 * i + 2]);
-      if (checkSparse) turns[i] = kappaTau(d12, kt)[0] * start.medianStep;
-    }
+    projectFootPoints(basis, coef, y, u, resid, checkSparse ? turns : null, start.medianStep, closed);
     // Robust weights from the residual norms (Rayleigh median in 3D: 1.1774 sigma; half-normal in
     // 2D: 0.6745 sigma), the scale floored at 10% of the median step so clean points where the fit
     // is biased (a tight bend, a clamped end) keep their weight (NUMERICS.md sec. 7 item 5).
     const sc = Math.max(medianOf(resid) / (normalDims === 2 ? 1.1774 : 0.6745), 0.1 * start.medianStep);
-    if (sc > 0) for (let i = 0; i < n; ++i) w[i] = robustWeight(resid[i], sc);
+    if (sc > 0) robustWeights(resid, sc, w);
     // Map parameters to the arc length of the current fit; pin an open wire's end points to the
     // ends of the domain (else the open ends drift from pass to pass).
     const table = arcTable(basis, coef);
-    for (let i = 0; i < n; ++i) u[i] = arcAt(table, u[i], closed);
+    toArcLength(table, u, closed);
     if (closed) {
-      for (let i = 0; i < n; ++i) u[i] -= Math.floor(u[i] / table.length) * table.length;
+      wrapInto(u, table.length);
       span = table.length;
     } else {
       // The domain of the next pass runs from the first point's foot point to the last one's.
       const a0 = u[0], a1 = u[n - 1];
       span = a1 - a0;
       if (!(span > 0)) span = NaN;
-      for (let i = 0; i < n; ++i) u[i] = Math.min(Math.max(u[i] - a0, 0), span);
+      shiftClamp(u, a0, span);
       u[0] = 0; u[n - 1] = span;
     }
     checkPass({ length: span, u, resid, sigma: sel.sigmaFrom === "unknown" ? 0 : sel.sigma, closed, knotInterval: span / basis.nseg }, start.referenceLength, file, name, say);

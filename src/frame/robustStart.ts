@@ -4,9 +4,13 @@
  * Pure functions over interleaved xyz (any unit: every result is a ratio or in the input's unit).
  */
 import { canonicalFrame } from "./canonicalFrame.js";
+import { hypot3 } from "./hypot3.js";
 
-/** k-th smallest of a[0..count) (0-based), reordering a in place: Hoare's selection (Hoare 1961,
- * CACM 4:321, "Algorithm 65: find"), insertion sort below 16 values. O(count) expected. */
+/** k-th smallest of a[0..count) (0-based), reordering a in place so that a[0..k) <= a[k] <= a(k..count):
+ * Hoare's selection (Hoare 1961, CACM 4:321, "Algorithm 65: find"), insertion sort below 16 values,
+ * and above 600 values without NaN Floyd & Rivest's sampling bounds (1975, CACM 18:173, "Algorithm
+ * 489: SELECT", from memory), about half the comparisons; the k-th smallest is the same value
+ * whichever way it is found. O(count) expected. */
 export function selectInPlace(a: Float64Array, count: number, k: number): number {
   if (count <= 16) {
     for (let i = 1; i < count; ++i) {
@@ -15,6 +19,10 @@ export function selectInPlace(a: Float64Array, count: number, k: number): number
       while (j >= 0 && a[j] > v) { a[j + 1] = a[j]; --j; }
       a[j + 1] = v;
     }
+    return a[k];
+  }
+  if (count > 600 && !hasNaN(a, count)) {
+    floydRivest(a, 0, count - 1, k);
     return a[k];
   }
   let lo = 0, hi = count - 1;
@@ -33,6 +41,38 @@ export function selectInPlace(a: Float64Array, count: number, k: number): number
   return a[k];
 }
 
+function hasNaN(a: Float64Array, count: number): boolean {
+  for (let i = 0; i < count; ++i) if (a[i] !== a[i]) return true;
+  return false;
+}
+
+/** Floyd-Rivest selection of the k-th smallest in a[left..right] (no NaN), in place. */
+function floydRivest(a: Float64Array, left: number, right: number, k: number): void {
+  while (right > left) {
+    if (right - left > 600) {
+      // Recurse on a sample-sized range that holds the k-th smallest with high probability.
+      const n = right - left + 1, m = k - left + 1;
+      const z = Math.log(n), s = 0.5 * Math.exp((2 * z) / 3);
+      const sd = 0.5 * Math.sqrt((z * s * (n - s)) / n) * (m - n / 2 < 0 ? -1 : 1);
+      floydRivest(a, Math.max(left, Math.floor(k - (m * s) / n + sd)), Math.min(right, Math.floor(k + ((n - m) * s) / n + sd)), k);
+    }
+    const t = a[k];
+    let i = left, j = right;
+    let x = a[left]; a[left] = a[k]; a[k] = x;
+    if (a[right] > t) { x = a[right]; a[right] = a[left]; a[left] = x; }
+    while (i < j) {
+      x = a[i]; a[i] = a[j]; a[j] = x;
+      ++i; --j;
+      while (a[i] < t) ++i;
+      while (a[j] > t) --j;
+    }
+    if (a[left] === t) { x = a[left]; a[left] = a[j]; a[j] = x; }
+    else { ++j; x = a[j]; a[j] = a[right]; a[right] = x; }
+    if (j <= k) left = j + 1;
+    if (k <= j) right = j - 1;
+  }
+}
+
 /** Median of a[0..count), reordering a in place (the mean of the two middle values for an even count). */
 export function medianInPlace(a: Float64Array, count = a.length): number {
   if (count === 0) return NaN;
@@ -41,6 +81,59 @@ export function medianInPlace(a: Float64Array, count = a.length): number {
   let lo = -Infinity;
   for (let i = 0; i < count >> 1; ++i) if (a[i] > lo) lo = a[i];
   return 0.5 * (lo + hi);
+}
+
+/**
+ * Median of a[0..5) (not changed) by the 9-comparator sorting network for 5 inputs (Knuth, TAOCP
+ * vol. 3, sec. 5.3.4, from memory; checked against a full sort in test/frame/speedInvariance.test.ts).
+ * The same value as `medianInPlace(a, 5)`, without its insertion sort.
+ */
+export function median5(a: Float64Array): number {
+  return median5Of(a[0], a[1], a[2], a[3], a[4]);
+}
+
+/** {@link median5} of five numbers. */
+function median5Of(a0: number, a1: number, a2: number, a3: number, a4: number): number {
+  let t: number;
+  if (a0 > a1) { t = a0; a0 = a1; a1 = t; }
+  if (a3 > a4) { t = a3; a3 = a4; a4 = t; }
+  if (a2 > a4) { t = a2; a2 = a4; a4 = t; }
+  if (a2 > a3) { t = a2; a2 = a3; a3 = t; }
+  if (a0 > a3) { t = a0; a0 = a3; a3 = t; }
+  if (a0 > a2) { t = a0; a0 = a2; a2 = t; }
+  if (a1 > a4) { t = a1; a1 = a4; a4 = t; }
+  if (a1 > a3) { t = a1; a1 = a3; a3 = t; }
+  if (a1 > a2) { t = a1; a1 = a2; a2 = t; }
+  return a2;
+}
+
+/**
+ * Median of a[0..8) (not changed): the mean of the 4th and 5th smallest, as `medianInPlace(a, 8)`,
+ * by Batcher's odd-even merge sorting network for 8 inputs (19 comparators; Batcher 1968, AFIPS
+ * SJCC 32:307, from memory; checked against a full sort in test/frame/speedInvariance.test.ts).
+ */
+export function median8(a: Float64Array): number {
+  let a0 = a[0], a1 = a[1], a2 = a[2], a3 = a[3], a4 = a[4], a5 = a[5], a6 = a[6], a7 = a[7], t: number;
+  if (a0 > a1) { t = a0; a0 = a1; a1 = t; }
+  if (a2 > a3) { t = a2; a2 = a3; a3 = t; }
+  if (a4 > a5) { t = a4; a4 = a5; a5 = t; }
+  if (a6 > a7) { t = a6; a6 = a7; a7 = t; }
+  if (a0 > a2) { t = a0; a0 = a2; a2 = t; }
+  if (a1 > a3) { t = a1; a1 = a3; a3 = t; }
+  if (a4 > a6) { t = a4; a4 = a6; a6 = t; }
+  if (a5 > a7) { t = a5; a5 = a7; a7 = t; }
+  if (a1 > a2) { t = a1; a1 = a2; a2 = t; }
+  if (a5 > a6) { t = a5; a5 = a6; a6 = t; }
+  if (a0 > a4) { t = a0; a0 = a4; a4 = t; }
+  if (a1 > a5) { t = a1; a1 = a5; a5 = t; }
+  if (a2 > a6) { t = a2; a2 = a6; a6 = t; }
+  if (a3 > a7) { t = a3; a3 = a7; a7 = t; }
+  if (a2 > a4) { t = a2; a2 = a4; a4 = t; }
+  if (a3 > a5) { t = a3; a3 = a5; a5 = t; }
+  if (a1 > a2) { t = a1; a1 = a2; a2 = t; }
+  if (a3 > a4) { t = a3; a3 = a4; a4 = t; }
+  if (a5 > a6) { t = a5; a5 = a6; a6 = t; }
+  return 0.5 * (a3 + a4);
 }
 
 /** Median of the first `count` values (the input is not changed; NaN for none). */
@@ -54,7 +147,7 @@ export function medianOf(values: ArrayLike<number>, count = values.length): numb
 export function stepLengths(y: Float64Array): Float64Array {
   const n = y.length / 3;
   const st = new Float64Array(Math.max(n - 1, 0));
-  for (let i = 1; i < n; ++i) st[i - 1] = Math.hypot(y[3 * i] - y[3 * i - 3], y[3 * i + 1] - y[3 * i - 2], y[3 * i + 2] - y[3 * i - 1]);
+  for (let i = 1; i < n; ++i) st[i - 1] = hypot3(y[3 * i] - y[3 * i - 3], y[3 * i + 1] - y[3 * i - 2], y[3 * i + 2] - y[3 * i - 1]);
   return st;
 }
 
@@ -77,26 +170,79 @@ export interface CanonicalTrace {
  */
 export function toCanonical(xyz: Float64Array, planar: boolean): CanonicalTrace | null {
   const n = xyz.length / 3;
-  let cx = 0, cy = 0, cz = 0;
-  for (let i = 0; i < n; ++i) { cx += xyz[3 * i]; cy += xyz[3 * i + 1]; cz += xyz[3 * i + 2]; }
-  cx /= n; cy /= n; cz /= n;
-  let chord = 0;
-  for (let i = 1; i < n; ++i) chord += Math.hypot(xyz[3 * i] - xyz[3 * i - 3], xyz[3 * i + 1] - xyz[3 * i - 2], xyz[3 * i + 2] - xyz[3 * i - 1]);
+  const [sx, sy, sz] = coordinateSums(xyz);
+  const cx = sx / n, cy = sy / n, cz = sz / n;
+  const chord = chordLength(xyz);
   if (!(chord > 0) || !Number.isFinite(chord)) return null;
-  const y = new Float64Array(3 * n);
-  for (let i = 0; i < n; ++i) {
+  const y = centredScaled(xyz, cx, cy, cz, chord);
+  const Q = planar ? Float64Array.of(1, 0, 0, 0, 1, 0, 0, 0, 1) : canonicalFrame(y);
+  rotateInPlace(y, Q);
+  return { y, Q, centre: [cx, cy, cz], scale: chord };
+}
+
+// The loops of toCanonical, one per function (the JIT compiles each alone); the same sums in the same order.
+function coordinateSums(xyz: Float64Array): [number, number, number] {
+  let cx = 0, cy = 0, cz = 0;
+  for (let i = 0; i < xyz.length / 3; ++i) { cx += xyz[3 * i]; cy += xyz[3 * i + 1]; cz += xyz[3 * i + 2]; }
+  return [cx, cy, cz];
+}
+
+function chordLength(xyz: Float64Array): number {
+  let chord = 0;
+  for (let i = 1; i < xyz.length / 3; ++i) chord += hypot3(xyz[3 * i] - xyz[3 * i - 3], xyz[3 * i + 1] - xyz[3 * i - 2], xyz[3 * i + 2] - xyz[3 * i - 1]);
+  return chord;
+}
+
+function centredScaled(xyz: Float64Array, cx: number, cy: number, cz: number, chord: number): Float64Array {
+  const y = new Float64Array(xyz.length);
+  for (let i = 0; i < xyz.length / 3; ++i) {
     y[3 * i] = (xyz[3 * i] - cx) / chord;
     y[3 * i + 1] = (xyz[3 * i + 1] - cy) / chord;
     y[3 * i + 2] = (xyz[3 * i + 2] - cz) / chord;
   }
-  const Q = planar ? Float64Array.of(1, 0, 0, 0, 1, 0, 0, 0, 1) : canonicalFrame(y);
-  for (let i = 0; i < n; ++i) {
+  return y;
+}
+
+function rotateInPlace(y: Float64Array, Q: Float64Array): void {
+  for (let i = 0; i < y.length / 3; ++i) {
     const a = y[3 * i], b = y[3 * i + 1], c = y[3 * i + 2];
     y[3 * i] = Q[0] * a + Q[1] * b + Q[2] * c;
     y[3 * i + 1] = Q[3] * a + Q[4] * b + Q[5] * c;
     y[3 * i + 2] = Q[6] * a + Q[7] * b + Q[8] * c;
   }
-  return { y, Q, centre: [cx, cy, cz], scale: chord };
+}
+
+/** Distance of each point to the coordinate-wise median of its +-4 neighbours (see grossOutliers). */
+function neighbourhoodDistances(y: Float64Array, closed: boolean): Float64Array {
+  const n = y.length / 3;
+  const d = new Float64Array(n);
+  const bx = new Float64Array(2 * OUTLIER_HALF), by = new Float64Array(2 * OUTLIER_HALF), bz = new Float64Array(2 * OUTLIER_HALF);
+  for (let i = 0; i < n; ++i) {
+    const half = closed ? Math.min(OUTLIER_HALF, (n - 1) >> 1) : Math.min(OUTLIER_HALF, i, n - 1 - i);
+    let px: number, py: number, pz: number;
+    if (half === 0) {
+      const a = i === 0 ? 1 : n - 2, b = i === 0 ? 2 : n - 3;
+      px = 2 * y[3 * a] - y[3 * b]; py = 2 * y[3 * a + 1] - y[3 * b + 1]; pz = 2 * y[3 * a + 2] - y[3 * b + 2];
+    } else {
+      let c = 0;
+      if (half === OUTLIER_HALF && i >= OUTLIER_HALF && i + OUTLIER_HALF < n) {
+        // Interior: the neighbours without wrapping, in the same order as below.
+        for (let k = 1; k <= OUTLIER_HALF; ++k) {
+          const a = 3 * (i - k), b = 3 * (i + k);
+          bx[c] = y[a]; by[c] = y[a + 1]; bz[c] = y[a + 2]; ++c;
+          bx[c] = y[b]; by[c] = y[b + 1]; bz[c] = y[b + 2]; ++c;
+        }
+      } else for (let k = 1; k <= half; ++k) {
+        const a = closed ? (i - k + n) % n : i - k, b = closed ? (i + k) % n : i + k;
+        bx[c] = y[3 * a]; by[c] = y[3 * a + 1]; bz[c] = y[3 * a + 2]; ++c;
+        bx[c] = y[3 * b]; by[c] = y[3 * b + 1]; bz[c] = y[3 * b + 2]; ++c;
+      }
+      if (c === 8) { px = median8(bx); py = median8(by); pz = median8(bz); }
+      else { px = medianInPlace(bx, c); py = medianInPlace(by, c); pz = medianInPlace(bz, c); }
+    }
+    d[i] = hypot3(y[3 * i] - px, y[3 * i + 1] - py, y[3 * i + 2] - pz);
+  }
+  return d;
 }
 
 /** Half-width of the neighbourhood used to judge each point. */
@@ -120,25 +266,7 @@ export function grossOutliers(y: Float64Array, closed: boolean): Uint8Array {
   const n = y.length / 3;
   const keep = new Uint8Array(n).fill(1);
   if (n < 7) return keep;
-  const d = new Float64Array(n);
-  const bx = new Float64Array(2 * OUTLIER_HALF), by = new Float64Array(2 * OUTLIER_HALF), bz = new Float64Array(2 * OUTLIER_HALF);
-  for (let i = 0; i < n; ++i) {
-    const half = closed ? Math.min(OUTLIER_HALF, (n - 1) >> 1) : Math.min(OUTLIER_HALF, i, n - 1 - i);
-    let px: number, py: number, pz: number;
-    if (half === 0) {
-      const a = i === 0 ? 1 : n - 2, b = i === 0 ? 2 : n - 3;
-      px = 2 * y[3 * a] - y[3 * b]; py = 2 * y[3 * a + 1] - y[3 * b + 1]; pz = 2 * y[3 * a + 2] - y[3 * b + 2];
-    } else {
-      let c = 0;
-      for (let k = 1; k <= half; ++k) {
-        const a = closed ? (i - k + n) % n : i - k, b = closed ? (i + k) % n : i + k;
-        bx[c] = y[3 * a]; by[c] = y[3 * a + 1]; bz[c] = y[3 * a + 2]; ++c;
-        bx[c] = y[3 * b]; by[c] = y[3 * b + 1]; bz[c] = y[3 * b + 2]; ++c;
-      }
-      px = medianInPlace(bx, c); py = medianInPlace(by, c); pz = medianInPlace(bz, c);
-    }
-    d[i] = Math.hypot(y[3 * i] - px, y[3 * i + 1] - py, y[3 * i + 2] - pz);
-  }
+  const d = neighbourhoodDistances(y, closed);
   const medStep = medianOf(stepLengths(y));
   const scale = Math.max(medianInPlace(d.slice()), OUTLIER_SCALE_FLOOR * medStep);
   if (!(scale > 0)) return keep;
@@ -147,7 +275,7 @@ export function grossOutliers(y: Float64Array, closed: boolean): Uint8Array {
   // through its two neighbours. A point on the way (the start of a long straight segment, the far
   // end of one) forces no detour and is kept even where its neighbourhood median is far. Its scale
   // comes from at most 20000 points spread along the trace; only candidates are judged.
-  const dist = (a: number, b: number) => Math.hypot(y[3 * a] - y[3 * b], y[3 * a + 1] - y[3 * b + 1], y[3 * a + 2] - y[3 * b + 2]);
+  const dist = (a: number, b: number) => hypot3(y[3 * a] - y[3 * b], y[3 * a + 1] - y[3 * b + 1], y[3 * a + 2] - y[3 * b + 2]);
   const idx = (j: number) => (closed ? (j + n) % n : j);
   const detour = (i: number): number => {
     let best = Infinity;
@@ -160,11 +288,11 @@ export function grossOutliers(y: Float64Array, closed: boolean): Uint8Array {
     if (best !== Infinity) return best;
     const a = i === 0 ? 1 : n - 2, b = i === 0 ? 2 : n - 3;
     const ux = y[3 * a] - y[3 * b], uy = y[3 * a + 1] - y[3 * b + 1], uz = y[3 * a + 2] - y[3 * b + 2];
-    const ul = Math.hypot(ux, uy, uz) || 1;
+    const ul = hypot3(ux, uy, uz) || 1;
     const vx = y[3 * i] - y[3 * a], vy = y[3 * i + 1] - y[3 * a + 1], vz = y[3 * i + 2] - y[3 * a + 2];
-    const perp = Math.hypot(vy * uz - vz * uy, vz * ux - vx * uz, vx * uy - vy * ux) / ul;
+    const perp = hypot3(vy * uz - vz * uy, vz * ux - vx * uz, vx * uy - vy * ux) / ul;
     // Along the line (within 0.5 rad) the end point continues the wire, however far it is.
-    return perp > Math.sin(0.5) * Math.hypot(vx, vy, vz) ? perp : 0;
+    return perp > Math.sin(0.5) * hypot3(vx, vy, vz) ? perp : 0;
   };
   const stride = Math.max(1, Math.ceil(n / 20_000));
   const sample = new Float64Array(Math.ceil(n / stride));
@@ -185,13 +313,21 @@ export function runningMedian(y: Float64Array, half: number, closed: boolean): F
   const buf = new Float64Array(2 * half + 1);
   for (let i = 0; i < n; ++i) {
     const h = closed ? Math.min(half, (n - 1) >> 1) : Math.min(half, i, n - 1 - i);
+    if (h === 2 && i >= 2 && i + 2 < n) {
+      // Interior, +-2: the five values straight from y (the window needs no wrap here).
+      for (let c = 0; c < 3; ++c) {
+        const q = 3 * i + c;
+        out[q] = median5Of(y[q - 6], y[q - 3], y[q], y[q + 3], y[q + 6]);
+      }
+      continue;
+    }
     for (let c = 0; c < 3; ++c) {
       let m = 0;
       for (let k = -h; k <= h; ++k) {
         const j = closed ? (i + k + n) % n : i + k;
         buf[m++] = y[3 * j + c];
       }
-      out[3 * i + c] = medianInPlace(buf, m);
+      out[3 * i + c] = m === 5 ? median5(buf) : medianInPlace(buf, m);
     }
   }
   return out;
@@ -208,8 +344,8 @@ export function startParameter(y: Float64Array, closed: boolean): { u: Float64Ar
   const n = y.length / 3;
   const sm = runningMedian(y, n >= 60 ? 2 : 0, closed);
   const u = new Float64Array(n);
-  for (let i = 1; i < n; ++i) u[i] = u[i - 1] + Math.hypot(sm[3 * i] - sm[3 * i - 3], sm[3 * i + 1] - sm[3 * i - 2], sm[3 * i + 2] - sm[3 * i - 1]);
-  const span = closed ? u[n - 1] + Math.hypot(sm[0] - sm[3 * n - 3], sm[1] - sm[3 * n - 2], sm[2] - sm[3 * n - 1]) : u[n - 1];
+  for (let i = 1; i < n; ++i) u[i] = u[i - 1] + hypot3(sm[3 * i] - sm[3 * i - 3], sm[3 * i + 1] - sm[3 * i - 2], sm[3 * i + 2] - sm[3 * i - 1]);
+  const span = closed ? u[n - 1] + hypot3(sm[0] - sm[3 * n - 3], sm[1] - sm[3 * n - 2], sm[2] - sm[3 * n - 1]) : u[n - 1];
   return { u, span };
 }
 
@@ -234,8 +370,8 @@ export function referenceLength(y: Float64Array, closed: boolean): number {
     }
   }
   let len = 0;
-  for (let k = 1; k < blocks; ++k) len += Math.hypot(pts[3 * k] - pts[3 * k - 3], pts[3 * k + 1] - pts[3 * k - 2], pts[3 * k + 2] - pts[3 * k - 1]);
-  if (closed && blocks > 1) len += Math.hypot(pts[0] - pts[3 * blocks - 3], pts[1] - pts[3 * blocks - 2], pts[2] - pts[3 * blocks - 1]);
+  for (let k = 1; k < blocks; ++k) len += hypot3(pts[3 * k] - pts[3 * k - 3], pts[3 * k + 1] - pts[3 * k - 2], pts[3 * k + 2] - pts[3 * k - 1]);
+  if (closed && blocks > 1) len += hypot3(pts[0] - pts[3 * blocks - 3], pts[1] - pts[3 * blocks - 2], pts[2] - pts[3 * blocks - 1]);
   return len;
 }
 
@@ -255,32 +391,27 @@ export function differenceNoise(y: Float64Array, u: Float64Array, normalDims: 1 
   if (n < 7) return NaN;
   const r2 = new Float64Array(n);
   let m = 0;
-  const e = [0, 0, 0];
   for (let i = 2; i < n - 2; ++i) {
-    const t = [u[i - 2], u[i - 1], u[i + 1], u[i + 2]], x = u[i];
-    if (!(t[0] < t[1] && t[1] < x && x < t[2] && t[2] < t[3])) continue;
-    // Lagrange weights of the cubic through the four neighbours, evaluated at u_i.
-    const w = [0, 0, 0, 0];
-    for (let a = 0; a < 4; ++a) {
-      let p = 1;
-      for (let b = 0; b < 4; ++b) if (b !== a) p *= (x - t[b]) / (t[a] - t[b]);
-      w[a] = p;
-    }
-    const idx = [i - 2, i - 1, i + 1, i + 2];
-    for (let c = 0; c < 3; ++c) {
-      let acc = -y[3 * i + c];
-      for (let a = 0; a < 4; ++a) acc += w[a] * y[3 * idx[a] + c];
-      e[c] = acc;
-    }
+    const t0 = u[i - 2], t1 = u[i - 1], t2 = u[i + 1], t3 = u[i + 2], x = u[i];
+    if (!(t0 < t1 && t1 < x && x < t2 && t2 < t3)) continue;
+    // Lagrange weights of the cubic through the four neighbours, evaluated at u_i (each a product
+    // of three factors, left to right).
+    const w0 = ((x - t1) / (t0 - t1)) * ((x - t2) / (t0 - t2)) * ((x - t3) / (t0 - t3));
+    const w1 = ((x - t0) / (t1 - t0)) * ((x - t2) / (t1 - t2)) * ((x - t3) / (t1 - t3));
+    const w2 = ((x - t0) / (t2 - t0)) * ((x - t1) / (t2 - t1)) * ((x - t3) / (t2 - t3));
+    const w3 = ((x - t0) / (t3 - t0)) * ((x - t1) / (t3 - t1)) * ((x - t2) / (t3 - t2));
+    const ia = 3 * (i - 2), ib = 3 * (i - 1), ic = 3 * (i + 1), id = 3 * (i + 2), ii = 3 * i;
+    const e0 = -y[ii] + w0 * y[ia] + w1 * y[ib] + w2 * y[ic] + w3 * y[id];
+    const e1 = -y[ii + 1] + w0 * y[ia + 1] + w1 * y[ib + 1] + w2 * y[ic + 1] + w3 * y[id + 1];
+    const e2 = -y[ii + 2] + w0 * y[ia + 2] + w1 * y[ib + 2] + w2 * y[ic + 2] + w3 * y[id + 2];
     // Normal-plane part: remove the component along the chord through the neighbours.
-    let tx = y[3 * (i + 1)] - y[3 * (i - 1)], ty = y[3 * (i + 1) + 1] - y[3 * (i - 1) + 1], tz = y[3 * (i + 1) + 2] - y[3 * (i - 1) + 2];
-    const tl = Math.hypot(tx, ty, tz);
+    let tx = y[ic] - y[ib], ty = y[ic + 1] - y[ib + 1], tz = y[ic + 2] - y[ib + 2];
+    const tl = hypot3(tx, ty, tz);
     if (!(tl > 0)) continue;
     tx /= tl; ty /= tl; tz /= tl;
-    const along = e[0] * tx + e[1] * ty + e[2] * tz;
-    const f = 1 + w[0] * w[0] + w[1] * w[1] + w[2] * w[2] + w[3] * w[3];
-    const q = (e[0] * e[0] + e[1] * e[1] + e[2] * e[2] - along * along) / f;
-    r2[m++] = q;
+    const along = e0 * tx + e1 * ty + e2 * tz;
+    const f = 1 + w0 * w0 + w1 * w1 + w2 * w2 + w3 * w3;
+    r2[m++] = (e0 * e0 + e1 * e1 + e2 * e2 - along * along) / f;
   }
   if (m < 5) return NaN;
   return Math.sqrt(medianInPlace(r2, m) / (normalDims === 2 ? 1.3863 : 0.4549));

@@ -120,34 +120,36 @@ export function sqrtDiagonal(f: Skyline): Float64Array {
 /**
  * Selected inverse: the entries of A^{-1} on the envelope of A's factor, as a skyline with the same
  * shape, by the Takahashi recursion Z = D^{-1} L^{-1} + (I - L^T) Z, processed from the last row up.
- * Cost O(K b^2) for banded-plus-dense-tail envelopes.
+ * Cost O(K b^2) for banded-plus-dense-tail envelopes. `out`: optional storage for the result's data.
  */
-export function selectedInverse(f: Skyline): Skyline {
+export function selectedInverse(f: Skyline, out?: Float64Array): Skyline {
   const { n, first, offset, data } = f;
-  const z = { n, first, offset, data: new Float64Array(data.length) };
+  // Every envelope entry is written before it is read (rows are done from the last up), so `out`
+  // (storage of the same length, reused by the caller) needs no clearing.
+  const z = { n, first, offset, data: out ?? new Float64Array(data.length) };
   const colRows = columnPattern(first);
   const zd = z.data;
+  // base[r] + c addresses entry (r, c) of the envelope.
+  const base = new Int32Array(n);
+  for (let r = 0; r < n; ++r) base[r] = offset[r] - first[r];
   const lk = new Float64Array(n);
   for (let i = n - 1; i >= 0; --i) {
     const rows = colRows[i];
     const nr = rows.length;
-    for (let b = 0; b < nr; ++b) lk[b] = data[offset[rows[b]] + i - first[rows[b]]];
-    const d = data[offset[i] + i - first[i]];
+    for (let b = 0; b < nr; ++b) lk[b] = data[base[rows[b]] + i];
+    const d = data[base[i] + i];
     // Off-diagonal entries Z(j, i) for rows j > i in the pattern of column i, then the diagonal.
+    // Rows ascend, so Z(k, j) with the larger index as the row is Z(j, k) for b < a, else Z(k, j).
     for (let a = nr - 1; a >= 0; --a) {
-      const j = rows[a];
+      const j = rows[a], bj = base[j];
       let s = 0;
-      for (let b = 0; b < nr; ++b) {
-        const k = rows[b];
-        // Z(k, j) with the larger index as the row
-        const zkj = k >= j ? zd[offset[k] + j - first[k]] : zd[offset[j] + k - first[j]];
-        s -= lk[b] * zkj;
-      }
-      zd[offset[j] + i - first[j]] = s;
+      for (let b = 0; b < a; ++b) s -= lk[b] * zd[bj + rows[b]];
+      for (let b = a; b < nr; ++b) s -= lk[b] * zd[base[rows[b]] + j];
+      zd[bj + i] = s;
     }
     let s = d === 0 ? 0 : 1 / d;
-    for (let b = 0; b < nr; ++b) s -= lk[b] * zd[offset[rows[b]] + i - first[rows[b]]];
-    zd[offset[i] + i - first[i]] = s;
+    for (let b = 0; b < nr; ++b) s -= lk[b] * zd[base[rows[b]] + i];
+    zd[base[i] + i] = s;
   }
   return z;
 }

@@ -1,6 +1,6 @@
 import type { SplineBasis } from "./bspline.js";
 import { differencePenalty, normalEquations, type Normal } from "./design.js";
-import { factorLdl, makeSkyline, selectedInverse, solveLdl, symMul, type Skyline } from "./skyline.js";
+import { factorLdl, selectedInverse, solveLdl, symMul, type Skyline } from "./skyline.js";
 
 /**
  * A penalised spline smoother for one parametrisation: the normal equations, the penalty, and
@@ -48,13 +48,26 @@ export function wavelengthForLambda(lambda: number, rho: number, h: number): num
 
 /** Solves at one lambda. Cost O(K b^2). */
 export function solveAt(sm: Smoother, lambda: number): SmoothFit {
+  // No loops here: they sit in the leaf functions below, so the JIT's on-stack replacement of a
+  // loop never compiles this driver before its later calls have run (that deoptimised every call).
   const { G, rhs, yWy } = sm.normal;
-  const K = sm.basis.K;
-  const A = makeSkyline(G.first);
-  const P = sm.P;
-  for (let k = 0; k < A.data.length; ++k) A.data[k] = G.data[k] + lambda * P.data[k];
+  const A: Skyline = { n: G.n, first: G.first, offset: G.offset, data: combined(G.data, lambda, sm.P.data) };
   factorLdl(A, 0);
-  const coef = new Float64Array(3 * K);
+  const coef = new Float64Array(3 * sm.basis.K);
+  const rss = solveCoordinates(A, G, rhs, yWy, coef);
+  return { lambda, coef, factor: A, rss: Math.max(rss, 0) };
+}
+
+/** g + lambda p, entry by entry (G and P share their envelope). */
+function combined(g: Float64Array, lambda: number, p: Float64Array): Float64Array {
+  const out = new Float64Array(g.length);
+  for (let k = 0; k < out.length; ++k) out[k] = g[k] + lambda * p[k];
+  return out;
+}
+
+/** Coefficients of x, y, z into `coef` from the factor A, and the weighted RSS (yWy - 2 c.b + c.G c). */
+function solveCoordinates(A: Skyline, G: Skyline, rhs: Float64Array, yWy: number, coef: Float64Array): number {
+  const K = A.n;
   const tmp = new Float64Array(K), Gc = new Float64Array(K);
   let rss = yWy;
   for (let c = 0; c < 3; ++c) {
@@ -64,12 +77,17 @@ export function solveAt(sm: Smoother, lambda: number): SmoothFit {
     symMul(G, coef, c * K, Gc);
     for (let i = 0; i < K; ++i) rss += -2 * tmp[i] * b[i] + tmp[i] * Gc[i];
   }
-  return { lambda, coef, factor: A, rss: Math.max(rss, 0) };
+  return rss;
 }
 
 /** Effective degrees of freedom per coordinate, tr((G + lambda P)^-1 G), by the selected inverse. */
+const edfScratch = new WeakMap<Int32Array, Float64Array>();
+
 export function edfOf(sm: Smoother, fit: SmoothFit): number {
-  const Z = selectedInverse(fit.factor);
+  // The selected inverse is only summed here: its storage is reused per envelope.
+  let buf = edfScratch.get(fit.factor.first);
+  if (!buf || buf.length !== fit.factor.data.length) { buf = new Float64Array(fit.factor.data.length); edfScratch.set(fit.factor.first, buf); }
+  const Z = selectedInverse(fit.factor, buf);
   const G = sm.normal.G;
   let t = 0;
   for (let i = 0; i < G.n; ++i) {
@@ -159,25 +177,30 @@ export function gcvLevel(sm: Smoother, hintLogGcv?: number): { fit: SmoothFit; e
  * discrepancy principle, Reinsch 1967, Numer. Math. 10:177): it smooths more than GCV, which
  * derivatives want. null when RSS stays below the target up to the top of the range.
  */
-export function discrepancyLevel(sm: Smoother, sigma: number, normalDims: number, fromLog: number): SmoothFit | null {
+export function discrepancyLevel(sm: Smoother, sigma: number, normalDims: number, fromLog: number, fitAtFrom?: SmoothFit): SmoothFit | null {
   const n = sm.normal.wSum;
   const target = normalDims * n * sigma * sigma;
   const hi = sm.logLambdaRange[1];
   let left = fromLog, right = fromLog;
-  let fitRight = solveAt(sm, Math.pow(10, right));
+  // `fitAtFrom`: the caller's fit at 10^fromLog, when it has one (the same numbers as solving again).
+  let fitRight = fitAtFrom ?? solveAt(sm, Math.pow(10, right));
   if (fitRight.rss > target) return fitRight;
+  let fitLeft = fitRight;
   while (fitRight.rss < target && right < hi) {
     left = right;
+    fitLeft = fitRight;
     right = Math.min(hi, right + 1);
     fitRight = solveAt(sm, Math.pow(10, right));
   }
   if (fitRight.rss < target) return null;
   for (let it = 0; it < 40 && right - left > 1e-3; ++it) {
     const mid = 0.5 * (left + right);
-    if (solveAt(sm, Math.pow(10, mid)).rss <= target) left = mid;
+    const fitMid = solveAt(sm, Math.pow(10, mid));
+    if (fitMid.rss <= target) { left = mid; fitLeft = fitMid; }
     else right = mid;
   }
-  return solveAt(sm, Math.pow(10, left));
+  // The fit at 10^left was solved on the way (solving is deterministic: no need to solve again).
+  return fitLeft;
 }
 
 /**
@@ -205,11 +228,11 @@ export function selectSmoothing(sm: Smoother, normalDims: number, options: Selec
   if (options.sigmaKnown !== undefined) { sigma = options.sigmaKnown; sigmaFrom = "given"; }
   else if (options.sigmaFloor !== undefined && !(est >= options.sigmaFloor)) { sigma = options.sigmaFloor; sigmaFrom = "floor"; }
   const fromLog = Math.max(g.logLambda, options.minLambda !== undefined ? Math.log10(options.minLambda) : -Infinity);
-  let fit = sigma > 0 ? discrepancyLevel(sm, sigma, normalDims, fromLog) : null;
+  let fit = sigma > 0 ? discrepancyLevel(sm, sigma, normalDims, fromLog, fromLog === g.logLambda ? g.fit : undefined) : null;
   let rule: Selection["rule"] = "discrepancy";
   if (!fit) {
     rule = "gcv-x3";
     fit = solveAt(sm, Math.max(3 * Math.pow(10, g.logLambda), options.minLambda ?? 0));
   }
-  return { fit, edf: edfOf(sm, fit), sigma, sigmaFrom, lambdaGcv: Math.pow(10, g.logLambda), edfGcv: g.edf, rule, basisSegments };
+  return { fit, edf: fit === g.fit ? g.edf : edfOf(sm, fit), sigma, sigmaFrom, lambdaGcv: Math.pow(10, g.logLambda), edfGcv: g.edf, rule, basisSegments };
 }
