@@ -55,7 +55,6 @@ if (process.argv[2] === "--child") {
     const diagnostics: string[] = [];
     const start = cpuOf("robustStart", () => robustStart(trace, {}, diagnostics));
     let fit = cpuOf("runPasses", () => runPasses(trace, start, set, diagnostics));
-    const passLevel = fit.sel.fit.lambda;
     const lv = cpuOf("curvatureLevel", () => curvatureLevel(trace, start, fit, set.seed));
     if (Math.abs(lv.decades) > 1e-9) {
       const refit = cpuOf("refit", () => runPasses(trace, start, { passes: 1, lambda: lv.lambda, segments: fit.basis.nseg }, diagnostics, { u: fit.u, w: fit.w, span: fit.table.length, sigma: fit.sel.sigma }));
@@ -71,7 +70,7 @@ if (process.argv[2] === "--child") {
       for (let j = 0; j < mm; ++j) s[j] = Math.max(0, arcAt(fit.table, su[j], start.closed) - s0);
       return { u: su, traceIndex, s };
     });
-    const levels = cpuOf("chooseLevels", () => chooseLevels(trace, start, fit, samples, { ...set, tauPilot: passLevel }, diagnostics));
+    const levels = cpuOf("chooseLevels", () => chooseLevels(trace, start, fit, samples, set, diagnostics));
     cpuOf("fitBands", () => fitBands(trace, start, fit, levels, samples, set, diagnostics));
   }
   console.log(JSON.stringify({ n, ms, cpuMs: (cpu.user + cpu.system) / 1000, rssMB, segments: p.segments, kappaRelRms: Math.sqrt(e / m), stages }));
