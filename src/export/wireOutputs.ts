@@ -2,7 +2,7 @@ import { median } from "d3-array";
 import { interactions } from "../physics/interactions.js";
 import { reducedSystem } from "../physics/reducedSystem.js";
 import { buildReport } from "../report/buildReport.js";
-import { FLAG_END, PER_METRE, type LengthUnit } from "../types.js";
+import { FLAG_END, FLAG_JUNCTION_ZONE, PER_METRE, type LengthUnit } from "../types.js";
 import type { Analysis } from "./analyzeTrace.js";
 import { CHAIN_GEOMETRY_COLUMNS, CHAIN_MODEL_COLUMNS, CHAIN_TEXTURE_COLUMNS, chainCsvChunks, type ChainModel } from "./chainToCsv.js";
 import { brief } from "./brief.js";
@@ -153,8 +153,9 @@ export function exportWarnings(a: Analysis, spacing: number, unit: LengthUnit): 
   if (limit > 0) {
     for (const [name, arr] of [["curvature", p.kappa], ["torsion", p.tau]] as const) {
       let peak = 0, at = -1;
-      // samples near an open end are skipped: the fit's bias is larger there (FLAG_END)
-      for (let i = 0; i < p.n; ++i) if ((p.flags[i] & FLAG_END) === 0 && Number.isFinite(arr[i]) && Math.abs(arr[i]) > peak) { peak = Math.abs(arr[i]); at = i; }
+      // samples near an open end are skipped: the fit's bias is larger there (FLAG_END); so are
+      // those next to a junction of a network (FLAG_JUNCTION_ZONE): their geometry is the junction's
+      for (let i = 0; i < p.n; ++i) if ((p.flags[i] & (FLAG_END | FLAG_JUNCTION_ZONE)) === 0 && Number.isFinite(arr[i]) && Math.abs(arr[i]) > peak) { peak = Math.abs(arr[i]); at = i; }
       if (at >= 0 && 1 / peak < limit) {
         const what = t !== null && 1 / peak < THIN_WIRE_RATIO * t ? `${THIN_WIRE_RATIO} times the thickness (${brief(t * k)} ${unit})` : `the lattice spacing (${brief((d ?? 0) * k)} ${unit})`;
         w.push(
@@ -178,7 +179,7 @@ export function exportWarnings(a: Analysis, spacing: number, unit: LengthUnit): 
   // a short sharp feature merged into a stretch (shorter than the resolution): its model uses the stretch mean
   a.segments.forEach((g, idx) => {
     let peak = -Infinity, at = -1;
-    for (let i = g.i0; i < g.i1; ++i) if (p.kappa[i] > peak) { peak = p.kappa[i]; at = i; }
+    for (let i = g.i0; i < g.i1; ++i) if ((p.flags[i] & FLAG_JUNCTION_ZONE) === 0 && p.kappa[i] > peak) { peak = p.kappa[i]; at = i; }
     if (at >= 0 && Number.isFinite(g.kappaHi) && p.kappaLo[at] > 2 * Math.max(g.kappaHi, 0)) {
       w.push(
         `sharp bend: stretch ${idx + 1} (${g.kind}) contains curvature up to ${brief(peak / k)} 1/${unit} at s = ${brief(p.s[at] * k)} ${unit}, ` +

@@ -3,6 +3,7 @@ import { composeWarnings, GENERAL_CAUTION_PREFIX } from "../../src/export/compos
 import { exportWarnings } from "../../src/export/wireOutputs.js";
 import { buildModelDocument } from "../../src/export/modelDocument.js";
 import { analysisFixture } from "./analysisFixture.js";
+import { FLAG_JUNCTION_ZONE } from "../../src/types.js";
 
 const GENERAL = `${GENERAL_CAUTION_PREFIX}: thin-wire limit, no field`;
 const OPEN_END = "wall positions within one relaxation window of an open end are skipped (the wall would be expelled there)";
@@ -32,6 +33,14 @@ describe("exportWarnings and model.json warnings", () => {
     expect(w[0]).toMatch(/^thin-wire limit: the radius of curvature 1\/\u03ba = 13\.\d+ nm at s = .* is below 5 times the thickness \(4 nm\)/);
     const thin = { ...a, material: { ...a.material!, thickness: 1e-9 } };
     expect(exportWarnings(thin, 1e-9, "nm").some((x) => x.startsWith("thin-wire limit"))).toBe(false);
+  });
+
+  it("skip samples next to a network junction (flag 32): their curvature is the junction's", () => {
+    const a = analysisFixture({ material: true, pinning: false });
+    const flags = Uint8Array.from(a.profile.flags, (f) => f | FLAG_JUNCTION_ZONE);
+    const zoned = { ...a, profile: { ...a.profile, flags } };
+    expect(exportWarnings(zoned, 1e-9, "nm").some((x) => x.startsWith("thin-wire limit") || x.startsWith("sharp bend"))).toBe(false);
+    expect(exportWarnings(a, 1e-9, "nm").some((x) => x.startsWith("thin-wire limit"))).toBe(true);
   });
 
   it("model.json lists the general caution last and no field that does not exist", () => {
