@@ -22,17 +22,10 @@ if (process.argv[2] === "--child") {
   const { chooseLevels, curvatureLevel } = await import("../src/frame/levels.js");
   const { fitBands } = await import("../src/frame/bands.js");
   const { arcAt } = await import("../src/frame/curve.js");
-  const { normalStream } = await import("../test/support/rng.js");
+  const { scalingHelix } = await import("../test/support/speedCases.js");
   const n = Number(process.argv[3]);
-  const R = 50e-9, c = 10e-9, turns = Math.min(40, Math.max(2, n / 1000)), noise = 0.01;
-  const g = normalStream(7);
-  const xyz = new Float64Array(3 * n);
-  for (let i = 0; i < n; ++i) {
-    const t = (2 * Math.PI * turns * i) / (n - 1);
-    xyz[3 * i] = R * Math.cos(t) + noise * R * g();
-    xyz[3 * i + 1] = R * Math.sin(t) + noise * R * g();
-    xyz[3 * i + 2] = c * t + noise * R * g();
-  }
+  const R = 50e-9, c = 10e-9;
+  const xyz = scalingHelix(n);
   const trace = { xyz, dims: 3 as const, source: { file: "bench", unit: "nm" as const }, diagnostics: [] };
   const t0 = performance.now(), c0 = process.cpuUsage();
   const p = fitProfile(trace, { bootstrap: 200 });

@@ -14,8 +14,7 @@ import { readFileSync, writeFileSync } from "node:fs";
 import { fitProfile, type ProfileOptions } from "../src/frame/profile.js";
 import type { Profile, Trace } from "../src/types.js";
 import { helixCurve, sampleCurve, sampleCurveUneven, trefoilCurve, vivianiCurve, ellipseCurve, bendCurve, type TestCurve } from "../test/support/curves.js";
-import { normalStream } from "../test/support/rng.js";
-import { speedCaseDigests } from "../test/support/speedCases.js";
+import { scalingHelix, speedCaseDigests } from "../test/support/speedCases.js";
 
 const [mode, file] = process.argv.slice(2);
 const small = process.argv.includes("--small");
@@ -31,19 +30,6 @@ function trace(xyz: Float64Array, dims: 2 | 3, closed?: boolean): Trace {
 }
 function noisy(curve: TestCurve, n: number, rel: number, seed: number, uneven = false): Float64Array {
   return (uneven ? sampleCurveUneven : sampleCurve)(curve, n, rel * curve.radius, seed).xyz;
-}
-function bigHelix(n: number): Float64Array {
-  // The scaling benchmark's wire (bench/scaling.ts).
-  const R = 50e-9, c = 10e-9, turns = Math.min(40, Math.max(2, n / 1000)), noise = 0.01;
-  const g = normalStream(7);
-  const xyz = new Float64Array(3 * n);
-  for (let i = 0; i < n; ++i) {
-    const t = (2 * Math.PI * turns * i) / (n - 1);
-    xyz[3 * i] = R * Math.cos(t) + noise * R * g();
-    xyz[3 * i + 1] = R * Math.sin(t) + noise * R * g();
-    xyz[3 * i + 2] = c * t + noise * R * g();
-  }
-  return xyz;
 }
 function withOutliers(xyz: Float64Array, every: number, size: number): Float64Array {
   const out = xyz.slice();
@@ -67,7 +53,7 @@ const cases: [string, () => { t: Trace; o: ProfileOptions }][] = [
   ["viviani adaptive 3000", () => ({ t: trace(noisy(vivianiCurve(80e-9), 3000, 0.01, 20), 3, true), o: { adaptive: true } })],
   ["helix step 30000", () => ({ t: trace(noisy(helixCurve(50e-9, 10e-9, 12), 30000, 0.02, 17), 3), o: { step: 1e-9 } })],
   ["helix coordinateError 5000", () => ({ t: trace(noisy(helixCurve(50e-9, 15e-9, 6), 5000, 0.01, 18), 3), o: { coordinateError: 0.5e-9, seed: 9 } })],
-  ...(small ? [] : [["scaling helix 100000", () => ({ t: trace(bigHelix(100_000), 3), o: { bootstrap: 200 } })] as [string, () => { t: Trace; o: ProfileOptions }]]),
+  ...(small ? [] : [["scaling helix 100000", () => ({ t: trace(scalingHelix(100_000), 3), o: { bootstrap: 200 } })] as [string, () => { t: Trace; o: ProfileOptions }]]),
 ];
 
 const FIELDS = ["s", "x", "y", "z", "T", "N", "B", "kappa", "kappaLo", "kappaHi", "tau", "tauLo", "tauHi", "flags", "inputRow", "kappaSamples", "tauSamples"] as const;

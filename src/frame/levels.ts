@@ -12,6 +12,7 @@ import type { PassesResult } from "./passes.js";
 import type { Samples, Start } from "./profile.js";
 import { lambdaForWavelength, solveAt, wavelengthForLambda, type SmoothFit, type Smoother } from "./smoother.js";
 import type { Skyline } from "./skyline.js";
+import { hypot3 } from "./hypot3.js";
 import { symEigen3 } from "./symEigen3.js";
 import { balancedLevel, riskLevel } from "./torsionLevel.js";
 import { adaptiveCurvature } from "./adaptiveLevel.js";
@@ -61,18 +62,11 @@ export function curvatureLevel(
 ): CurvatureLevel {
   const { basis, smoother, sel, table, u, w } = fit;
   const down = options.down ?? 1, up = options.up ?? 2;
-  const closed = start.closed, length = table.length, n = u.length;
+  const closed = start.closed, length = table.length;
   const normalDims: 1 | 2 = trace.dims === 2 ? 1 : 2;
   const rho = smoother.normal.wSum / length;
-  const resolution = Math.max(wavelengthForLambda(sel.fit.lambda, rho, basis.h), 2 * basis.h, 2 / rho);
-  const d12 = new Float64Array(12), st = new Float64Array(1), sb = new Float64Array(24);
-  const tangent = new Float64Array(3 * n);
-  for (let i = 0; i < n; ++i) {
-    evalCurve(basis, sel.fit.coef, u[i], 1, d12, st, sb);
-    const sp = Math.hypot(d12[3], d12[4], d12[5]);
-    tangent[3 * i] = d12[3] / sp; tangent[3 * i + 1] = d12[4] / sp; tangent[3 * i + 2] = d12[5] / sp;
-  }
-  const C = rhsNoiseFactor(basis, u, w, tangent, sel.sigma, normalDims);
+  const resolution = resolutionLength(fit);
+  const C = rhsNoiseFactor(basis, u, w, unitTangents(basis, sel.fit.coef, u), sel.sigma, normalDims);
   const count = Math.min(600, Math.max(64, Math.ceil((10 * length) / resolution)));
   const gridU = uniformGrid(basis, count, closed);
   const interior = new Uint8Array(gridU.length);
@@ -85,6 +79,29 @@ export function curvatureLevel(
   const minLambda = start.minWavelength > 0 ? lambdaForWavelength(start.minWavelength, rho, basis.h) : 0;
   const lambda = Math.max(pilot.lambda * r.refinedFactor, minLambda);
   return { lambda, decades: Math.log10(lambda / sel.fit.lambda), atTop: r.atTop };
+}
+
+/**
+ * Resolution length of the passes' fit (canonical units): the half-power wavelength of the
+ * smoother's transfer function 1 / (1 + (lambda h^7 / rho) omega^8), bounded below by the knot
+ * spacing and the sampling.
+ */
+function resolutionLength(fit: PassesResult): number {
+  const { basis, smoother, sel, table } = fit;
+  const rho = smoother.normal.wSum / table.length;
+  return Math.max(wavelengthForLambda(sel.fit.lambda, rho, basis.h), 2 * basis.h, 2 / rho);
+}
+
+/** Unit tangent of the fit at each parameter (interleaved xyz), for the noise law. */
+function unitTangents(basis: SplineBasis, coef: Float64Array, u: Float64Array): Float64Array {
+  const d12 = new Float64Array(12), st = new Float64Array(1), sb = new Float64Array(24);
+  const n = u.length, tangent = new Float64Array(3 * n);
+  for (let i = 0; i < n; ++i) {
+    evalCurve(basis, coef, u[i], 1, d12, st, sb);
+    const sp = hypot3(d12[3], d12[4], d12[5]);
+    tangent[3 * i] = d12[3] / sp; tangent[3 * i + 1] = d12[4] / sp; tangent[3 * i + 2] = d12[5] / sp;
+  }
+  return tangent;
 }
 
 /** Running mean of v over +-half in s (s increasing). */
@@ -111,7 +128,8 @@ function interpolate(x: Float64Array, v: Float64Array, t: number): number {
 }
 
 /**
- * Curvature level: the passes' level (discrepancy rule; near-interpolation for sparse traces).
+ * Curvature level: the passes' level (after `curvatureLevel` and its refit in `fitProfile`; the
+ * discrepancy rule or near-interpolation where that rule does not apply).
  * Torsion level: the balancing rule (`balancedLevel`) on the interior grid, unless the wire is
  * planar (tau = 0 with its noise band) or the level was fixed by the user.
  * Refuses a fit whose resolution length exceeds the wire's length (it resolves nothing) unless the
@@ -127,24 +145,14 @@ export function chooseLevels(
   const y = start.canon.y;
   const n = u.length;
   const normalDims: 1 | 2 = trace.dims === 2 ? 1 : 2;
-  const rho = smoother.normal.wSum / length;
   const kappaFit = sel.fit;
-  // Resolution length: half-power wavelength of the smoother's transfer function
-  // 1 / (1 + (lambda h^7 / rho) omega^8), bounded below by the knot spacing and the sampling.
-  const resolution = Math.max(wavelengthForLambda(kappaFit.lambda, rho, basis.h), 2 * basis.h, 2 / rho);
+  const resolution = resolutionLength(fit);
   if (resolution > length && (closed || totalTurning(basis, kappaFit.coef, table.length) > 0.1)) {
     throw new InputError(trace.source.file, null, "points",
       `the fit resolves nothing: its resolution length (${describeLength(resolution * start.canon.scale, trace.source)}) exceeds the wire's length (${describeLength(length * start.canon.scale, trace.source)}); too few points or too much noise for this wire`);
   }
-  const d12 = new Float64Array(12), st = new Float64Array(1), sb = new Float64Array(24);
-  const tangent = new Float64Array(3 * n);
-  for (let i = 0; i < n; ++i) {
-    evalCurve(basis, kappaFit.coef, u[i], 1, d12, st, sb);
-    const sp = Math.hypot(d12[3], d12[4], d12[5]);
-    tangent[3 * i] = d12[3] / sp; tangent[3 * i + 1] = d12[4] / sp; tangent[3 * i + 2] = d12[5] / sp;
-  }
   const unknownNoise = sel.sigmaFrom === "unknown";
-  const C = rhsNoiseFactor(basis, u, w, tangent, unknownNoise ? start.sigmaFloor || 1e-9 : sel.sigma, normalDims);
+  const C = rhsNoiseFactor(basis, u, w, unitTangents(basis, kappaFit.coef, u), unknownNoise ? start.sigmaFloor || 1e-9 : sel.sigma, normalDims);
   // The bands vary on the resolution scale: 10 grid points per resolution length suffice.
   const gridCount = Math.min(4 * basis.nseg, Math.max(256, Math.ceil((10 * length) / resolution)));
   const gridU = samples.u.length <= gridCount ? samples.u : uniformGrid(basis, gridCount, closed);

@@ -8,6 +8,7 @@
  * ordered, of a shuffled one shuffled; the subsample also keeps dense noisy traces, whose steps are
  * mostly noise, from looking shuffled). Pure; lengths in any unit.
  */
+import { median } from "./median.js";
 
 /** The two order statistics of a trace. */
 export interface OrderStats {
@@ -23,11 +24,6 @@ export interface OrderStats {
 
 const MAX_POINTS = 2000;
 
-function median(a: Float64Array): number {
-  const s = a.slice().sort();
-  const n = s.length;
-  return n === 0 ? NaN : n % 2 ? s[(n - 1) >> 1] : 0.5 * (s[n / 2 - 1] + s[n / 2]);
-}
 
 /**
  * Order statistics of interleaved xyz points in file order. The EMST by Prim's algorithm on the

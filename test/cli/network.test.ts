@@ -3,27 +3,18 @@
  * validated against the shipped JSON Schema (ajv, draft 2020-12, strict). Invented meshes and
  * clouds (test/support/networks.ts); references: the skeletons they were built around.
  */
-import { mkdirSync, mkdtempSync, readFileSync, readdirSync, rmSync, writeFileSync } from "node:fs";
-import { tmpdir } from "node:os";
+import { readFileSync, readdirSync } from "node:fs";
 import { join } from "node:path";
 import { Ajv2020 } from "ajv/dist/2020.js";
-import { afterAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
 import schema from "../../src/export/schemas/network.schema.json" with { type: "json" };
 import { ladderSkeleton, skeletonCloud, stlBinary, tripodSkeleton, tubeUnionMesh } from "../support/networks.js";
-import { run } from "./harness.js";
+import { run, scratchFolders } from "./harness.js";
 
 const ajv = new Ajv2020({ allErrors: true, strict: true, allowUnionTypes: true });
 const validate = ajv.compile(schema);
-const root = mkdtempSync(join(tmpdir(), "twistline-network-"));
-afterAll(() => rmSync(root, { recursive: true, force: true }));
-let k = 0;
-function fresh(name: string, data: string | Uint8Array): { dir: string; input: string } {
-  const dir = join(root, `case${k++}`);
-  mkdirSync(dir);
-  const input = join(dir, name);
-  writeFileSync(input, data);
-  return { dir, input };
-}
+/** A fresh folder holding `name` with `data`. */
+const fresh = scratchFolders("network");
 
 const ladderStl = stlBinary(tubeUnionMesh(ladderSkeleton(150, 40, 60), 5, 1.5));
 

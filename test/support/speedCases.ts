@@ -6,6 +6,22 @@
 import { fitProfile, type ProfileOptions } from "../../src/frame/profile.js";
 import type { Profile, Trace } from "../../src/types.js";
 import { ellipseCurve, helixCurve, sampleCurve, vivianiCurve, type TestCurve } from "./curves.js";
+import { normalStream } from "./rng.js";
+
+/** The scaling benchmark's wire (bench/scaling.ts, bench/speedInvariance.ts): an invented noisy helix,
+ * radius 50 nm, rise 10 nm per radian, 1% noise, one turn per 1000 points (2 to 40 turns), seeded. */
+export function scalingHelix(n: number): Float64Array {
+  const R = 50e-9, c = 10e-9, turns = Math.min(40, Math.max(2, n / 1000)), noise = 0.01;
+  const g = normalStream(7);
+  const xyz = new Float64Array(3 * n);
+  for (let i = 0; i < n; ++i) {
+    const t = (2 * Math.PI * turns * i) / (n - 1);
+    xyz[3 * i] = R * Math.cos(t) + noise * R * g();
+    xyz[3 * i + 1] = R * Math.sin(t) + noise * R * g();
+    xyz[3 * i + 2] = c * t + noise * R * g();
+  }
+  return xyz;
+}
 
 function trace(curve: TestCurve, n: number, rel: number, seed: number, dims: 2 | 3, closed?: boolean): Trace {
   const xyz = sampleCurve(curve, n, rel * curve.radius, seed).xyz;

@@ -7,6 +7,8 @@ import type { WireNetwork } from "../network/types.js";
 import { KdTree } from "./kdTree.js";
 import { orderCloud } from "./orderCloud.js";
 import type { CloudOptions } from "./types.js";
+import { polylineLength } from "../mesh/polyline.js";
+import { median } from "../median.js";
 
 /** Options of `cloudNetwork`: the cloud options plus the width of the distance bins. */
 export interface CloudNetworkOptions extends CloudOptions {
@@ -14,11 +16,6 @@ export interface CloudNetworkOptions extends CloudOptions {
   readonly bin?: number;
 }
 
-function median(values: ArrayLike<number>): number {
-  const s = Float64Array.from(values).sort();
-  const n = s.length;
-  return n === 0 ? NaN : n % 2 ? s[(n - 1) >> 1] : 0.5 * (s[n / 2 - 1] + s[n / 2]);
-}
 
 /**
  * Splits an unordered point cloud sampled along a network of wires into branches, junctions and
@@ -200,7 +197,7 @@ export function cloudNetwork(xyz: Readonly<Float64Array>, file: string, options:
       for (let i = 0; i < m; i++) r.set(p.subarray(3 * (m - 1 - i), 3 * (m - i)), 3 * i);
       p = r;
     }
-    raw.push({ xyz: p, length: pathLength(ordered.path, chain.closed), from: chain.from, to: chain.to, closed: chain.closed, component: Math.max(0, pieceOf(members[chain.nodes[1] ?? first][0])), diagnostics: ordered.trace.diagnostics });
+    raw.push({ xyz: p, length: polylineLength(ordered.path, chain.closed), from: chain.from, to: chain.to, closed: chain.closed, component: Math.max(0, pieceOf(members[chain.nodes[1] ?? first][0])), diagnostics: ordered.trace.diagnostics });
   }
   if (skipped > 0) notes.push(`${skipped} branches with too few points (under 12 beyond the junction zones) left out`);
   if (raw.length === 0) throw new InputError(file, null, "points", "no branch long enough for a wire");
@@ -209,12 +206,3 @@ export function cloudNetwork(xyz: Readonly<Float64Array>, file: string, options:
   return assembleNetwork(raw, junctions, { source: makeSource(file, options.unit, options.pixelSize), zoneRadii: 2, fmtP, fmtL, diagnostics: notes });
 }
 
-function pathLength(p: Readonly<Float64Array>, closed: boolean): number {
-  const n = p.length / 3;
-  let L = 0;
-  for (let i = 1; i < n + (closed ? 1 : 0); i++) {
-    const a = 3 * (i - 1), b = 3 * (i % n);
-    L += Math.hypot(p[b] - p[a], p[b + 1] - p[a + 1], p[b + 2] - p[a + 2]);
-  }
-  return L;
-}

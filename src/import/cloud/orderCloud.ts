@@ -3,12 +3,9 @@ import { makeSource, formatLength, formatPoint } from "../mesh/units.js";
 import { UnionFind } from "../mesh/topology.js";
 import { KdTree } from "./kdTree.js";
 import type { CloudOptions, OrderedCloud, SideBranch } from "./types.js";
+import { polylineLength } from "../mesh/polyline.js";
+import { median } from "../median.js";
 
-function median(values: ArrayLike<number>): number {
-  const s = Float64Array.from(values).sort();
-  const n = s.length;
-  return n === 0 ? NaN : n % 2 ? s[(n - 1) / 2] : (s[n / 2 - 1] + s[n / 2]) / 2;
-}
 
 /**
  * Orders an unordered point cloud sampled along one wire into a curve, leaving out gross outliers.
@@ -253,12 +250,12 @@ function orderOnce(xyz: Readonly<Float64Array>, f: Forest, outlier: Uint8Array, 
   pathIds.forEach((v, i) => raw.set(xyz.subarray(3 * v, 3 * v + 3), 3 * i));
   const half = Math.max(1, Math.round((smoothFraction * m) / 2));
   let pathXyz = runningMean(raw, false, half);
-  let length = polyLength(pathXyz, false);
+  let length = polylineLength(pathXyz, false);
   let gap = Math.hypot(pathXyz[0] - pathXyz[3 * m - 3], pathXyz[1] - pathXyz[3 * m - 2], pathXyz[2] - pathXyz[3 * m - 1]);
   const closed = forceClosed ?? (m >= 8 && gap < closeGap * length);
   if (closed) {
     pathXyz = runningMean(raw, true, half);
-    length = polyLength(pathXyz, true);
+    length = polylineLength(pathXyz, true);
     gap = Math.hypot(pathXyz[0] - pathXyz[3 * m - 3], pathXyz[1] - pathXyz[3 * m - 2], pathXyz[2] - pathXyz[3 * m - 1]);
   }
   // cumulative arc length of the smoothed path
@@ -353,12 +350,3 @@ function runningMean(p: Float64Array, closed: boolean, half: number): Float64Arr
   return out;
 }
 
-function polyLength(p: Float64Array, closed: boolean): number {
-  const n = p.length / 3;
-  let L = 0;
-  for (let i = 1; i < n + (closed ? 1 : 0); i++) {
-    const a = 3 * (i - 1), b = 3 * (i % n);
-    L += Math.hypot(p[b] - p[a], p[b + 1] - p[a + 1], p[b + 2] - p[a + 2]);
-  }
-  return L;
-}

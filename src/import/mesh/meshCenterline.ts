@@ -1,12 +1,13 @@
 import { InputError } from "../../errors.js";
 import type { Trace } from "../../types.js";
 import { buildTriangleGrid, crossSection, type TriangleGrid } from "./crossSection.js";
-import { levelSetGraph } from "./levelSets.js";
+import { levelSetGraph, type LevelSetGraph } from "./levelSets.js";
 import { chordTangents, polylineLength, resample, runningMean } from "./polyline.js";
 import { skeletonPath } from "./skeletonPath.js";
 import { buildAdjacency, buildEdges, dijkstra, triangleComponents, UnionFind } from "./topology.js";
 import type { CenterlineOptions, Mesh } from "./types.js";
 import { formatLength, formatPoint, makeSource } from "./units.js";
+import { median } from "../median.js";
 
 /**
  * Centre line and local tube radius of each wire in a triangle mesh: one Trace per connected
@@ -107,21 +108,14 @@ export function extract(mesh: Mesh, tris: Readonly<Uint32Array>): { positions: F
   return { positions, index };
 }
 
-function median(values: number[]): number {
-  const s = [...values].sort((a, b) => a - b);
-  const n = s.length;
-  return n === 0 ? NaN : n % 2 ? s[(n - 1) / 2] : (s[n / 2 - 1] + s[n / 2]) / 2;
-}
-
-function wireOfComponent(
-  positions: Float64Array,
-  index: Uint32Array,
-  file: string,
-  name: string,
-  options: CenterlineOptions,
-  fmtP: (x: number, y: number, z: number) => string,
-  fmtL: (v: number) => string,
-): { xyz: Float64Array; closed: boolean; radius: Float64Array; spread: Float64Array; notes: string[] } | string {
+/**
+ * Steps 1 and 2 of the method for one component (shared with `meshNetwork`): geodesic distance from
+ * one end, then the level-set diagram with levels every half radius; the median loop radius. A
+ * string when the component is skipped (no extent, or a blob rather than a wire).
+ */
+export function componentLevelGraph(
+  positions: Float64Array, index: Uint32Array, name: string, fmtL: (v: number) => string,
+): { graph: LevelSetGraph; rEst: number; notes: string[] } | string {
   const nV = positions.length / 3, nT = index.length / 3;
   const notes: string[] = [];
   const edges = buildEdges(index, nV);
@@ -168,6 +162,23 @@ function wireOfComponent(
   const h = Math.max(Math.min(0.5 * rCoarse, dmax / 8), dmax / 20000);
   const graph = levelSetGraph(positions, index, edges, d, h);
   const rEst = median(graph.loops.map((q) => q.length / (2 * Math.PI)));
+  return { graph, rEst, notes };
+}
+
+
+function wireOfComponent(
+  positions: Float64Array,
+  index: Uint32Array,
+  file: string,
+  name: string,
+  options: CenterlineOptions,
+  fmtP: (x: number, y: number, z: number) => string,
+  fmtL: (v: number) => string,
+): { xyz: Float64Array; closed: boolean; radius: Float64Array; spread: Float64Array; notes: string[] } | string {
+  const nT = index.length / 3;
+  const level = componentLevelGraph(positions, index, name, fmtL);
+  if (typeof level === "string") return level;
+  const { graph, rEst, notes } = level;
   const path = skeletonPath(graph, (options.spurRadii ?? 2.5) * rEst);
   if (path.pruned > 0) notes.push(`${name}: pruned ${path.pruned} side spurs of the level-set graph (longest ${fmtL(path.prunedMax)})`);
   if (path.kind === "complex") {

@@ -4,11 +4,12 @@ import { splitGraph, type SkeletonGraph, type Terminal } from "../network/splitG
 import type { WireNetwork } from "../network/types.js";
 import { buildTriangleGrid, crossSection, type Section, type TriangleGrid } from "./crossSection.js";
 import { levelSetGraph } from "./levelSets.js";
-import { extendEnds, extract, medianEdge } from "./meshCenterline.js";
+import { componentLevelGraph, extendEnds, extract, medianEdge } from "./meshCenterline.js";
 import { chordTangents, polylineLength, resample, runningMean } from "./polyline.js";
-import { buildAdjacency, buildEdges, dijkstra, triangleComponents, UnionFind } from "./topology.js";
+import { triangleComponents, UnionFind } from "./topology.js";
 import type { CenterlineOptions, Mesh } from "./types.js";
 import { formatLength, formatPoint, makeSource } from "./units.js";
+import { median } from "../median.js";
 
 /** Options of `meshNetwork`: those of `meshCenterline` (its `branches` policy is not used) plus the junction settings. */
 export interface MeshNetworkOptions extends CenterlineOptions {
@@ -24,11 +25,6 @@ export interface MeshNetworkOptions extends CenterlineOptions {
 
 type Xyz = readonly [number, number, number];
 
-function median(values: ArrayLike<number>): number {
-  const s = Float64Array.from(values).sort();
-  const n = s.length;
-  return n === 0 ? NaN : n % 2 ? s[(n - 1) >> 1] : 0.5 * (s[n / 2 - 1] + s[n / 2]);
-}
 
 /**
  * Splits a branched tube mesh into a network of wires: junctions, free ends, and one centre line
@@ -110,50 +106,10 @@ function networkOfComponent(
   options: MeshNetworkOptions,
   fmtL: (v: number) => string,
 ): ComponentNetwork | string {
-  const nV = positions.length / 3, nT = index.length / 3;
-  const notes: string[] = [];
-  const edges = buildEdges(index, nV);
-  const adj = buildAdjacency(edges, positions, nV);
-  let boundaryEdges = 0, nonManifold = 0;
-  const boundary = new UnionFind(nV);
-  const onBoundary = new Uint8Array(nV);
-  for (let e = 0; e < edges.count; e++) {
-    const k = edges.triStart[e + 1] - edges.triStart[e];
-    if (k === 1) {
-      boundaryEdges++;
-      boundary.union(edges.a[e], edges.b[e]);
-      onBoundary[edges.a[e]] = onBoundary[edges.b[e]] = 1;
-    } else if (k > 2) nonManifold++;
-  }
-  if (nonManifold > 0) notes.push(`${name}: ${nonManifold} non-manifold edges (shared by more than 2 triangles)`);
-  let sources: number[];
-  if (boundaryEdges > 0) {
-    const loops = new Map<number, number[]>();
-    for (let v = 0; v < nV; v++) {
-      if (!onBoundary[v]) continue;
-      const r = boundary.find(v);
-      const l = loops.get(r);
-      if (l) l.push(v);
-      else loops.set(r, [v]);
-    }
-    sources = [...loops.values()].sort((a, b) => b.length - a.length)[0];
-    notes.push(`${name}: open surface with ${loops.size} boundary loops`);
-  } else {
-    const d0 = dijkstra(adj, nV, [0]);
-    let far = 0;
-    for (let v = 0; v < nV; v++) if (d0[v] > d0[far]) far = v;
-    sources = [far];
-  }
-  const d = dijkstra(adj, nV, sources);
-  let dmax = 0;
-  for (let v = 0; v < nV; v++) if (Number.isFinite(d[v]) && d[v] > dmax) dmax = d[v];
-  if (!(dmax > 0)) return `${name}: skipped: no extent`;
-  const coarse = levelSetGraph(positions, index, edges, d, dmax / 48);
-  const rCoarse = median(coarse.loops.map((q) => q.length / (2 * Math.PI)));
-  if (!(rCoarse > 0) || dmax < 2 * rCoarse) return `${name}: skipped: a blob, not a wire (${nT} triangles, extent ${fmtL(dmax)})`;
-  const h = Math.max(Math.min(0.5 * rCoarse, dmax / 8), dmax / 20000);
-  const graph = levelSetGraph(positions, index, edges, d, h);
-  const rEst = median(graph.loops.map((q) => q.length / (2 * Math.PI)));
+  const nT = index.length / 3;
+  const level = componentLevelGraph(positions, index, name, fmtL);
+  if (typeof level === "string") return level;
+  const { graph, rEst, notes } = level;
   // the skeleton graph: band pieces (at the mean of their loops' centroids) joined by the loops
   const L = graph.loops, nN = graph.nodes;
   const nodePos = new Float64Array(3 * nN), cnt = new Float64Array(nN);

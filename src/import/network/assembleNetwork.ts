@@ -2,6 +2,8 @@ import type { Source, Trace } from "../../types.js";
 import { angleDeg, cycleRank, endAxis, nearestPointToLines, type AxisLine } from "./junctionFit.js";
 import type { Terminal } from "./splitGraph.js";
 import type { NetworkBranch, NetworkEnd, NetworkJunction, NetworkNode, WireNetwork } from "./types.js";
+import { polylineLength } from "../mesh/polyline.js";
+import { median } from "../median.js";
 
 /** A branch as the mesh or cloud splitter found it, ordered from `from` to `to`. Metres. */
 export interface RawBranch {
@@ -39,21 +41,7 @@ export interface AssembleOptions {
   readonly diagnostics: readonly string[];
 }
 
-function polyLength(p: Readonly<Float64Array>, closed: boolean): number {
-  const n = p.length / 3;
-  let L = 0;
-  for (let i = 1; i < n + (closed ? 1 : 0); i++) {
-    const a = 3 * (i - 1), b = 3 * (i % n);
-    L += Math.hypot(p[b] - p[a], p[b + 1] - p[a + 1], p[b + 2] - p[a + 2]);
-  }
-  return L;
-}
 
-function median(v: ArrayLike<number>): number {
-  const s = Float64Array.from(v).sort();
-  const n = s.length;
-  return n === 0 ? NaN : n % 2 ? s[(n - 1) >> 1] : 0.5 * (s[n / 2 - 1] + s[n / 2]);
-}
 
 /**
  * Turns the splitter's branches and junctions into a {@link WireNetwork}: numbers everything (branches
@@ -68,7 +56,7 @@ export function assembleNetwork(raw: readonly RawBranch[], rawJunctions: readonl
   const zoneRadii = options.zoneRadii ?? 2;
   const axisRadii = options.axisRadii ?? 3;
   const notes = [...options.diagnostics];
-  const lengths = raw.map((b) => b.length ?? polyLength(b.xyz, b.closed));
+  const lengths = raw.map((b) => b.length ?? polylineLength(b.xyz, b.closed));
   const order = raw.map((_, i) => i).sort((a, b) => lengths[b] - lengths[a] || raw[a].xyz[0] - raw[b].xyz[0] || a - b);
   // ids by first appearance
   const junctionId = new Map<number, number>(), endId = new Map<number, number>();
