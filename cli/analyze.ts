@@ -51,7 +51,7 @@ export interface PipelineRequest extends PipelineSettings {
 /** Checks the pipeline options; throws ParameterError("<where>: --option: ...") on the first bad one. */
 export function checkPipelineFlags(where: string, input: string, flags: PipelineFlags): PipelineRequest {
   const req: { -readonly [K in keyof PipelineRequest]: PipelineRequest[K] } = {
-    inputs: checkInputFlags(where, input, flags),
+    inputs: checkInputFlags(where, input, flags, true),
     materialFile: flags.material ?? null,
     bootstrap: flags.bootstrap === undefined ? DEFAULT_BOOTSTRAP : parseCountOption(where, "--bootstrap", flags.bootstrap),
     seed: flags.seed === undefined ? DEFAULT_SEED : parseSeedOption(where, "--seed", flags.seed),

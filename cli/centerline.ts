@@ -48,7 +48,7 @@ export function checkCenterlineFlags(input: string, flags: CenterlineFlags): Cen
   const { branches: _policy, ...rest } = flags;
   const inputFlags: CenterlineFlags = split ? rest : flags;
   const req: { -readonly [K in keyof CenterlineRequest]: CenterlineRequest[K] } = {
-    ...checkInputFlags(WHERE, input, inputFlags),
+    ...checkInputFlags(WHERE, input, inputFlags, true),
     input,
     out: flags.out,
     quiet: flags.quiet === true,

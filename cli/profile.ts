@@ -101,9 +101,9 @@ export const BRANCH_POLICIES: readonly BranchPolicy[] = ["error", "longest"];
  * Checks --unit, --pixel-size, --format, --wire and --branches for `input`, the same way for every
  * command; throws ParameterError("<where>: --option: ...") on the first bad one. SVG drawings are in
  * user units: --pixel-size goes with them without --unit px, and --unit px may omit it (the root's
- * physical size calibrates the drawing).
+ * physical size calibrates the drawing). `splitAllowed`: the command also takes --branches split.
  */
-export function checkInputFlags(where: string, input: string, flags: InputFlags): InputRequest {
+export function checkInputFlags(where: string, input: string, flags: InputFlags, splitAllowed = false): InputRequest {
   const req: { -readonly [K in keyof InputRequest]: InputRequest[K] } = {};
   if (flags.unit !== undefined) req.unit = parseInputUnitOption(where, "--unit", flags.unit);
   if (flags.pixelSize !== undefined) req.pixelSize = parseLengthOption(where, "--pixel-size", flags.pixelSize);
@@ -113,7 +113,11 @@ export function checkInputFlags(where: string, input: string, flags: InputFlags)
     if (!(Number.isSafeInteger(wire) && wire >= 1)) throw new ParameterError(where, "--wire", `must be an integer >= 1 (got ${JSON.stringify(flags.wire)})`);
     req.wire = wire;
   }
-  if (flags.branches !== undefined) req.branches = parseChoiceOption(where, "--branches", flags.branches, BRANCH_POLICIES);
+  if (flags.branches !== undefined) {
+    // commands that split networks take "split" too (they handle it before the input checks)
+    const policy = parseChoiceOption(where, "--branches", flags.branches, splitAllowed ? [...BRANCH_POLICIES, "split"] : BRANCH_POLICIES);
+    if (policy !== "split") req.branches = policy;
+  }
   const format = req.format ?? (input === "-" ? null : formatOfPath(input));
   if (format === "svg") {
     if (req.unit !== undefined && req.unit !== "px") {

@@ -72,6 +72,7 @@ function settingsOf(options: ProfileOptions, n: number): Settings {
   if (options.lambda !== undefined && !(options.lambda > 0)) throw new ParameterError("profile", "lambda", `must be positive (got ${options.lambda})`);
   if (options.coordinateError !== undefined && !(options.coordinateError > 0 && Number.isFinite(options.coordinateError))) throw new ParameterError("profile", "coordinateError", `must be a positive length (got ${options.coordinateError})`);
   if (options.torsionBalance !== undefined && !(options.torsionBalance > 0)) throw new ParameterError("profile", "torsionBalance", `must be positive (got ${options.torsionBalance})`);
+  if (options.curvatureRule !== undefined && options.curvatureRule !== "risk" && options.curvatureRule !== "discrepancy") throw new ParameterError("profile", "curvatureRule", `must be "risk" or "discrepancy" (got ${JSON.stringify(options.curvatureRule)})`);
   // Dense traces converge in fewer foot-point passes (measured at 1e5 points: the same kappa error
   // to 1% with 2 passes as with 3).
   const s: { -readonly [K in keyof Settings]: Settings[K] } = {

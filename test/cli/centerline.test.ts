@@ -4,10 +4,9 @@
  * lengths are in nm in the files. References: for centre lines, the construction itself (the curve
  * each tube was built around); for curvature and torsion, the textbook closed forms named beside each check.
  */
-import { existsSync, mkdirSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from "node:fs";
-import { tmpdir } from "node:os";
+import { existsSync, readdirSync, readFileSync, writeFileSync } from "node:fs";
 import { join } from "node:path";
-import { afterAll, describe, expect, it } from "vitest";
+import { describe, expect, it } from "vitest";
 import { readTraceFile, readTracesFile } from "../../src/import/readTrace.js";
 import { FLAG_END, FLAG_TORSION_NOT_MEASURABLE } from "../../src/types.js";
 import { readCsv } from "../export/helixProfile.js";
@@ -16,19 +15,10 @@ import {
   bentWireCurve, cappedTube, distancesToTruth, helixCurve, implicitTube, threeTube, toObj, toPlyBinary, toStlBinary, truthPolyline,
   type CurveFn,
 } from "../support/tubes.js";
-import { run } from "./harness.js";
+import { run, scratchFolders } from "./harness.js";
 
-const root = mkdtempSync(join(tmpdir(), "twistline-centerline-"));
-afterAll(() => rmSync(root, { recursive: true, force: true }));
-let k = 0;
 /** A fresh folder holding `name` with `data`. */
-function fresh(name: string, data: string | Uint8Array): { dir: string; input: string } {
-  const dir = join(root, `case${k++}`);
-  mkdirSync(dir);
-  const input = join(dir, name);
-  writeFileSync(input, data);
-  return { dir, input };
-}
+const fresh = scratchFolders("centerline");
 const escape = (s: string) => s.replace(/[.*+?^${}()|[\]\\/]/g, "\\$&");
 
 /** Binary STL holding the triangles of both (two separate wires in one file). */
@@ -310,7 +300,7 @@ describe("bad input and bad options: one line, exit code 1, nothing written", ()
 
   const optionCases: [string[], string][] = [
     [["--out", "o.txt"], 'centerline: --out: must end in .csv, or be - for standard output (got "o.txt")'],
-    [["--out", "o.csv", "--branches", "some"], 'centerline: --branches: must be one of error, longest (got "some")'],
+    [["--out", "o.csv", "--branches", "some"], 'centerline: --branches: must be one of error, longest, split (got "some")'],
     [["--out", "o.csv", "--wire", "0"], 'centerline: --wire: must be an integer >= 1 (got "0")'],
     [["--out", "o.csv", "--wire", "x"], 'centerline: --wire: must be an integer >= 1 (got "x")'],
     [["--out", "o.csv", "--out-unit", "px"], 'centerline: --out-unit: must be one of "m", "um", "nm", "A" (got "px")'],

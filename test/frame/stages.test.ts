@@ -87,6 +87,14 @@ describe("curvature level (least estimated curvature error)", () => {
     { curve: helixCurve(1, 0.4, 4), n: 600, noise: 0.005 },
     { curve: bumpCurve(10, 0.6, 1), n: 600, noise: 0.01 },
   ];
+  it("refuses an unknown rule by name, and keeps the passes' level with \"discrepancy\"", () => {
+    const { xyz } = sampleCurve(helixCurve(1, 0.4, 2), 300, 0.01, 3);
+    const tr = { xyz, dims: 3 as const, source: { file: "h", unit: "m" as const }, diagnostics: [] };
+    expect(() => fitProfile(tr, { curvatureRule: "gcv" as "risk" })).toThrow('profile: curvatureRule: must be "risk" or "discrepancy" (got "gcv")');
+    const p = fitProfile(tr, { bootstrap: 0, curvatureRule: "discrepancy" });
+    expect(p.diagnostics.some((d) => d.startsWith("curvature: smoothing level"))).toBe(false);
+    expect(fitProfile(tr, { bootstrap: 0 }).diagnostics.some((d) => d.startsWith("curvature: smoothing level"))).toBe(true);
+  });
   for (const { curve, n, noise } of cases) {
     it(`${curve.name}: kappa error within 1.5x of the best fixed level of a quarter-decade scan (2 seeds)`, () => {
       const truth = denseTruth(curve, 20 * n);
