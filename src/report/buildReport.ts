@@ -8,7 +8,7 @@ import { banded, ENGINEERING, outsideBandReason, sig } from "./formatQuantity.js
 import type { ModelDocument, SegmentEntry } from "../export/modelDocument.js";
 import type { ResampledWire } from "../export/resampleWire.js";
 import { reducedSystem } from "../physics/reducedSystem.js";
-import { FLAG_BIAS, FLAG_END, PER_METRE } from "../types.js";
+import { FLAG_BIAS, FLAG_END, FLAG_JUNCTION_ZONE, PER_METRE } from "../types.js";
 import { curvatureColor, torsionColor } from "./colorScales.js";
 import { escapeHtml, inlineScript, scriptJson } from "./escapeHtml.js";
 import { KIND_STYLE } from "./kindStyle.js";
@@ -98,9 +98,10 @@ export function buildReport(input: ReportInput): string {
   const stretches: ShadedStretch[] = segs.map((g) => ({ s0: g.s0, s1: g.s1, kind: g.kind, label: `${g.index + 1} ${KIND_STYLE[g.kind].letter}` }));
   const sU = Float64Array.from(p.s, (v) => v * k);
   const inv = (x: Float64Array) => Float64Array.from(x, (v) => v / k);
-  // shaded zones: within one resolution length of an open end (flag 4), smoothing bias comparable to the band (flag 16)
+  // shaded zones: within one resolution length of an open end (flag 4), smoothing bias comparable to
+  // the band (flag 16), near a junction of a wire network (flag 32)
   const zones: Zone[] = [];
-  for (const [bit, kind] of [[FLAG_END, "end"], [FLAG_BIAS, "bias"]] as const) {
+  for (const [bit, kind] of [[FLAG_END, "end"], [FLAG_BIAS, "bias"], [FLAG_JUNCTION_ZONE, "junction"]] as const) {
     let start = -1;
     for (let i = 0; i <= p.n; ++i) {
       const on = i < p.n && (p.flags[i] & bit) !== 0;
@@ -364,7 +365,7 @@ Curvature that varies on scales shorter than the resolution length (${num(doc.ge
 ${saveable(kappaPlot, "kappa-plot")}
 ${saveable(tauPlot, "tau-plot")}
 <ul class="kinds">${kinds}</ul>
-<p class="small">Line: estimate; filled: 95% bootstrap band. Stretches are numbered above the plots.${zones.some((z) => z.kind === "end") ? " Grey shade: within one resolution length of an open end, where the fit's bias is larger." : ""}${zones.some((z) => z.kind === "bias") ? " Amber shade: the smoothing bias is comparable to the band (a feature near the resolution length), so the band may under-cover there." : ""} Torsion follows B\u2032 = \u2212\u03c4N (a right-handed helix has \u03c4 > 0); it is not drawn where the curvature cannot be told from zero.</p>
+<p class="small">Line: estimate; filled: 95% bootstrap band. Stretches are numbered above the plots.${zones.some((z) => z.kind === "end") ? " Grey shade: within one resolution length of an open end, where the fit's bias is larger." : ""}${zones.some((z) => z.kind === "bias") ? " Amber shade: the smoothing bias is comparable to the band (a feature near the resolution length), so the band may under-cover there." : ""}${zones.some((z) => z.kind === "junction") ? " Blue shade: near a junction of the wire network, where this branch meets others and its centre line is not that of a single wire." : ""} Torsion follows B\u2032 = \u2212\u03c4N (a right-handed helix has \u03c4 > 0); it is not drawn where the curvature cannot be told from zero.</p>
 </section>
 <section id="view3d"><h2>3D view</h2>
 <div class="controls" role="group" aria-label="colour by"><span>colour by:</span>

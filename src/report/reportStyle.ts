@@ -46,6 +46,7 @@ svg .magnons .dip { stroke: #2f8f83; stroke-width: 1.2; stroke-dasharray: 4 2; }
 svg .magnons .depth { stroke: #1d232b; stroke-width: 1; }
 svg .end-zone { fill: #d9d9d9; fill-opacity: 0.55; }
 svg .bias-zone { fill: #f0c36d; fill-opacity: 0.45; }
+svg .junction-zone { fill: #8fb8de; fill-opacity: 0.45; }
 svg .boundary { fill: none; stroke: #1d232b; stroke-width: 1.8; }
 svg .note { font-size: 11px; fill: #3a4049; }
 svg .points .bar { stroke: #1d232b; stroke-width: 1.1; }

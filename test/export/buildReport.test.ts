@@ -3,6 +3,7 @@ import { buildWireOutputs } from "../../src/export/wireOutputs.js";
 import { wireSummary } from "../../src/export/wireSummary.js";
 import { escapeHtml, inlineScript, scriptJson } from "../../src/report/escapeHtml.js";
 import { analysisFixture } from "./analysisFixture.js";
+import { FLAG_JUNCTION_ZONE } from "../../src/types.js";
 
 const EVIL = `wire<script>alert("x")</script>&'.csv`;
 const VIEWER = "/* viewer stub */ window.__viewer = '</script><!--';";
@@ -118,5 +119,20 @@ describe("buildReport numbers", () => {
     printedAs(m[1], s.tauAbsMean.value, "mean |tau|");
     printedAs(m[2], s.tauAbsMean.lo, "mean |tau| lo");
     printedAs(m[3], s.tauAbsMean.hi, "mean |tau| hi");
+  });
+});
+
+describe("buildReport zones", () => {
+  it("shades the samples of a network junction zone (flag 32) and says what the shade means", async () => {
+    const a = analysisFixture({ material: false, pinning: false, file: "arm.csv" });
+    const plain = (await buildWireOutputs(a, { unit: "nm", viewerScript: VIEWER })).files.find((f) => f.name === "report.html")!.data as string;
+    expect(plain).not.toContain('class="junction-zone"');
+    expect(plain).not.toContain("Blue shade");
+    const n = a.profile.n;
+    for (let i = n - Math.max(3, Math.floor(n / 10)); i < n; ++i) a.profile.flags[i] |= FLAG_JUNCTION_ZONE;
+    const html = (await buildWireOutputs(a, { unit: "nm", viewerScript: VIEWER })).files.find((f) => f.name === "report.html")!.data as string;
+    // one shaded run in each of the two profile plots (curvature, torsion)
+    expect((html.match(/class="junction-zone"/g) ?? []).length).toBe(2);
+    expect(html).toContain("Blue shade: near a junction of the wire network");
   });
 });

@@ -15,9 +15,10 @@ describe("profilePlot(input)", () => {
     expect(Math.max(...yTicks)).toBeGreaterThan(0.031);
   });
 
-  it("shades end zones and bias-flagged zones with their own classes, only where given", () => {
-    const svg = profilePlot({ ...base, zones: [{ s0: 5, s1: 15, kind: "end" }, { s0: 50, s1: 52, kind: "bias" }] });
+  it("shades end zones, bias-flagged zones and network junction zones with their own classes, only where given", () => {
+    const svg = profilePlot({ ...base, zones: [{ s0: 5, s1: 15, kind: "end" }, { s0: 50, s1: 52, kind: "bias" }, { s0: 90, s1: 105, kind: "junction" }] });
     expect((svg.match(/class="end-zone"/g) ?? []).length).toBe(1);
+    expect((svg.match(/class="junction-zone"/g) ?? []).length).toBe(1);
     expect((svg.match(/class="bias-zone"/g) ?? []).length).toBe(1);
     expect(profilePlot(base)).not.toContain("-zone");
   });

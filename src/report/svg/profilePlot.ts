@@ -15,7 +15,7 @@ export interface ShadedStretch {
 export interface Zone {
   readonly s0: number;
   readonly s1: number;
-  readonly kind: "end" | "bias";
+  readonly kind: "end" | "bias" | "junction";
 }
 
 /** Input of {@link profilePlot}: one quantity along the wire with its 95% band. */
