@@ -136,7 +136,7 @@ export function fitBands(
   for (let j = 0; j < m; ++j) {
     const sdK = fit.sel.sigmaFrom === "unknown" ? 0 : Math.sqrt(at(boot.curvatureVar, j));
     const kap = Math.hypot(kv[3 * j], kv[3 * j + 1], kv[3 * j + 2]);
-    const resolved = kap > 3 * sdK && kap > STRAIGHT_KAPPA;
+    let resolved = kap > 3 * sdK && kap > STRAIGHT_KAPPA;
     if (!(kap > STRAIGHT_KAPPA)) ++straightCount;
     if (R > 0) {
       kappaLo[j] = Math.max(0, kappa[j] + at(kLo, j) / L0);
@@ -147,6 +147,9 @@ export function fitBands(
       if (kap <= (normalDims === 2 ? 2.448 : 1.96) * sdK) kappaLo[j] = 0;
       kappaHi[j] = kappa[j] + at(kHi, j) / L0;
       if (at(kBias, j) > BIAS_RATIO_KAPPA) flags[j] |= FLAG_BIAS;
+      // A curvature band that reaches 0 (noise, or the bias of a feature near the resolution
+      // length) cannot tell the curvature from zero either: no torsion there.
+      if (!(kappaLo[j] > 0)) resolved = false;
     }
     if (trace.planarProjection) {
       flags[j] |= FLAG_TORSION_NOT_MEASURABLE;
