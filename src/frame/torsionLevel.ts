@@ -154,7 +154,7 @@ export function riskLevel(
     for (let a = 0; a < M; ++a) q[a] = kappaTauAt(grid, fit.coef, null, use[a], d12, kt)[quantity];
     for (let p = 0; p < probes; ++p) {
       drawCoefPerturbation(C, fit.factor, xis[p], dc, scratch);
-      for (let a = 0; a < M; ++a) qp[p * M + a] = kappaTauAt(grid, fit.coef, dc, use[a], d12, kt)[quantity] - q[a];
+      for (let a = 0; a < M; ++a) qp[a * probes + p] = kappaTauAt(grid, fit.coef, dc, use[a], d12, kt)[quantity] - q[a];
     }
     return { fit, q, qp };
   };
@@ -167,7 +167,7 @@ export function riskLevel(
       const d = lv.q[a] - base.q[a];
       let vd = 0, vk = 0;
       for (let p = 0; p < probes; ++p) {
-        const ek = lv.qp[p * M + a], e0 = base.qp[p * M + a];
+        const ek = lv.qp[a * probes + p], e0 = base.qp[a * probes + p];
         vd += (ek - e0) ** 2; vk += ek * ek;
       }
       // Each probe is one draw of the noise: the mean square over probes is the variance.
