@@ -16,6 +16,9 @@
  * `noiseKind`: `iso` (isotropic, default) or `normal` (noise in the true normal plane only).
  * `fixedAtLevel` = 1 runs every replicate's passes at the first replicate's level, so the level does
  * not move with the noise estimate.
+ * Environment: QUANTITY=tau scores the torsion (SDs relative to the RMS true torsion) instead of the
+ * curvature; CURVE=trefoil takes the invented trefoil knot (closed), CURVE=conical a conical helix, instead of the helix; OFFSETS=0,1,2
+ * sets the levels (decades about the discrepancy level).
  */
 import { robustStart } from "../src/frame/profile.js";
 import { runPasses, type PassesResult } from "../src/frame/passes.js";
@@ -24,14 +27,17 @@ import { drawCoefPerturbation, gridBasis, kappaTauAt, rhsNoiseFactor } from "../
 import { symmetricProbes } from "../src/frame/torsionLevel.js";
 import { evalCurve } from "../src/frame/curve.js";
 import { hypot3 } from "../src/frame/hypot3.js";
-import { helixCurve, sampleCurveUneven } from "../test/support/curves.js";
+import { conicalHelixCurve, denseTruth, helixCurve, numericKappaTau, sampleCurveUneven, trefoilCurve } from "../test/support/curves.js";
 import { normalStream } from "../test/support/rng.js";
 
 const N = Number(process.argv[2] ?? 1000), noise = Number(process.argv[3] ?? 0.01), reps = Number(process.argv[4] ?? 30);
 const ratio = Number(process.argv[5] ?? 3), kind = process.argv[6] ?? "iso", fixedLevel = process.argv[7] === "1";
-const R = 1, c = 0.4, k0 = R / (R * R + c * c);
-const curve = helixCurve(R, c, 4);
-const offsets = [-1, -0.5, 0, 0.5, 1];
+const quantity = process.env.QUANTITY === "tau" ? 1 : 0;
+const curve = process.env.CURVE === "trefoil" ? trefoilCurve(1) : process.env.CURVE === "conical" ? conicalHelixCurve(1, 3) : helixCurve(1, 0.4, 4);
+// The reference the SDs are relative to: the RMS of the true quantity along the curve.
+const dense = denseTruth(curve, 20000), trueQ = quantity ? dense.tau : dense.kappa;
+const k0 = Math.sqrt(trueQ.reduce((a, v) => a + v * v, 0) / trueQ.length);
+const offsets = (process.env.OFFSETS ?? "-1,-0.5,0,0.5,1").split(",").map(Number);
 const lo = Math.floor(0.1 * N), hi = Math.ceil(0.9 * N);
 
 /** Noisy samples: the same sampling (seed phase) for every replicate, fresh noise; `normal` removes the true tangential part. */
@@ -60,6 +66,9 @@ function tangents(fit: PassesResult): Float64Array {
   return out;
 }
 
+// The true quantity at each input point (relative to the reference), for the bias of the mean fit.
+const tTrue = sampleCurveUneven(curve, N, 0, 507, ratio).t;
+const qTrue = Float64Array.from(tTrue, (t) => numericKappaTau(curve, t)[quantity] / k0);
 const full = offsets.map(() => ({ s: new Float64Array(N), s2: new Float64Array(N) }));
 const fixedU = offsets.map(() => ({ s: new Float64Array(N), s2: new Float64Array(N) }));
 const probeVar = new Float64Array(offsets.length);
@@ -82,14 +91,14 @@ for (let rep = 0; rep < reps; ++rep) {
     const f = solveAt(fit.smoother, level * Math.pow(10, o));
     const q = new Float64Array(N);
     for (let i = 0; i < N; ++i) {
-      q[i] = kappaTauAt(gb, f.coef, null, i, d12, kt)[0];
+      q[i] = kappaTauAt(gb, f.coef, null, i, d12, kt)[quantity];
       const e = q[i] / scale / k0, pt = start.kept[i];
       full[l].s[pt] += e; full[l].s2[pt] += e * e;
     }
     let v = 0, cnt = 0;
     for (const xi of xis) {
       drawCoefPerturbation(C, f.factor, xi, dc, scratch);
-      for (let i = lo; i < hi; ++i) { v += ((kappaTauAt(gb, f.coef, dc, i, d12, kt)[0] - q[i]) / scale / k0) ** 2; ++cnt; }
+      for (let i = lo; i < hi; ++i) { v += ((kappaTauAt(gb, f.coef, dc, i, d12, kt)[quantity] - q[i]) / scale / k0) ** 2; ++cnt; }
     }
     probeVar[l] += v / cnt / reps;
   });
@@ -120,7 +129,7 @@ for (let rep = 0; rep < reps; ++rep) {
     offsets.forEach((o, l) => {
       const f = solveAt(sm, fit.sel.fit.lambda * Math.pow(10, o));
       for (let i = 0; i < n; ++i) {
-        const e = kappaTauAt(gb, f.coef, null, i, d12, kt)[0] / scale / k0;
+        const e = kappaTauAt(gb, f.coef, null, i, d12, kt)[quantity] / scale / k0;
         fixedU[l].s[i] += e; fixedU[l].s2[i] += e * e;
       }
     });
@@ -131,9 +140,18 @@ const sd = (acc: { s: Float64Array; s2: Float64Array }) => {
   for (let i = lo; i < hi; ++i) { const m = acc.s[i] / reps; v += ((acc.s2[i] / reps - m * m) * reps) / (reps - 1); }
   return Math.sqrt(v / (hi - lo));
 };
-console.log(`helix, N=${N}, noise ${noise} of the radius (${kind}), sampling ratio ${ratio}:1, ${reps} replicates, level ${fixedLevel ? "fixed" : "per replicate"}; noise estimate / truth ${(sigmaRatio / reps).toFixed(3)}`);
-console.log("decades  SD full fit  SD fixed params  SD probes  full/probes   (relative kappa SD, %)");
+console.log(`${curve.name} (${quantity ? "torsion" : "curvature"}), N=${N}, noise ${noise} of the radius (${kind}), sampling ratio ${ratio}:1, ${reps} replicates, level ${fixedLevel ? "fixed" : "per replicate"}; noise estimate / truth ${(sigmaRatio / reps).toFixed(3)}`);
+// RMS bias of the mean fit, less the noise left in a mean of `reps` replicates (its variance / reps).
+const bias = (acc: { s: Float64Array; s2: Float64Array }) => {
+  let v = 0;
+  for (let i = lo; i < hi; ++i) {
+    const m = acc.s[i] / reps, vi = ((acc.s2[i] / reps - m * m) * reps) / (reps - 1);
+    v += (m - qTrue[i]) ** 2 - vi / reps;
+  }
+  return Math.sqrt(Math.max(0, v / (hi - lo)));
+};
+console.log("decades  SD full fit  SD fixed params  SD probes  full/probes  bias full fit   (relative to the RMS true value, %)");
 offsets.forEach((o, l) => {
   const a = sd(full[l]), b = sd(fixedU[l]), p = Math.sqrt(probeVar[l]);
-  console.log(`${(o >= 0 ? "+" : "") + o.toFixed(2)}    ${(100 * a).toFixed(3).padStart(8)}    ${(100 * b).toFixed(3).padStart(8)}      ${(100 * p).toFixed(3).padStart(8)}    ${(a / p).toFixed(2).padStart(6)}`);
+  console.log(`${(o >= 0 ? "+" : "") + o.toFixed(2)}    ${(100 * a).toFixed(3).padStart(8)}    ${(100 * b).toFixed(3).padStart(8)}      ${(100 * p).toFixed(3).padStart(8)}    ${(a / p).toFixed(2).padStart(6)}   ${(100 * bias(full[l])).toFixed(3).padStart(8)}`);
 });
