@@ -298,8 +298,32 @@ export function grossOutliers(y: Float64Array, closed: boolean): Uint8Array {
   const sample = new Float64Array(Math.ceil(n / stride));
   for (let i = 0, c = 0; i < n; i += stride) sample[c++] = detour(i);
   const detourScale = Math.max(medianInPlace(sample), OUTLIER_SCALE_FLOOR * medStep);
-  for (let i = 0; i < n; ++i) if (d[i] > OUTLIER_CUT * scale && detour(i) > OUTLIER_CUT * detourScale) keep[i] = 0;
+  const steps = new Float64Array(2 * OUTLIER_HALF);
+  for (let i = 0; i < n; ++i) {
+    if (!(d[i] > OUTLIER_CUT * scale)) continue;
+    const dt = detour(i);
+    // The detour is also judged against the local spacing: where the trace is sampled sparsely (a
+    // coarse stretch after a dense one), every point's detour is large on the global scale, but a
+    // point on the way of its neighbours forces a detour of a fraction of their step.
+    if (dt > OUTLIER_CUT * detourScale && dt > OUTLIER_CUT * OUTLIER_SCALE_FLOOR * localStep(y, i, closed, steps)) keep[i] = 0;
+  }
   return keep;
+}
+
+/**
+ * Median step between consecutive neighbours of point i within +-4 (the two steps that touch i
+ * left out, so a wild point does not set its own scale).
+ */
+function localStep(y: Float64Array, i: number, closed: boolean, buf: Float64Array): number {
+  const n = y.length / 3;
+  let c = 0;
+  for (let k = -OUTLIER_HALF; k < OUTLIER_HALF; ++k) {
+    if (k === -1 || k === 0) continue;
+    let a = i + k, b = a + 1;
+    if (closed) { a = (a + n) % n; b = (b + n) % n; } else if (a < 0 || b >= n) continue;
+    buf[c++] = hypot3(y[3 * a] - y[3 * b], y[3 * a + 1] - y[3 * b + 1], y[3 * a + 2] - y[3 * b + 2]);
+  }
+  return c > 0 ? medianInPlace(buf, c) : 0;
 }
 
 /**

@@ -25,6 +25,13 @@ const k0 = R / (R * R + c * c), t0 = c / (R * R + c * c);
 const helix = helixCurve(R, c, 780e-9 / (2 * Math.PI * Math.hypot(R, c)));
 const clean = sampleCurve(helix, 400, 1e-9, 3).xyz;
 
+/** The clean helix with its first 200 points kept and then every `every`-th point only. */
+function thinnedTail(every: number): Float64Array {
+  const pts: number[] = [];
+  for (let i = 0; i < 400; ++i) if (i < 200 || i % every === 0) pts.push(clean[3 * i], clean[3 * i + 1], clean[3 * i + 2]);
+  return Float64Array.from(pts);
+}
+
 describe("robust start", () => {
   it("flags no point of clean traces (uneven sampling, 0.2-3% noise, 10 seeds) and every wild point", () => {
     let falseFlags = 0;
@@ -49,6 +56,13 @@ describe("robust start", () => {
     for (let i = 0; i <= 50; ++i) pts.push(i * 1e-9, 0, 0);
     pts.push(60e-9, 0, 0, 300e-9, 1e-9, 0);
     expect(Array.from(grossOutliers(Float64Array.from(pts), false)).every((v) => v === 1)).toBe(true);
+  });
+
+  it("keeps the points of a sparsely sampled stretch after a dense one (judged on the local spacing)", () => {
+    // The first half of the helix at every point, the second at every 15th: each point of the sparse
+    // half is far from its neighbours on the trace's median step, but on the way between them. Before
+    // the local spacing was used, one of them was dropped and the fit lost 27 nm of the wire.
+    expect(Array.from(grossOutliers(thinnedTail(15), false)).every((v) => v === 1)).toBe(true);
   });
 
   it("estimates the noise from arc-length neighbours whatever the sampling (within 10%)", () => {
@@ -117,6 +131,14 @@ describe("never a silent wrong answer", () => {
     pts.push(-100e-9, -2000e-9, 0);
     expect(() => fitProfile(trace(Float64Array.from(pts)))).toThrow(
       "w.csv: points: no points over 2000 nm of the wire between row 102 and row 103 (637x the median step): the fit would invent the wire there; trace it more evenly or split it at the gap",
+    );
+  });
+
+  it("refuses a trace whose second half is sampled too sparsely, instead of dropping that half as outliers", () => {
+    // Was: four of the sparse points dropped as gross outliers and a profile of half the wire (390 of
+    // 780 nm) with exit 0.
+    expect(() => fitProfile(trace(thinnedTail(40)))).toThrow(
+      "w.csv: points: no points over 129 nm of the wire between row 202 and row 204 (48x the median step): the fit would invent the wire there; trace it more evenly or split it at the gap",
     );
   });
 
