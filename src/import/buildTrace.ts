@@ -135,12 +135,17 @@ export function buildTrace(raw: RawTrace, file: string, options: TraceReadOption
   const diagnostics: string[] = [...(raw.diagnostics ?? [])];
 
   // The median non-zero step sets the duplicate tolerance (relative, so it works in any unit).
-  // Squared lengths throughout: the order, and so the median, is the same.
+  // Squared lengths throughout: the order, and so the median, is the same. Differences are taken
+  // over the largest coordinate, so their squares neither underflow (coordinates of 1e-200 m) nor
+  // overflow.
+  let big = 0;
+  for (let k = 0; k < 3 * n; ++k) big = Math.max(big, Math.abs(xyz[k]));
+  const inv = big > 0 ? 1 / big : 1;
   const steps2 = new Float64Array(Math.max(n - 1, 0));
   let nonZero = 0;
   for (let i = 1; i < n; ++i) {
     const j = 3 * i;
-    const dx = xyz[j] - xyz[j - 3], dy = xyz[j + 1] - xyz[j - 2], dz = xyz[j + 2] - xyz[j - 1];
+    const dx = (xyz[j] - xyz[j - 3]) * inv, dy = (xyz[j + 1] - xyz[j - 2]) * inv, dz = (xyz[j + 2] - xyz[j - 1]) * inv;
     const d2 = dx * dx + dy * dy + dz * dz;
     if (d2 > 0) steps2[nonZero++] = d2;
   }
@@ -154,7 +159,7 @@ export function buildTrace(raw: RawTrace, file: string, options: TraceReadOption
   for (let i = 0; i < n; ++i) {
     if (last >= 0) {
       const j = 3 * i, l = 3 * last;
-      const dx = xyz[j] - xyz[l], dy = xyz[j + 1] - xyz[l + 1], dz = xyz[j + 2] - xyz[l + 2];
+      const dx = (xyz[j] - xyz[l]) * inv, dy = (xyz[j + 1] - xyz[l + 1]) * inv, dz = (xyz[j + 2] - xyz[l + 2]) * inv;
       const d2 = dx * dx + dy * dy + dz * dz;
       if (d2 === 0 || d2 < tol2) {
         dropped.push(place(i));
@@ -175,7 +180,7 @@ export function buildTrace(raw: RawTrace, file: string, options: TraceReadOption
   for (let i = 0; i < n; ++i) if (keep[i]) { first = i; break; }
   if (kept > MIN_TRACE_POINTS && closed !== false) {
     const j = 3 * last, f = 3 * first;
-    const dx = xyz[j] - xyz[f], dy = xyz[j + 1] - xyz[f + 1], dz = xyz[j + 2] - xyz[f + 2];
+    const dx = (xyz[j] - xyz[f]) * inv, dy = (xyz[j + 1] - xyz[f + 1]) * inv, dz = (xyz[j + 2] - xyz[f + 2]) * inv;
     const d2 = dx * dx + dy * dy + dz * dz;
     if (d2 === 0 || d2 < tol2) {
       keep[last] = 0;

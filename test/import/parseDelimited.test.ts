@@ -161,6 +161,18 @@ describe("parseDelimited(text, file, options)", () => {
     expect(t.diagnostics).toEqual(["dropped 1 consecutive duplicate point (line 3)"]);
   });
 
+  it("tells distinct points from duplicates at any scale (steps of 1e-200 and 1e200 in the file's unit)", () => {
+    // Squared steps of 1e-200 underflow to 0 in floating point: every point looked a duplicate of the
+    // first ("need at least 4 distinct points, got 1") and the last one a closing point.
+    for (const f of [1e-200, 1e200]) {
+      const text = [[0, 0, 0], [1, 0, 0], [1, 1, 0], [0, 1, 1], [0, 2, 1], [1, 2, 2]].map((p) => p.map((v) => v * f).join(",")).join("\n");
+      const t = parseDelimited(text, "d.csv");
+      expect(t.xyz.length / 3).toBe(6);
+      expect(t.diagnostics).toEqual([]);
+      expect(t.closed).toBeUndefined();
+    }
+  });
+
   it("lists at most 10 duplicate lines", () => {
     const rows = ["0 0", "1 0", ...Array.from({ length: 12 }, () => "1 0"), "1 1", "0 1"];
     const t = parseDelimited(rows.join("\n"), "d.txt");
