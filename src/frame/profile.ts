@@ -6,7 +6,7 @@ import { checkClosable, describeLength, GAP_LIMIT } from "./fitGuard.js";
 import { detectClosed } from "./detectClosed.js";
 import { runPasses, type PassesResult } from "./passes.js";
 export { segmentCount } from "./passes.js";
-import { differenceNoise, grossOutliers, medianOf, referenceLength, startParameter, stepLengths, toCanonical, type CanonicalTrace } from "./robustStart.js";
+import { differenceNoise, findRetrace, grossOutliers, medianOf, referenceLength, startParameter, stepLengths, toCanonical, type CanonicalTrace } from "./robustStart.js";
 import { chooseLevels, curvatureLevel } from "./levels.js";
 
 /** Options of `fitProfile`; lengths in metres. */
@@ -158,6 +158,12 @@ export function robustStart(trace: Trace, options: ProfileOptions, diagnostics: 
   if (!(span > 0)) throw new InputError(file, null, "points", "all points coincide: the trace has zero length");
   const normalDims: 1 | 2 = planar ? 1 : 2;
   const sigmaDiff = differenceNoise(y, u, normalDims);
+  const back = findRetrace(y, closed, sigmaDiff, medianStep);
+  if (back) {
+    const end = closed ? (back.at + back.count) % kept.length : back.at + back.count;
+    throw new InputError(file, null, "points",
+      `the trace turns back on its own path near ${rowName(trace, kept[back.at])}: the next ${back.count} points (to ${rowName(trace, kept[end])}) run back over the points before it (within ${describeLength(back.within * canon.scale, trace.source)}); a wire cannot retrace itself: remove the retraced rows or split the file there`);
+  }
   // Noise floor: coordinates carry finitely many digits (1e-9 of the largest, below any text file);
   // a mesh centre line carries the tessellation's ripple, a fraction of the radius spread.
   let maxAbs = 0;

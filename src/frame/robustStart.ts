@@ -440,3 +440,78 @@ export function differenceNoise(y: Float64Array, u: Float64Array, normalDims: 1 
   if (m < 5) return NaN;
   return Math.sqrt(medianInPlace(r2, m) / (normalDims === 2 ? 1.3863 : 0.4549));
 }
+
+/** Where an ordered trace turns back along its own path. */
+export interface Retrace {
+  /** Index of the turning point. */
+  readonly at: number;
+  /** Points after it that run back over the path before it. */
+  readonly count: number;
+  /** The distance within which they lie on the earlier path (canonical units). */
+  readonly within: number;
+}
+
+/**
+ * The first place where the trace turns back along its own path (a traced skeleton walked out to a
+ * dead end and back, or one file holding both directions of a wire), or null. A wire cannot
+ * retrace itself: a fit would fold the path into a cusp and count the stretch twice.
+ * Tolerance: within = 4 noise SDs + 0.6 median steps. Progress: the median chord over k0 points
+ * divided by k0 (the net advance per point; noise comparable to the step inflates the step). At
+ * each point i, with k points advancing 2 tolerances and 4 more points (k <= 200): the screen asks
+ * that the path goes somewhere on both sides (|p_i - p_i-k| and |p_i+k - p_i| over half of k
+ * progresses) and comes back (|p_i+k - p_i-k| under half the shorter of the two). Confirmation: of the points p_i+j
+ * (j <= k) farther than 2 tolerances from p_i (at least 3 of them), 80% lie within the tolerance of
+ * an earlier point p_m (m < i) that is itself at least half as far from p_i: on the way back, not
+ * merely near the turn; the turn is then placed where p_i-k and p_i+k come closest. A real hairpin whose legs are farther apart than the tolerance is kept;
+ * a trace so dense that 200 steps span under 2 tolerances is not judged. Cost O(n) for the
+ * screen, O(k^2) per candidate.
+ */
+export function findRetrace(y: Float64Array, closed: boolean, sigma: number, step: number): Retrace | null {
+  const n = y.length / 3;
+  if (!(step > 0)) return null;
+  const at = (j: number) => (closed ? ((j % n) + n) % n : j);
+  const dist = (a: number, b: number) => {
+    const p = 3 * at(a), q = 3 * at(b);
+    return hypot3(y[p] - y[q], y[p + 1] - y[q + 1], y[p + 2] - y[q + 2]);
+  };
+  // Net progress per point: where the noise is comparable to the step, the step overstates it.
+  const k0 = Math.max(4, Math.ceil((8 * (sigma > 0 ? sigma : 0)) / step));
+  const chords = new Float64Array(closed ? n : Math.max(0, n - k0));
+  if (chords.length < 5) return null;
+  for (let i = 0; i < chords.length; ++i) chords[i] = dist(i + k0, i);
+  const progress = Math.min(step, medianInPlace(chords) / k0);
+  if (!(progress > 0)) return null;
+  const within = 4 * (sigma > 0 ? sigma : 0) + 0.6 * step;
+  const k = Math.min(200, Math.max(4, Math.ceil((2 * within) / progress) + 4));
+  if (n < 2 * k + 1) return null;
+  const first = closed ? 0 : k, last = closed ? n : n - k;
+  for (let i = first; i < last; ++i) {
+    const a = dist(i, i - k), b = dist(i + k, i);
+    if (a < 0.5 * k * progress || b < 0.5 * k * progress || dist(i + k, i - k) > 0.5 * Math.min(a, b)) continue;
+    let eligible = 0, hits = 0;
+    for (let j = 1; j <= k; ++j) {
+      const r = dist(i + j, i);
+      if (r <= 2 * within) continue;
+      ++eligible;
+      const lo = closed ? i - 2 * k : Math.max(0, i - 2 * k);
+      for (let m = lo; m < i; ++m) {
+        if (dist(i + j, m) <= within && dist(m, i) >= 0.5 * r) { ++hits; break; }
+      }
+    }
+    if (eligible < 3 || hits < 0.8 * eligible) continue;
+    // The turn: where the points k before and k after come closest, within the next k points.
+    for (let t = i + 1, stop = Math.min(i + k, last), best = dist(i + k, i - k); t < stop; ++t) {
+      const e = dist(t + k, t - k);
+      if (e < best) { best = e; i = t; }
+    }
+    // How far the path runs back: p_i+j near p_i-j (within k points of it), j = k + 1, ...
+    let count = k;
+    const near = (j: number) => {
+      for (let m = i - j - k; m <= i - j + k; ++m) if ((closed || m >= 0) && dist(i + j, m) <= within) return true;
+      return false;
+    };
+    while ((closed ? count < n / 2 : i + count + 1 < n && i - count - 1 >= 0) && near(count + 1)) ++count;
+    return { at: i, count, within };
+  }
+  return null;
+}

@@ -6,7 +6,7 @@
  */
 import { describe, expect, it } from "vitest";
 import { fitProfile } from "../../src/frame/profile.js";
-import { grossOutliers, differenceNoise, referenceLength } from "../../src/frame/robustStart.js";
+import { grossOutliers, differenceNoise, findRetrace, referenceLength } from "../../src/frame/robustStart.js";
 import { FLAG_END, FLAG_TORSION_UNDEFINED, type Profile, type Trace } from "../../src/types.js";
 import { bumpCurve, circleCurve, helixCurve, sampleCurve, sampleCurveUneven } from "../support/curves.js";
 import { mulberry32, normalStream } from "../support/rng.js";
@@ -24,6 +24,24 @@ const R = 60e-9, c = 25e-9;
 const k0 = R / (R * R + c * c), t0 = c / (R * R + c * c);
 const helix = helixCurve(R, c, 780e-9 / (2 * Math.PI * Math.hypot(R, c)));
 const clean = sampleCurve(helix, 400, 1e-9, 3).xyz;
+
+/** Out to point `to` of the helix and back to point `back`, the way back 0.36 nm off the way out. */
+function outAndBack(x: Float64Array, to: number, back: number): Float64Array {
+  const pts: number[] = [];
+  for (let i = 0; i <= to; ++i) pts.push(x[3 * i], x[3 * i + 1], x[3 * i + 2]);
+  for (let i = to - 1; i >= back; --i) pts.push(x[3 * i] + 0.3e-9, x[3 * i + 1] - 0.2e-9, x[3 * i + 2]);
+  return Float64Array.from(pts);
+}
+
+/** Two straight legs `gap` apart (unit steps) joined by a half circle: a real hairpin. */
+function hairpin(gap: number): Float64Array {
+  const h: number[] = [];
+  for (let i = 0; i < 100; ++i) h.push(i, 0, 0);
+  const m = Math.ceil((Math.PI * gap) / 2);
+  for (let i = 0; i <= m; ++i) { const a = -Math.PI / 2 + (Math.PI * i) / m; h.push(100 + (gap / 2) * Math.cos(a), gap / 2 + (gap / 2) * Math.sin(a), 0); }
+  for (let i = 99; i >= 0; --i) h.push(i, gap, 0);
+  return Float64Array.from(h);
+}
 
 /** The clean helix with its first 200 points kept and then every `every`-th point only. */
 function thinnedTail(every: number): Float64Array {
@@ -74,6 +92,27 @@ describe("robust start", () => {
     const u = t.map((v) => v * Math.hypot(1, 0.4));
     expect(differenceNoise(xyz, u, 2) / 0.01).toBeGreaterThan(0.9);
     expect(differenceNoise(xyz, u, 2) / 0.01).toBeLessThan(1.1);
+  });
+
+  it("finds where a trace runs back over its own path, and nowhere on real wires", () => {
+    const step = 780e-9 / 399;
+    // Out to point 300 and back to point 150: the turn at 300, 150 points on the way back.
+    expect(findRetrace(outAndBack(clean, 300, 150), false, 0, step)).toMatchObject({ at: 300, count: 150 });
+    // The same with noise up to 1.5x the step (per coordinate): the progress per point, not the
+    // noise-inflated step, sets the window.
+    for (const noise of [1e-9, 3e-9]) {
+      const back = findRetrace(outAndBack(sampleCurve(helix, 400, noise, 5).xyz, 300, 150), false, noise, step);
+      expect(back?.at).toBeGreaterThanOrEqual(298);
+      expect(back?.at).toBeLessThanOrEqual(302);
+    }
+    expect(findRetrace(clean, false, 1e-9, step)).toBeNull();
+    for (let seed = 1; seed <= 5; ++seed) {
+      expect(findRetrace(sampleCurve(circleCurve(1), 1000, 0.01, seed).xyz, true, 0.01, (2 * Math.PI) / 1000)).toBeNull();
+      expect(findRetrace(sampleCurveUneven(bumpCurve(1, 0.1, 0.02), 1000, 0.002, seed).xyz, false, 0.002, 1 / 1000)).toBeNull();
+    }
+    // A hairpin whose legs are 3 steps apart is a wire; legs 0.5 steps apart are the same path twice.
+    expect(findRetrace(hairpin(3), false, 0, 1)).toBeNull();
+    expect(findRetrace(hairpin(0.5), false, 0, 1)).not.toBeNull();
   });
 
   it("measures a robust length that ignores a wild point", () => {
@@ -139,6 +178,13 @@ describe("never a silent wrong answer", () => {
     // 780 nm) with exit 0.
     expect(() => fitProfile(trace(thinnedTail(40)))).toThrow(
       "w.csv: points: no points over 129 nm of the wire between row 202 and row 204 (48x the median step): the fit would invent the wire there; trace it more evenly or split it at the gap",
+    );
+  });
+
+  it("refuses a trace that runs out and back over its own path, naming the rows", () => {
+    // Was: a 856 nm profile with a cusp at the turn and the way back counted as wire, exit 0.
+    expect(() => fitProfile(trace(outAndBack(clean, 300, 150)))).toThrow(
+      "w.csv: points: the trace turns back on its own path near row 302: the next 150 points (to row 452) run back over the points before it (within 5.06 nm); a wire cannot retrace itself: remove the retraced rows or split the file there",
     );
   });
 
