@@ -172,7 +172,7 @@ export function chooseLevels(
     const b = balancedLevel(smoother, kappaFit, C, sub, interior, set.seed, { c: set.torsionBalance });
     tauFit = b.fit;
     tauFactor = b.factorOfPilot;
-    if (tauFactor !== 1) diagnostics.push(`torsion: smoothing level ${tauFactor.toPrecision(3)}x the curvature level (balancing rule: the largest level whose torsion stays within the noise of every less-smoothed one)`);
+    if (tauFactor !== 1) diagnostics.push(`torsion: smoothing level ${tauFactor.toPrecision(3)}x the curvature level (balancing rule: the largest level whose torsion moves, beyond its noise, by less than the noise of every less-smoothed one)`);
     if (b.atTop) diagnostics.push("torsion: the balancing rule reached the top of its scan (torsion nearly constant along the wire)");
   }
   let kappaOut = kappaFit, kappaSmoother = smoother;

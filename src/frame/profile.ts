@@ -32,7 +32,7 @@ export interface ProfileOptions {
    * noise is then not estimated, and the curvature level follows from it (discrepancy rule).
    */
   readonly coordinateError?: number;
-  /** Constant c of the torsion balancing rule (default 1; see `balancedLevel`). */
+  /** Constant c of the torsion balancing rule (default 0.85; see `balancedLevel`). */
   readonly torsionBalance?: number;
   /**
    * How the curvature level is chosen: "risk" (default: least estimated error of the curvature, see
@@ -76,7 +76,7 @@ function settingsOf(options: ProfileOptions, n: number): Settings {
   // Dense traces converge in fewer foot-point passes (measured at 1e5 points: the same kappa error
   // to 1% with 2 passes as with 3).
   const s: { -readonly [K in keyof Settings]: Settings[K] } = {
-    replicates: R, seed, passes: options.passes ?? (n > 20_000 ? 2 : 3), torsionBalance: options.torsionBalance ?? 1, curvatureRule: options.curvatureRule ?? "risk", keepSamples: options.keepSamples ?? false, adaptive: options.adaptive ?? false,
+    replicates: R, seed, passes: options.passes ?? (n > 20_000 ? 2 : 3), torsionBalance: options.torsionBalance ?? 0.85, curvatureRule: options.curvatureRule ?? "risk", keepSamples: options.keepSamples ?? false, adaptive: options.adaptive ?? false,
   };
   if (options.step !== undefined) s.step = options.step;
   if (options.segments !== undefined) s.segments = options.segments;

@@ -8,8 +8,10 @@ import { describe, expect, it } from "vitest";
 import { bandOffsets } from "../../src/frame/bands.js";
 import { fitProfile } from "../../src/frame/profile.js";
 import { differenceNoise, medianInPlace, medianOf, selectInPlace, toCanonical } from "../../src/frame/robustStart.js";
+import { biasChange } from "../../src/frame/torsionLevel.js";
 import { FLAG_END, type Profile } from "../../src/types.js";
-import { bumpCurve, denseTruth, helixCurve, matchTruth, sampleCurve, sampleCurveUneven } from "../support/curves.js";
+import { bumpCurve, denseTruth, helixCurve, matchTruth, sampleCurve, sampleCurveUneven, trefoilCurve } from "../support/curves.js";
+import { normalStream } from "../support/rng.js";
 
 describe("selection medians", () => {
   it("equal the middle of a sorted copy (property, 200 runs, fixed seed)", () => {
@@ -60,6 +62,48 @@ describe("difference-based noise", () => {
 });
 
 describe("torsion balancing rule", () => {
+  it("takes the noise out of the change between levels: about b^2 for a bias b, about 0 for noise alone", () => {
+    // E (q_k - q_j)^2 = b^2 + Var(q_k - q_j) (bias-variance decomposition, common practice). Two
+    // "levels" of 2000 points with independent unit noise, 32 probes from the same law.
+    const g = normalStream(17), M = 2000, P = 32;
+    const draw = (bias: number) => {
+      const q = new Float64Array(M), qp = new Float64Array(M * P);
+      for (let a = 0; a < M; ++a) q[a] = bias + g();
+      for (let k = 0; k < qp.length; ++k) qp[k] = g();
+      return { q, qp };
+    };
+    const j = draw(0);
+    for (const b of [0, 0.5, 2]) {
+      const k = draw(b);
+      // Sampling error of the mean of 2000 squared differences of variance 2: ~0.09 (1 SD).
+      expect(Math.abs(biasChange(k.q, k.qp, j.q, j.qp, P) - b * b)).toBeLessThan(0.3);
+    }
+    // Points where a value is not finite are skipped; none left: Infinity.
+    const nan = Float64Array.from({ length: M }, () => NaN);
+    expect(biasChange(nan, j.qp, j.q, j.qp, P)).toBe(Infinity);
+  });
+
+  it("smooths a trefoil knot's torsion past the plateau where the plain rule stopped (within 1.6x of the best single level)", () => {
+    // Torsion of the trefoil from the Frenet formulas on its closed form (test/support/curves.ts).
+    // 1000 points, 1% noise, uneven sampling: measured 1.54x; the plain rule (no noise term) 1.95x.
+    const curve = trefoilCurve(1), n = 1000;
+    const truth = denseTruth(curve, 20 * n);
+    const { xyz } = sampleCurveUneven(curve, n, 0.01 * curve.radius, 207);
+    const tr = { xyz, dims: 3 as const, source: { file: "trefoil", unit: "m" as const }, diagnostics: [] };
+    const auto = fitProfile(tr, { closed: true, bootstrap: 0, seed: 2 });
+    const err = (p: Profile) => {
+      const idx = matchTruth(truth, p.x, p.y, p.z, true);
+      let e = 0, r = 0;
+      for (let j = 0; j < p.n; ++j) { e += ((Number.isNaN(p.tau[j]) ? 0 : p.tau[j]) - truth.tau[idx[j]]) ** 2; r += truth.tau[idx[j]] ** 2; }
+      return Math.sqrt(e / r);
+    };
+    let best = Infinity;
+    for (let k = 0; k <= 12; ++k) {
+      best = Math.min(best, err(fitProfile(tr, { closed: true, bootstrap: 0, lambda: auto.lambda * Math.pow(10, k / 4), segments: auto.segments })));
+    }
+    expect(err(auto) / best).toBeLessThan(1.6);
+  });
+
   it("smooths a helix's constant torsion well beyond the curvature level, and recovers it within 3%", () => {
     const R = 1, c = 0.4, t0 = c / (R * R + c * c);
     const { xyz } = sampleCurve(helixCurve(R, c, 4), 800, 0.01, 5);
