@@ -2,12 +2,13 @@
  * Speed work on the geometry core must not change its results: the fast kernels against the plain
  * formulations they replaced (bit for bit), and whole profiles against a fixture written before the
  * speed work (1e-9 relative). References: Math.hypot of the JavaScript engine (ECMA-262
- * sec. 21.3.2.18); medians of a sorted copy (common practice); the 0-1 principle for sorting
+ * sec. 21.3.2.18); medians and quantiles of a sorted copy (common practice); the 0-1 principle for sorting
  * networks (Knuth, TAOCP vol. 3, sec. 5.3.4, from memory); the bootstrap stream of the previous
  * closure-based generator (restated below); L D L^T solves column by column (`solveLdl`).
  */
 import { readFileSync } from "node:fs";
 import { describe, expect, it } from "vitest";
+import { placeBandQuantiles, quantileSorted } from "../../src/frame/bands.js";
 import { drawRhs, drawScratch, gridBasis, kappaTauAt, normalGenerator, solveLdl3 } from "../../src/frame/bootstrap.js";
 import { basisAt, locate, makeBasis, type SplineBasis } from "../../src/frame/bspline.js";
 import { evalCurve, kappaTau } from "../../src/frame/curve.js";
@@ -117,6 +118,27 @@ describe("fast kernels equal the plain formulations bit for bit", () => {
       for (let i = 0; i < n; ++i) if ((i < k && a[i] > kth) || (i > k && a[i] < kth)) ok = false;
       expect(ok).toBe(true);
       expect(medianOf(v) === (n % 2 ? s[(n - 1) >> 1] : 0.5 * (s[n / 2 - 1] + s[n / 2]))).toBe(true);
+    }
+  });
+
+  it("placeBandQuantiles puts the entries the band quantiles read where a sort puts them (seeded; ties, sorted, reversed, zeros, NaN)", () => {
+    const g = normalStream(23);
+    for (let t = 0; t < 400; ++t) {
+      const n = 1 + Math.floor(Math.abs(g()) * 150) + (t % 5 === 0 ? 200 : 0);
+      const v = Float64Array.from({ length: n }, () => (t % 3 === 0 ? Math.round(4 * g()) : g()));
+      if (t % 7 === 1) v.sort();
+      if (t % 7 === 2) v.sort().reverse();
+      if (t % 11 === 3) v[Math.floor(n / 2)] = NaN;
+      if (t % 13 === 4) v[0] = -0;
+      const s = v.slice().sort();
+      const a = placeBandQuantiles(v.slice());
+      for (const p of [0.025, 0.5, 0.975]) {
+        expect(Object.is(quantileSorted(a, p), quantileSorted(s, p))).toBe(true);
+        const lo = Math.floor((n - 1) * p);
+        expect(Object.is(a[lo], s[lo])).toBe(true);
+        if (lo + 1 < n) expect(Object.is(a[lo + 1], s[lo + 1])).toBe(true);
+      }
+      expect(Array.from(a.slice().sort())).toEqual(Array.from(v.slice().sort())); // the same values, rearranged
     }
   });
 
