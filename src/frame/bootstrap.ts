@@ -19,17 +19,7 @@ export interface BootstrapOutput {
 export function normalGenerator(seed: number): () => number {
   // The state lives in typed arrays (closure variables holding doubles or 32-bit integers outside
   // the small-integer range cost a heap allocation per update); the bit operations are unchanged.
-  const st = new Int32Array(5), spare = new Float64Array(1);
-  st[4] = seed >>> 0;
-  const split = () => {
-    const x = (st[4] + 0x9e3779b9) >>> 0;
-    st[4] = x;
-    let z = x;
-    z = Math.imul(z ^ (z >>> 16), 0x85ebca6b) >>> 0;
-    z = Math.imul(z ^ (z >>> 13), 0xc2b2ae35) >>> 0;
-    return (z ^ (z >>> 16)) >>> 0;
-  };
-  st[0] = split(); st[1] = split(); st[2] = split(); st[3] = split();
+  const st = seededState(seed), spare = new Float64Array(1);
   const next = () => {
     let a = st[0], b = st[1], c = st[2], d = st[3];
     const r = Math.imul(((Math.imul(b, 5) << 7) | (Math.imul(b, 5) >>> 25)) >>> 0, 9) >>> 0;
@@ -50,6 +40,60 @@ export function normalGenerator(seed: number): () => number {
     spare[0] = r * Math.sin(2 * Math.PI * q);
     return r * Math.cos(2 * Math.PI * q);
   };
+}
+
+/** The xoshiro128** state of `normalGenerator` (st[0..3]; st[4] the splitmix32 counter). */
+function seededState(seed: number): Int32Array {
+  const st = new Int32Array(5);
+  st[4] = seed >>> 0;
+  const split = () => {
+    const x = (st[4] + 0x9e3779b9) >>> 0;
+    st[4] = x;
+    let z = x;
+    z = Math.imul(z ^ (z >>> 16), 0x85ebca6b) >>> 0;
+    z = Math.imul(z ^ (z >>> 13), 0xc2b2ae35) >>> 0;
+    return (z ^ (z >>> 16)) >>> 0;
+  };
+  st[0] = split(); st[1] = split(); st[2] = split(); st[3] = split();
+  return st;
+}
+
+/**
+ * The stream of `normalGenerator(seed)`, filled into whole arrays: each call continues where the
+ * last one ended (a pair's second normal carried over), the same numbers as calling the generator
+ * once per entry, without a call per number.
+ */
+export function normalFiller(seed: number): (out: Float64Array) => void {
+  const st = seededState(seed), spare = Float64Array.of(NaN);
+  return (out) => fillNormals(st, spare, out);
+}
+
+/** The loop of {@link normalFiller}: the generator's operations with the state in locals (the
+ * 32-bit words are the same modulo 2^32 whether held signed or unsigned). */
+function fillNormals(st: Int32Array, spare: Float64Array, out: Float64Array): void {
+  const n = out.length;
+  let k = 0;
+  if (n === 0) return;
+  if (!Number.isNaN(spare[0])) { out[k++] = spare[0]; spare[0] = NaN; }
+  let a = st[0], b = st[1], c = st[2], d = st[3];
+  while (k < n) {
+    let p = 0, q = 0;
+    for (let draw = 0; draw < 2; ) {
+      const r = Math.imul(((Math.imul(b, 5) << 7) | (Math.imul(b, 5) >>> 25)) >>> 0, 9) >>> 0;
+      const t = (b << 9) >>> 0;
+      c ^= a; d ^= b; b ^= c; a ^= d; c ^= t;
+      d = ((d << 11) | (d >>> 21)) >>> 0;
+      const x = r / 4294967296;
+      // The first uniform of a pair must be positive (redrawn until it is), as in the generator.
+      if (draw === 0) { if (x > 0) { p = x; draw = 1; } } else { q = x; draw = 2; }
+    }
+    const rad = Math.sqrt(-2 * Math.log(p));
+    out[k++] = rad * Math.cos(2 * Math.PI * q);
+    const second = rad * Math.sin(2 * Math.PI * q);
+    if (k < n) out[k++] = second;
+    else spare[0] = second;
+  }
+  st[0] = a; st[1] = b; st[2] = c; st[3] = d;
 }
 
 /**
@@ -378,14 +422,14 @@ export function bootstrapBands(inp: {
     kvec0[3 * j] = kt[2]; kvec0[3 * j + 1] = kt[3]; kvec0[3 * j + 2] = kt[4];
   }
   const kappa = new Float64Array(R * m), tau = new Float64Array(R * m), curvatureVar = new Float64Array(m);
-  const rnd = normalGenerator(inp.seed);
+  const fill = normalFiller(inp.seed);
   const xi = new Float64Array(3 * K), dc = new Float64Array(3 * K);
   const scratch = drawScratch(K);
   const db = scratch.db, work = scratch.sol3 ?? new Float64Array(3 * K);
   const sameFactor = kappaFit.factor === tauFit.factor;
   const cs = new Float64Array(3 * K);
   for (let r = 0; r < R; ++r) {
-    for (let k = 0; k < 3 * K; ++k) xi[k] = rnd();
+    fill(xi);
     // One draw of dB serves both factors (as drawCoefPerturbation twice, without the second product).
     drawRhs(C, xi, db, scratch);
     solveLdl3(kappaFit.factor, db, dc, work);

@@ -9,7 +9,7 @@
 import { readFileSync } from "node:fs";
 import { describe, expect, it } from "vitest";
 import { placeBandQuantiles, quantileSorted } from "../../src/frame/bands.js";
-import { drawRhs, drawScratch, gridBasis, kappaTauAt, normalGenerator, solveLdl3 } from "../../src/frame/bootstrap.js";
+import { drawRhs, drawScratch, gridBasis, kappaTauAt, normalFiller, normalGenerator, solveLdl3 } from "../../src/frame/bootstrap.js";
 import { basisAt, locate, makeBasis, type SplineBasis } from "../../src/frame/bspline.js";
 import { evalCurve, kappaTau } from "../../src/frame/curve.js";
 import { hypot3 } from "../../src/frame/hypot3.js";
@@ -146,6 +146,17 @@ describe("fast kernels equal the plain formulations bit for bit", () => {
     for (const seed of [1, 7, 2 ** 31 + 5]) {
       const a = normalGenerator(seed), b = closureGenerator(seed);
       for (let k = 0; k < 20_001; ++k) { const va = a(), vb = b(); if (!bits(va, vb)) expect(va).toBe(vb); }
+    }
+  });
+
+  it("normalFiller fills the stream of the generator before it (seeds 1, 7 and 2^31 + 5; odd and even lengths)", () => {
+    for (const seed of [1, 7, 2 ** 31 + 5]) {
+      const fill = normalFiller(seed), b = closureGenerator(seed);
+      for (const len of [0, 1, 3, 4, 4515, 1, 2, 7, 10_000]) {
+        const out = new Float64Array(len);
+        fill(out);
+        for (let k = 0; k < len; ++k) { const vb = b(); if (!bits(out[k], vb)) expect(out[k]).toBe(vb); }
+      }
     }
   });
 
