@@ -107,12 +107,22 @@ export function rhsNoiseFactor(
 ): Skyline {
   const K = basis.K;
   const C = makeSkyline(envelope(K, ORDER - 1, basis.periodic, 3));
-  const st = new Float64Array(1), b = new Float64Array(24), idx = new Int32Array(ORDER);
-  const Pm = new Float64Array(9);
-  const s2 = sigma * sigma;
-  const data = C.data;
   const rowBase = new Int32Array(C.n);
   for (let r = 0; r < C.n; ++r) rowBase[r] = C.offset[r] - C.first[r];
+  accumulateRhsLaw(basis, u, w, tangent, sigma * sigma, normalDims, C.data, rowBase);
+  // A basis richer than the data (sparse traces) makes C singular; a ridge of 1e-9 of its largest
+  // diagonal keeps the L D L^T stable and adds a negligible variance.
+  addRidge(C, 1e-9);
+  factorLdl(C, 0);
+  return C;
+}
+
+/** The per-point sums of {@link rhsNoiseFactor} into C's data (s2 = sigma^2; a loop of its own for the JIT). */
+function accumulateRhsLaw(
+  basis: SplineBasis, u: Float64Array, w: Float64Array, tangent: Float64Array, s2: number, normalDims: 1 | 2, data: Float64Array, rowBase: Int32Array,
+): void {
+  const st = new Float64Array(1), b = new Float64Array(24), idx = new Int32Array(ORDER);
+  const Pm = new Float64Array(9);
   for (let p = 0; p < u.length; ++p) {
     const wp = w[p];
     if (wp === 0) continue;
@@ -157,13 +167,13 @@ export function rhsNoiseFactor(
       }
     }
   }
-  // A basis richer than the data (sparse traces) makes C singular; a ridge of 1e-9 of its largest
-  // diagonal keeps the L D L^T stable and adds a negligible variance.
+}
+
+/** Adds `ridge` times the largest diagonal entry to every diagonal entry. */
+function addRidge(C: Skyline, ridge: number): void {
   let maxDiag = 0;
   for (let r = 0; r < C.n; ++r) maxDiag = Math.max(maxDiag, C.data[C.offset[r] + r - C.first[r]]);
-  for (let r = 0; r < C.n; ++r) C.data[C.offset[r] + r - C.first[r]] += 1e-9 * maxDiag;
-  factorLdl(C, 0);
-  return C;
+  for (let r = 0; r < C.n; ++r) C.data[C.offset[r] + r - C.first[r]] += ridge * maxDiag;
 }
 
 /** Draws dB (3K, coefficient-major) and returns the coefficient perturbation (x, y, z blocks of K)
@@ -192,27 +202,34 @@ export function drawCoefPerturbation(
  * products as `mulLsqrtD` (L_ik sqrt(D_k) is formed once per factor and reused: bit-identical).
  */
 export function drawRhs(C: Skyline, xi: Float64Array, db: Float64Array, scratch: DrawScratch): Float64Array {
-  if (scratch.factorOf !== C || !scratch.sqrtD || !scratch.lsd) {
-    const sd = sqrtDiagonal(C);
-    const { n, first, offset, data } = C;
-    const lsd = new Float64Array(data.length);
-    for (let i = 0; i < n; ++i) {
-      const fi = first[i], oi = offset[i];
-      for (let k = fi; k < i; ++k) lsd[oi + k - fi] = data[oi + k - fi] * sd[k];
-    }
-    scratch.sqrtD = sd;
-    scratch.lsd = lsd;
-    scratch.factorOf = C;
+  if (scratch.factorOf !== C || !scratch.sqrtD || !scratch.lsd) scaleFactor(C, scratch);
+  mulScaled(C, scratch.sqrtD!, scratch.lsd!, xi, db);
+  return db;
+}
+
+/** scratch.sqrtD = sqrt(D) and scratch.lsd = L_ik sqrt(D_k) of C's factor. */
+function scaleFactor(C: Skyline, scratch: DrawScratch): void {
+  const sd = sqrtDiagonal(C);
+  const { n, first, offset, data } = C;
+  const lsd = new Float64Array(data.length);
+  for (let i = 0; i < n; ++i) {
+    const fi = first[i], oi = offset[i];
+    for (let k = fi; k < i; ++k) lsd[oi + k - fi] = data[oi + k - fi] * sd[k];
   }
+  scratch.sqrtD = sd;
+  scratch.lsd = lsd;
+  scratch.factorOf = C;
+}
+
+/** db = L sqrt(D) xi from sqrt(D) and the scaled factor (the sums of `mulLsqrtD`, in its order). */
+function mulScaled(C: Skyline, sd: Float64Array, lsd: Float64Array, xi: Float64Array, db: Float64Array): void {
   const { n, first, offset } = C;
-  const sd = scratch.sqrtD, lsd = scratch.lsd;
   for (let i = 0; i < n; ++i) {
     const fi = first[i], o = offset[i] - fi;
     let s = sd[i] * xi[i];
     for (let k = fi; k < i; ++k) s += lsd[o + k] * xi[k];
     db[i] = s;
   }
-  return db;
 }
 
 /**
