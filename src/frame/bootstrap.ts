@@ -5,7 +5,8 @@ const ORDER = 6;
 const coefIndex = (basis: SplineBasis, i: number, j: number): number => (basis.periodic ? (i + j) % basis.K : i + j);
 import { kappaTau } from "./curve.js";
 import { envelope } from "./design.js";
-import { factorLdl, makeSkyline, mulLsqrtD, solveLdl, sqrtDiagonal, type Skyline } from "./skyline.js";
+import { factorLdl, makeSkyline, mulLsqrtD, solveLdl, solveLdl3, sqrtDiagonal, type Skyline } from "./skyline.js";
+export { solveLdl3 } from "./skyline.js";
 
 /** Replicates on the evaluation points, replicate-major: kappa[r * m + j]. */
 export interface BootstrapOutput {
@@ -230,59 +231,6 @@ function mulScaled(C: Skyline, sd: Float64Array, lsd: Float64Array, xi: Float64A
     for (let k = fi; k < i; ++k) s += lsd[o + k] * xi[k];
     db[i] = s;
   }
-}
-
-/**
- * Solves (L D L^T) x_c = b_c for the three coordinates at once: b interleaved (b[3k + c]), x as
- * x, y, z blocks of K. Each coordinate sees exactly the operations of `solveLdl` (bit-identical);
- * one sweep over the factor serves all three. `w` is scratch of length 3K.
- */
-export function solveLdl3(f: Skyline, b: Float64Array, x: Float64Array, w: Float64Array): Float64Array {
-  // One loop per function (forward, diagonal, backward, scatter): a loop compiled on the stack
-  // before the later loops have run would otherwise be deoptimised on every call.
-  forward3(f, b, w);
-  diagonal3(f, w);
-  backward3(f, w);
-  scatter3(w, x, f.n);
-  return x;
-}
-
-function forward3(f: Skyline, b: Float64Array, w: Float64Array): void {
-  const { n, first, offset, data } = f;
-  for (let i = 0; i < n; ++i) {
-    const fi = first[i], o = offset[i] - fi;
-    let s0 = b[3 * i], s1 = b[3 * i + 1], s2 = b[3 * i + 2];
-    for (let k = fi; k < i; ++k) {
-      const l = data[o + k];
-      s0 -= l * w[3 * k]; s1 -= l * w[3 * k + 1]; s2 -= l * w[3 * k + 2];
-    }
-    w[3 * i] = s0; w[3 * i + 1] = s1; w[3 * i + 2] = s2;
-  }
-}
-
-function diagonal3(f: Skyline, w: Float64Array): void {
-  const { n, first, offset, data } = f;
-  for (let i = 0; i < n; ++i) {
-    const d = data[offset[i] + i - first[i]];
-    if (d === 0) { w[3 * i] = 0; w[3 * i + 1] = 0; w[3 * i + 2] = 0; }
-    else { w[3 * i] /= d; w[3 * i + 1] /= d; w[3 * i + 2] /= d; }
-  }
-}
-
-function backward3(f: Skyline, w: Float64Array): void {
-  const { n, first, offset, data } = f;
-  for (let i = n - 1; i >= 0; --i) {
-    const fi = first[i], o = offset[i] - fi;
-    const x0 = w[3 * i], x1 = w[3 * i + 1], x2 = w[3 * i + 2];
-    for (let k = fi; k < i; ++k) {
-      const l = data[o + k];
-      w[3 * k] -= l * x0; w[3 * k + 1] -= l * x1; w[3 * k + 2] -= l * x2;
-    }
-  }
-}
-
-function scatter3(w: Float64Array, x: Float64Array, n: number): void {
-  for (let k = 0; k < n; ++k) { x[k] = w[3 * k]; x[n + k] = w[3 * k + 1]; x[2 * n + k] = w[3 * k + 2]; }
 }
 
 /** Scratch of {@link drawCoefPerturbation}: dB, the solve's workspace, C's scaled factor, and (for

@@ -14,7 +14,7 @@ import { basisAt, locate, makeBasis, type SplineBasis } from "../../src/frame/bs
 import { evalCurve, kappaTau } from "../../src/frame/curve.js";
 import { hypot3 } from "../../src/frame/hypot3.js";
 import { median5, median8, medianInPlace, medianOf, selectInPlace } from "../../src/frame/robustStart.js";
-import { factorLdl, makeSkyline, mulLsqrtD, solveLdl } from "../../src/frame/skyline.js";
+import { factorLdl, makeSkyline, mulLsqrtD, solveLdl, symMul, symMul3 } from "../../src/frame/skyline.js";
 import { envelope } from "../../src/frame/design.js";
 import { speedCaseDigests } from "../support/speedCases.js";
 import { normalStream } from "../support/rng.js";
@@ -196,6 +196,22 @@ describe("fast kernels equal the plain formulations bit for bit", () => {
       for (let c = 0; c < 3; ++c) {
         const b = Float64Array.from({ length: K }, (_, k) => db[3 * k + c]);
         expect(Array.from(x.subarray(c * K, (c + 1) * K))).toEqual(Array.from(solveLdl(A, b, new Float64Array(K))));
+      }
+    }
+  });
+
+  it("symMul3 equals symMul per coordinate block (open and periodic)", () => {
+    const g = normalStream(13);
+    for (const periodic of [false, true]) {
+      const K = 40;
+      const S = randomFactor(K, periodic, 1, 7); // any envelope-shaped symmetric matrix will do
+      const x = Float64Array.from({ length: 3 * K }, () => g());
+      const y3 = new Float64Array(3 * K);
+      symMul3(S, x, y3);
+      for (let c = 0; c < 3; ++c) {
+        const y = new Float64Array(K);
+        symMul(S, x, c * K, y);
+        expect(Array.from(y3.subarray(c * K, (c + 1) * K))).toEqual(Array.from(y));
       }
     }
   });
