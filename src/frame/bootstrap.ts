@@ -1,4 +1,4 @@
-import { basisAt, locate, type SplineBasis } from "./bspline.js";
+import { basisAt, basisValues, locate, type SplineBasis } from "./bspline.js";
 
 /** Quintic: six active basis functions per interval (local copy: imported bindings are slow in hot loops). */
 const ORDER = 6;
@@ -139,7 +139,7 @@ function accumulateRhsLaw(
     }
     Pm[3] = Pm[1]; Pm[6] = Pm[2]; Pm[7] = Pm[5];
     const i = locate(basis, u[p], st);
-    basisAt(st[0], basis.h, 0, b);
+    basisValues(st[0], b);
     for (let j = 0; j < ORDER; ++j) idx[j] = coefIndex(basis, i, j);
     const f = wp * wp * s2;
     const p0 = Pm[0], p1 = Pm[1], p2 = Pm[2], p4 = Pm[4], p5 = Pm[5], p8 = Pm[8];

@@ -10,7 +10,7 @@ import { readFileSync } from "node:fs";
 import { describe, expect, it } from "vitest";
 import { placeBandQuantiles, quantileSorted } from "../../src/frame/bands.js";
 import { drawRhs, drawScratch, gridBasis, kappaTauAt, normalFiller, normalGenerator, solveLdl3 } from "../../src/frame/bootstrap.js";
-import { basisAt, locate, makeBasis, type SplineBasis } from "../../src/frame/bspline.js";
+import { basisAt, basisValues, locate, makeBasis, type SplineBasis } from "../../src/frame/bspline.js";
 import { evalCurve, kappaTau } from "../../src/frame/curve.js";
 import { hypot3 } from "../../src/frame/hypot3.js";
 import { median5, median8, medianInPlace, medianOf, selectInPlace } from "../../src/frame/robustStart.js";
@@ -197,6 +197,16 @@ describe("fast kernels equal the plain formulations bit for bit", () => {
         const b = Float64Array.from({ length: K }, (_, k) => db[3 * k + c]);
         expect(Array.from(x.subarray(c * K, (c + 1) * K))).toEqual(Array.from(solveLdl(A, b, new Float64Array(K))));
       }
+    }
+  });
+
+  it("basisValues equals the values of basisAt (seeded local coordinates, the ends of the interval, extrapolation)", () => {
+    const g = normalStream(14);
+    const a = new Float64Array(24), b = new Float64Array(6);
+    for (const t of [0, 1, 1 - 1e-16, -1e-12, 1 + 1e-12, ...Array.from({ length: 2000 }, () => Math.abs(g()) % 1)]) {
+      basisAt(t, 0.37, 0, a);
+      basisValues(t, b);
+      for (let j = 0; j < 6; ++j) expect(bits(a[j], b[j])).toBe(true);
     }
   });
 
