@@ -233,6 +233,23 @@ function mulScaled(C: Skyline, sd: Float64Array, lsd: Float64Array, xi: Float64A
   }
 }
 
+/** `drawRhs` for two vectors at once: each dB the sums of `drawRhs` in its order (bit-identical), one sweep over the scaled factor. */
+export function drawRhsPair(C: Skyline, xiA: Float64Array, xiB: Float64Array, dbA: Float64Array, dbB: Float64Array, scratch: DrawScratch): void {
+  if (scratch.factorOf !== C || !scratch.sqrtD || !scratch.lsd) scaleFactor(C, scratch);
+  mulScaledPair(C, scratch.sqrtD!, scratch.lsd!, xiA, xiB, dbA, dbB);
+}
+
+/** The loop of {@link drawRhsPair}. */
+function mulScaledPair(C: Skyline, sd: Float64Array, lsd: Float64Array, xiA: Float64Array, xiB: Float64Array, dbA: Float64Array, dbB: Float64Array): void {
+  const { n, first, offset } = C;
+  for (let i = 0; i < n; ++i) {
+    const fi = first[i], o = offset[i] - fi;
+    let a = sd[i] * xiA[i], b = sd[i] * xiB[i];
+    for (let k = fi; k < i; ++k) { const l = lsd[o + k]; a += l * xiA[k]; b += l * xiB[k]; }
+    dbA[i] = a; dbB[i] = b;
+  }
+}
+
 /** Scratch of {@link drawCoefPerturbation}: dB, the solve's workspace, C's scaled factor, and (for
  * fixed probe vectors only) dB per probe. */
 export interface DrawScratch {
@@ -379,33 +396,64 @@ export function bootstrapBands(inp: {
   readonly seed: number;
 }): BootstrapOutput {
   const { C, grid, kappaFit, tauFit, replicates: R } = inp;
-  const K = grid.basis.K, m = grid.m;
-  const d12 = new Float64Array(12), kt = new Float64Array(5);
+  const m = grid.m;
   const kvec0 = new Float64Array(3 * m);
-  for (let j = 0; j < m; ++j) {
-    kappaTauAt(grid, kappaFit.coef, null, j, d12, kt);
-    kvec0[3 * j] = kt[2]; kvec0[3 * j + 1] = kt[3]; kvec0[3 * j + 2] = kt[4];
-  }
+  curvatureVectors(grid, kappaFit.coef, kvec0);
   const kappa = new Float64Array(R * m), tau = new Float64Array(R * m), curvatureVar = new Float64Array(m);
-  const fill = normalFiller(inp.seed);
-  const xi = new Float64Array(3 * K), dc = new Float64Array(3 * K);
-  const scratch = drawScratch(K);
-  const db = scratch.db, work = scratch.sol3 ?? new Float64Array(3 * K);
-  const sameFactor = kappaFit.factor === tauFit.factor;
-  const cs = new Float64Array(3 * K);
-  for (let r = 0; r < R; ++r) {
-    fill(xi);
-    // One draw of dB serves both factors (as drawCoefPerturbation twice, without the second product).
-    drawRhs(C, xi, db, scratch);
-    solveLdl3(kappaFit.factor, db, dc, work);
-    addInto(kappaFit.coef, dc, cs);
-    replicateKappa(grid, cs, kappa, sameFactor ? tau : null, r * m, kvec0, curvatureVar, d12, kt);
-    if (!sameFactor) {
-      solveLdl3(tauFit.factor, db, dc, work);
-      addInto(tauFit.coef, dc, cs);
-      replicateTau(grid, cs, tau, r * m, d12, kt);
-    }
-  }
+  drawReplicates(C, grid, kappaFit, tauFit, R, inp.seed, kvec0, { kappa, tau, curvatureVar });
   for (let j = 0; j < m; ++j) curvatureVar[j] /= Math.max(R, 1) * inp.normalDims;
   return { kappa, tau, curvatureVar };
+}
+
+/** The curvature vector of the fit `coef` at each grid point (3 per point). */
+function curvatureVectors(grid: GridBasis, coef: Float64Array, kvec: Float64Array): void {
+  const d12 = new Float64Array(12), kt = new Float64Array(5);
+  for (let j = 0; j < grid.m; ++j) {
+    kappaTauAt(grid, coef, null, j, d12, kt);
+    kvec[3 * j] = kt[2]; kvec[3 * j + 1] = kt[3]; kvec[3 * j + 2] = kt[4];
+  }
+}
+
+/**
+ * The R replicates of {@link bootstrapBands} into out.kappa, out.tau (replicate-major) and the
+ * curvature vector's squared deviations summed into out.curvatureVar. Replicates are drawn in pairs
+ * (`drawRhsPair`: one sweep over C's factor for two draws), the normals in the same stream order,
+ * and each replicate is then finished in turn, so every number is the one drawn one at a time.
+ */
+function drawReplicates(
+  C: Skyline, grid: GridBasis, kappaFit: { readonly coef: Float64Array; readonly factor: Skyline }, tauFit: { readonly coef: Float64Array; readonly factor: Skyline },
+  R: number, seed: number, kvec0: Float64Array, out: { readonly kappa: Float64Array; readonly tau: Float64Array; readonly curvatureVar: Float64Array },
+): void {
+  const K = grid.basis.K, m = grid.m;
+  const fill = normalFiller(seed);
+  const xiA = new Float64Array(3 * K), xiB = new Float64Array(3 * K), dbB = new Float64Array(3 * K);
+  const scratch = drawScratch(K);
+  const dbA = scratch.db;
+  const rep = { dc: new Float64Array(3 * K), work: scratch.sol3 ?? new Float64Array(3 * K), cs: new Float64Array(3 * K), d12: new Float64Array(12), kt: new Float64Array(5) };
+  for (let r = 0; r < R; r += 2) {
+    fill(xiA);
+    if (r + 1 < R) {
+      fill(xiB);
+      drawRhsPair(C, xiA, xiB, dbA, dbB, scratch);
+    } else drawRhs(C, xiA, dbA, scratch);
+    finishReplicate(grid, kappaFit, tauFit, dbA, r * m, kvec0, out, rep);
+    if (r + 1 < R) finishReplicate(grid, kappaFit, tauFit, dbB, (r + 1) * m, kvec0, out, rep);
+  }
+}
+
+/** One replicate from its dB: kappa (and tau) through each fit's factor (one draw serves both factors). */
+function finishReplicate(
+  grid: GridBasis, kappaFit: { readonly coef: Float64Array; readonly factor: Skyline }, tauFit: { readonly coef: Float64Array; readonly factor: Skyline },
+  db: Float64Array, off: number, kvec0: Float64Array, out: { readonly kappa: Float64Array; readonly tau: Float64Array; readonly curvatureVar: Float64Array },
+  rep: { readonly dc: Float64Array; readonly work: Float64Array; readonly cs: Float64Array; readonly d12: Float64Array; readonly kt: Float64Array },
+): void {
+  const sameFactor = kappaFit.factor === tauFit.factor;
+  solveLdl3(kappaFit.factor, db, rep.dc, rep.work);
+  addInto(kappaFit.coef, rep.dc, rep.cs);
+  replicateKappa(grid, rep.cs, out.kappa, sameFactor ? out.tau : null, off, kvec0, out.curvatureVar, rep.d12, rep.kt);
+  if (!sameFactor) {
+    solveLdl3(tauFit.factor, db, rep.dc, rep.work);
+    addInto(tauFit.coef, rep.dc, rep.cs);
+    replicateTau(grid, rep.cs, out.tau, off, rep.d12, rep.kt);
+  }
 }

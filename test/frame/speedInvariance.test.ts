@@ -9,7 +9,7 @@
 import { readFileSync } from "node:fs";
 import { describe, expect, it } from "vitest";
 import { placeBandQuantiles, quantileSorted } from "../../src/frame/bands.js";
-import { drawRhs, drawScratch, gridBasis, kappaTauAt, normalFiller, normalGenerator, solveLdl3 } from "../../src/frame/bootstrap.js";
+import { drawRhs, drawRhsPair, drawScratch, gridBasis, kappaTauAt, normalFiller, normalGenerator, solveLdl3 } from "../../src/frame/bootstrap.js";
 import { basisAt, basisValues, locate, makeBasis, type SplineBasis } from "../../src/frame/bspline.js";
 import { evalCurve, kappaTau } from "../../src/frame/curve.js";
 import { hypot3 } from "../../src/frame/hypot3.js";
@@ -183,7 +183,7 @@ describe("fast kernels equal the plain formulations bit for bit", () => {
     }
   });
 
-  it("drawRhs equals mulLsqrtD and solveLdl3 equals solveLdl per coordinate (open and periodic)", () => {
+  it("drawRhs and drawRhsPair equal mulLsqrtD and solveLdl3 equals solveLdl per coordinate (open and periodic)", () => {
     const g = normalStream(12);
     for (const periodic of [false, true]) {
       const K = 40;
@@ -192,6 +192,10 @@ describe("fast kernels equal the plain formulations bit for bit", () => {
       const scratch = drawScratch(K);
       const db = drawRhs(C, xi, scratch.db, scratch);
       expect(Array.from(db)).toEqual(Array.from(mulLsqrtD(C, xi, new Float64Array(3 * K))));
+      const xi2 = Float64Array.from({ length: 3 * K }, () => g()), dbA = new Float64Array(3 * K), dbB = new Float64Array(3 * K);
+      drawRhsPair(C, xi, xi2, dbA, dbB, drawScratch(K));
+      expect(Array.from(dbA)).toEqual(Array.from(db));
+      expect(Array.from(dbB)).toEqual(Array.from(mulLsqrtD(C, xi2, new Float64Array(3 * K))));
       const x = solveLdl3(A, db, new Float64Array(3 * K), new Float64Array(3 * K));
       for (let c = 0; c < 3; ++c) {
         const b = Float64Array.from({ length: K }, (_, k) => db[3 * k + c]);
