@@ -1,7 +1,7 @@
 import { ParameterError, InputError } from "../errors.js";
 import type { Profile, Trace } from "../types.js";
 import { fitBands } from "./bands.js";
-import { arcAt, uAtArc } from "./curve.js";
+import { arcAt, uAtArc, type ArcTable } from "./curve.js";
 import { checkClosable, describeLength, GAP_LIMIT } from "./fitGuard.js";
 import { detectClosed } from "./detectClosed.js";
 import { runPasses, type PassesResult } from "./passes.js";
@@ -310,14 +310,31 @@ function sampleAt(trace: Trace, start: Start, fit: PassesResult, set: Settings):
   }
   const m = u.length;
   // Foot points of an ordered trace are nearly always in order already: sort only when they are not.
+  const order = ascendingOrder(u);
+  const su = new Float64Array(m), s = new Float64Array(m), traceIndex = new Int32Array(m);
+  gatherSamples(u, start.kept, order, su, traceIndex);
+  arcFromStart(table, su, closed, s);
+  return { u: su, traceIndex, s };
+}
+
+/** Indices 0..m-1 in ascending order of u (ties by index); no sort when u is in order already. */
+function ascendingOrder(u: Float64Array): Uint32Array {
+  const m = u.length;
   let sorted = true;
   for (let i = 1; i < m && sorted; ++i) sorted = u[i] >= u[i - 1];
   const order = new Uint32Array(m);
   for (let i = 0; i < m; ++i) order[i] = i;
   if (!sorted) order.sort((a, b) => u[a] - u[b] || a - b);
-  const su = new Float64Array(m), s = new Float64Array(m), traceIndex = new Int32Array(m);
-  for (let j = 0; j < m; ++j) { su[j] = u[order[j]]; traceIndex[j] = start.kept[order[j]]; }
+  return order;
+}
+
+/** su[j] = u[order[j]], traceIndex[j] = kept[order[j]]. */
+function gatherSamples(u: Float64Array, kept: Int32Array, order: Uint32Array, su: Float64Array, traceIndex: Int32Array): void {
+  for (let j = 0; j < order.length; ++j) { su[j] = u[order[j]]; traceIndex[j] = kept[order[j]]; }
+}
+
+/** s[j] = arc length of su[j] from su[0] (floored at 0). */
+function arcFromStart(table: ArcTable, su: Float64Array, closed: boolean, s: Float64Array): void {
   const s0 = arcAt(table, su[0], closed);
-  for (let j = 0; j < m; ++j) s[j] = Math.max(0, arcAt(table, su[j], closed) - s0);
-  return { u: su, traceIndex, s };
+  for (let j = 0; j < su.length; ++j) s[j] = Math.max(0, arcAt(table, su[j], closed) - s0);
 }
