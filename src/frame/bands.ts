@@ -7,7 +7,9 @@ import {
   FLAG_BIAS, FLAG_END, FLAG_FRAME_TRANSPORTED, FLAG_TORSION_NOT_MEASURABLE, FLAG_TORSION_UNDEFINED,
   type Profile, type Trace,
 } from "../types.js";
-import { bootstrapBands, kappaTauAt } from "./bootstrap.js";
+import { bootstrapBands, kappaTauAt, type BootstrapOutput, type GridBasis } from "./bootstrap.js";
+import { hypot3 } from "./hypot3.js";
+import { selectInPlace } from "./robustStart.js";
 import type { SplineBasis } from "./bspline.js";
 import { evalCurve, kappaTau } from "./curve.js";
 import { frames } from "./frames.js";
@@ -55,164 +57,62 @@ export function fitBands(
   trace: Trace, start: Start, fit: PassesResult, lv: Levels, samples: Samples,
   set: { readonly replicates: number; readonly seed: number; readonly keepSamples: boolean }, diagnostics: string[],
 ): Profile {
+  // The loops sit in the leaf functions below (one per function): the JIT's on-stack replacement
+  // of a loop in this driver would otherwise be deoptimised at each later statement it had not run.
   const { basis, table } = fit;
-  const { Q, scale: L0, centre } = start.canon;
+  const { Q, scale: L0 } = start.canon;
   const closed = start.closed;
   const length = table.length;
   const R = set.replicates;
   const m = samples.u.length;
   const sampleU = samples.u;
   const normalDims: 1 | 2 = trace.dims === 2 ? 1 : 2;
-  const toLab = (v: Float64Array, j: number, out: Float64Array, o: number) => {
-    const a = v[j], b = v[j + 1], c = v[j + 2];
-    out[o] = Q[0] * a + Q[3] * b + Q[6] * c;
-    out[o + 1] = Q[1] * a + Q[4] * b + Q[7] * c;
-    out[o + 2] = Q[2] * a + Q[5] * b + Q[8] * c;
-  };
 
-  // Point estimates and frames at the samples.
-  const s = new Float64Array(m), x = new Float64Array(m), yy = new Float64Array(m), z = new Float64Array(m);
-  const kappa = new Float64Array(m), tau = new Float64Array(m);
-  const r1 = new Float64Array(3 * m), kv = new Float64Array(3 * m);
-  const d12 = new Float64Array(12), st = new Float64Array(1), sb = new Float64Array(24);
-  const kt = new Float64Array(5), pos = new Float64Array(3);
-  for (let j = 0; j < m; ++j) {
-    evalCurve(basis, lv.kappaFit.coef, sampleU[j], 3, d12, st, sb);
-    s[j] = samples.s[j] * L0;
-    toLab(d12, 0, pos, 0);
-    x[j] = pos[0] * L0 + centre[0]; yy[j] = pos[1] * L0 + centre[1]; z[j] = pos[2] * L0 + centre[2];
-    kappaTau(d12, kt);
-    kappa[j] = kt[0] / L0;
-    r1[3 * j] = d12[3]; r1[3 * j + 1] = d12[4]; r1[3 * j + 2] = d12[5];
-    kv[3 * j] = kt[2]; kv[3 * j + 1] = kt[3]; kv[3 * j + 2] = kt[4];
-    if (lv.tauFit !== lv.kappaFit) evalCurve(basis, lv.tauFit.coef, sampleU[j], 3, d12, st, sb);
-    tau[j] = lv.planarWithinNoise ? 0 : kappaTau(d12, kt)[1] / L0;
-  }
+  // Point estimates at the samples (their frames come after the torsion gate).
+  const est = pointEstimates(basis, lv, samples, start.canon);
+  const { s, kappa, tau, r1, kv } = est;
 
   // Bootstrap on the grid; bands from fits at a quarter of each level (less smoothing bias, so the
   // bands cover the truth where bias dominates: the reduced-penalty idea of Dai 2017, arXiv 1706.00865).
-  const kappaLo = new Float64Array(m).fill(NaN), kappaHi = new Float64Array(m).fill(NaN);
-  const tauLo = new Float64Array(m).fill(NaN), tauHi = new Float64Array(m).fill(NaN);
-  const flags = new Uint8Array(m);
   const Rb = Math.max(R, 50);
   const grid = lv.grid, g = grid.m;
   const bandK = solveAt(lv.kappaSmoother, lv.kappaFit.lambda / 4);
   const bandT = lv.tauFit === lv.kappaFit ? bandK : solveAt(fit.smoother, lv.tauFit.lambda / 4);
   const boot = bootstrapBands({ C: lv.C, grid, kappaFit: bandK, tauFit: bandT, normalDims, replicates: Rb, seed: set.seed });
-  const gk = new Float64Array(g), gt = new Float64Array(g);
-  for (let j = 0; j < g; ++j) {
-    gk[j] = kappaTauAt(grid, lv.kappaFit.coef, null, j, d12, kt)[0];
-    gt[j] = kappaTauAt(grid, lv.tauFit.coef, null, j, d12, kt)[1];
-  }
-  const kLo = new Float64Array(g), kHi = new Float64Array(g), tLo = new Float64Array(g), tHi = new Float64Array(g);
-  const kBias = new Float64Array(g), tBias = new Float64Array(g);
-  const col = new Float64Array(Rb);
-  for (let j = 0; j < g; ++j) {
-    for (let r = 0; r < Rb; ++r) col[r] = boot.kappa[r * g + j];
-    col.sort();
-    const half = 0.5 * (quantileSorted(col, 0.975) - quantileSorted(col, 0.025));
-    const shK = kappaTauAt(grid, bandK.coef, null, j, d12, kt)[0] - gk[j];
-    // Bias ratio: the less-smoothed fit's move over the half-width of the noise band.
-    kBias[j] = Math.abs(shK) / Math.max(half, 1e-300);
-    [kLo[j], kHi[j]] = bandOffsets(col, shK);
-    let finite = 0;
-    for (let r = 0; r < Rb; ++r) { const v = boot.tau[r * g + j]; if (Number.isFinite(v)) col[finite++] = v; }
-    const tc = col.subarray(0, finite).sort();
-    const shT = kappaTauAt(grid, bandT.coef, null, j, d12, kt)[1] - gt[j];
-    tBias[j] = Number.isFinite(shT) && finite >= 10 ? Math.abs(shT) / Math.max(0.5 * (quantileSorted(tc, 0.975) - quantileSorted(tc, 0.025)), 1e-300) : 0;
-    [tLo[j], tHi[j]] = finite >= 10 ? bandOffsets(tc, shT) : [NaN, NaN];
-  }
+  const gb = gridBands(grid, boot, Rb, lv.kappaFit.coef, lv.tauFit.coef, bandK.coef, bandT.coef);
   const gridPos = locateOnGrid(lv.gridU, sampleU, closed, basis);
-  const at = (arr: Float64Array, j: number) => {
-    const k = gridPos.index[j], f = gridPos.frac[j];
-    return arr[k] + f * (arr[Math.min(k + 1, g - 1)] - arr[k]);
-  };
   const resolutionM = lv.resolution * L0;
   // A near-interpolated sparse trace carries the spline's end effect over about three sample
   // spacings (measured on noise-free helices of 10-60 points, 3.6 per turn: +10% and +6% at the
   // third and fourth samples, under 1.5% beyond): its end zone is at least 3.5 spacings.
   const endZone = fit.sparse ? Math.max(resolutionM, (3.5 * length * L0) / Math.max(1, fit.u.length - 1)) : resolutionM;
-  let straightCount = 0;
-  for (let j = 0; j < m; ++j) {
-    const sdK = fit.sel.sigmaFrom === "unknown" ? 0 : Math.sqrt(at(boot.curvatureVar, j));
-    const kap = Math.hypot(kv[3 * j], kv[3 * j + 1], kv[3 * j + 2]);
-    let resolved = kap > 3 * sdK && kap > STRAIGHT_KAPPA;
-    if (!(kap > STRAIGHT_KAPPA)) ++straightCount;
-    if (R > 0) {
-      kappaLo[j] = Math.max(0, kappa[j] + at(kLo, j) / L0);
-      // Where the curvature vector's 95% region holds 0 (|k| within sqrt(chi2_d(0.95)) of its
-      // per-direction SD: 2.448 for the 2 normal directions in space, 1.96 in a plane; the
-      // confidence region of a normal mean, common practice), the band of |k| reaches down to 0:
-      // quantiles of the replicates' norms never do, and a straight stretch's band then misses 0.
-      if (kap <= (normalDims === 2 ? 2.448 : 1.96) * sdK) kappaLo[j] = 0;
-      kappaHi[j] = kappa[j] + at(kHi, j) / L0;
-      if (at(kBias, j) > BIAS_RATIO_KAPPA) flags[j] |= FLAG_BIAS;
-      // A curvature band that reaches 0 (noise, or the bias of a feature near the resolution
-      // length) cannot tell the curvature from zero either: no torsion there.
-      if (!(kappaLo[j] > 0)) resolved = false;
-    }
-    if (trace.planarProjection) {
-      flags[j] |= FLAG_TORSION_NOT_MEASURABLE;
-      tau[j] = NaN;
-    } else if (!resolved) {
-      flags[j] |= FLAG_TORSION_UNDEFINED;
-      tau[j] = NaN;
-    } else if (R > 0) {
-      const lo = at(tLo, j) / L0, hi = at(tHi, j) / L0;
-      tauLo[j] = tau[j] + lo;
-      tauHi[j] = tau[j] + hi;
-      if (at(tBias, j) > BIAS_RATIO_TAU) flags[j] |= FLAG_BIAS;
-    }
-    if (!closed && (s[j] < endZone || s[j] > (length * L0) - endZone)) flags[j] |= FLAG_END;
-  }
-  const resolvedMask = new Uint8Array(m);
-  for (let j = 0; j < m; ++j) resolvedMask[j] = flags[j] & FLAG_TORSION_UNDEFINED ? 0 : 1;
+  const flags = new Uint8Array(m);
+  const bands = sampleBands({
+    kappa, tau, kv, s, flags, gridPos, g, curvatureVar: boot.curvatureVar, gb, L0,
+    noiseUnknown: fit.sel.sigmaFrom === "unknown", withBands: R > 0, normalDims, planarProjection: trace.planarProjection === true,
+    closed, endZone, lengthM: length * L0,
+  });
+  const { kappaLo, kappaHi, tauLo, tauHi, straightCount } = bands;
+  const resolvedMask = torsionMask(flags);
   const fr = frames(r1, kv, resolvedMask, closed);
-  for (let j = 0; j < m; ++j) if (fr.transported[j]) flags[j] |= FLAG_FRAME_TRANSPORTED;
-  for (const f of [fr.T, fr.N, fr.B]) for (let j = 0; j < m; ++j) toLab(f, 3 * j, f, 3 * j);
-  const undefinedCount = m - resolvedMask.reduce((a, v) => a + v, 0);
+  markTransported(fr.transported, flags);
+  rotateToLab(fr.T, Q); rotateToLab(fr.N, Q); rotateToLab(fr.B, Q);
+  const undefinedCount = m - countSet(resolvedMask);
   if (straightCount === m) diagnostics.push("straight wire: the curvature cannot be told from zero anywhere; torsion is undefined (NaN) at every sample");
   else if (undefinedCount > 0 && !trace.planarProjection) diagnostics.push(`torsion: undefined at ${undefinedCount} of ${m} samples where the curvature cannot be told from zero (a twist-free frame is carried there)`);
-  let biased = 0;
-  for (let j = 0; j < m; ++j) if (flags[j] & FLAG_BIAS && !(flags[j] & FLAG_END)) ++biased;
+  const biased = countBiased(flags);
   if (biased > 0) diagnostics.push(`bands: at ${biased} of ${m} samples the curvature or torsion changes by more than its noise band's half-width when smoothed less (a feature near the resolution length): the bands may under-cover there`);
   if (trace.planarProjection) diagnostics.push("planar projection: curvature is the projected curvature; torsion is not measurable");
 
-  let kappaSamples: Float64Array | undefined, tauSamples: Float64Array | undefined;
-  if (set.keepSamples && R > 0) {
-    kappaSamples = new Float64Array(R * m);
-    tauSamples = new Float64Array(R * m);
-    // Replicates recentred on their median, as the bands are.
-    const kMed = new Float64Array(g), tMed = new Float64Array(g);
-    for (let j = 0; j < g; ++j) {
-      for (let r = 0; r < Rb; ++r) col[r] = boot.kappa[r * g + j];
-      kMed[j] = quantileSorted(col.sort(), 0.5);
-      let finite = 0;
-      for (let r = 0; r < Rb; ++r) { const v = boot.tau[r * g + j]; if (Number.isFinite(v)) col[finite++] = v; }
-      tMed[j] = finite > 0 ? quantileSorted(col.subarray(0, finite).sort(), 0.5) : 0;
-    }
-    for (let r = 0; r < R; ++r) {
-      for (let j = 0; j < m; ++j) {
-        const k = gridPos.index[j], f = gridPos.frac[j], k1 = Math.min(k + 1, g - 1);
-        const dk = (boot.kappa[r * g + k] - kMed[k]) * (1 - f) + (boot.kappa[r * g + k1] - kMed[k1]) * f;
-        const dt = (boot.tau[r * g + k] - tMed[k]) * (1 - f) + (boot.tau[r * g + k1] - tMed[k1]) * f;
-        kappaSamples[r * m + j] = Math.max(0, kappa[j] + dk / L0);
-        tauSamples[r * m + j] = Number.isNaN(tau[j]) ? NaN : tau[j] + dt / L0;
-      }
-    }
-  }
-
+  const kept = set.keepSamples && R > 0 ? keptReplicates(boot, Rb, R, gridPos, kappa, tau, L0) : undefined;
   const rowOf = (i: number) => (trace.rows ? trace.rows[i] : i + 1);
-  const inputRow = new Int32Array(m);
-  const rows = trace.rows;
-  for (let j = 0; j < m; ++j) { const i = samples.traceIndex[j]; inputRow[j] = i < 0 ? -1 : rows ? rows[i] : i + 1; }
-  const downweighted: number[] = [];
-  for (let i = 0; i < fit.w.length; ++i) if (fit.w[i] < 0.5) downweighted.push(start.kept[i]);
+  const inputRow = inputRows(samples.traceIndex, trace.rows);
+  const downweighted = downweightedPoints(fit.w, start.kept);
   if (downweighted.length > 0) diagnostics.push(`robust fit: ${downweighted.length} point(s) downweighted as outliers (first at ${trace.rows ? "row" : "point"} ${rowOf(downweighted[0])})`);
   const outliers = [...start.dropped, ...downweighted].sort((a, b) => a - b);
 
   const profile: Profile = {
-    n: m, s, x, y: yy, z, T: fr.T, N: fr.N, B: fr.B,
+    n: m, s, x: est.x, y: est.y, z: est.z, T: fr.T, N: fr.N, B: fr.B,
     kappa, kappaLo, kappaHi, tau, tauLo, tauHi, flags,
     length: length * L0, closed,
     resolution: resolutionM,
@@ -229,10 +129,331 @@ export function fitBands(
     source: trace.source,
     planarProjection: trace.planarProjection ?? false,
     diagnostics,
-    ...(kappaSamples && tauSamples ? { kappaSamples, tauSamples } : {}),
+    ...(kept ? { kappaSamples: kept.kappa, tauSamples: kept.tau } : {}),
   };
   checkProfile(profile, trace.source.file);
   return profile;
+}
+
+/** Point estimates at the samples (lab frame, metres): position, arc length, kappa, tau, r' and the curvature vector (canonical). */
+interface PointEstimates {
+  readonly s: Float64Array;
+  readonly x: Float64Array;
+  readonly y: Float64Array;
+  readonly z: Float64Array;
+  readonly kappa: Float64Array;
+  readonly tau: Float64Array;
+  /** r' at each sample (3 per sample, canonical frame). */
+  readonly r1: Float64Array;
+  /** Curvature vector at each sample (3 per sample, canonical units). */
+  readonly kv: Float64Array;
+}
+
+function pointEstimates(basis: SplineBasis, lv: Levels, samples: Samples, canon: Start["canon"]): PointEstimates {
+  const m = samples.u.length;
+  const out: PointEstimates = {
+    s: new Float64Array(m), x: new Float64Array(m), y: new Float64Array(m), z: new Float64Array(m),
+    kappa: new Float64Array(m), tau: new Float64Array(m), r1: new Float64Array(3 * m), kv: new Float64Array(3 * m),
+  };
+  pointLoop(basis, lv.kappaFit.coef, lv.tauFit === lv.kappaFit ? null : lv.tauFit.coef, lv.planarWithinNoise, samples.u, samples.s, canon.Q, canon.centre, canon.scale, out);
+  return out;
+}
+
+/** The loop of {@link pointEstimates}; `tauCoef` null: torsion from the curvature fit; `planar`: tau = 0. */
+function pointLoop(
+  basis: SplineBasis, kappaCoef: Float64Array, tauCoef: Float64Array | null, planar: boolean, u: Float64Array, sc: Float64Array,
+  Q: Float64Array, centre: readonly [number, number, number], L0: number, out: PointEstimates,
+): void {
+  const { s, x, y, z, kappa, tau, r1, kv } = out;
+  const d12 = new Float64Array(12), st = new Float64Array(1), sb = new Float64Array(24), kt = new Float64Array(5);
+  const c0 = centre[0], c1 = centre[1], c2 = centre[2];
+  for (let j = 0; j < u.length; ++j) {
+    evalCurve(basis, kappaCoef, u[j], 3, d12, st, sb);
+    s[j] = sc[j] * L0;
+    const a = d12[0], b = d12[1], c = d12[2];
+    x[j] = (Q[0] * a + Q[3] * b + Q[6] * c) * L0 + c0;
+    y[j] = (Q[1] * a + Q[4] * b + Q[7] * c) * L0 + c1;
+    z[j] = (Q[2] * a + Q[5] * b + Q[8] * c) * L0 + c2;
+    kappaTau(d12, kt);
+    kappa[j] = kt[0] / L0;
+    r1[3 * j] = d12[3]; r1[3 * j + 1] = d12[4]; r1[3 * j + 2] = d12[5];
+    kv[3 * j] = kt[2]; kv[3 * j + 1] = kt[3]; kv[3 * j + 2] = kt[4];
+    if (planar) tau[j] = 0;
+    else {
+      if (tauCoef) evalCurve(basis, tauCoef, u[j], 3, d12, st, sb);
+      tau[j] = kappaTau(d12, kt)[1] / L0;
+    }
+  }
+}
+
+/** Band offsets (canonical units, relative to the estimate) and bias ratios on the grid. */
+interface GridBands {
+  readonly kLo: Float64Array;
+  readonly kHi: Float64Array;
+  readonly tLo: Float64Array;
+  readonly tHi: Float64Array;
+  readonly kBias: Float64Array;
+  readonly tBias: Float64Array;
+}
+
+/**
+ * Per grid point: the less-smoothed fits' shifts (band fit minus estimate), the band offsets of
+ * `bandOffsets` from the replicates, and the bias ratios (the shift over the noise band's
+ * half-width); torsion bands need 10 finite replicates.
+ */
+function gridBands(
+  grid: GridBasis, boot: BootstrapOutput, Rb: number, kappaCoef: Float64Array, tauCoef: Float64Array, bandKCoef: Float64Array, bandTCoef: Float64Array,
+): GridBands {
+  const g = grid.m;
+  const shK = new Float64Array(g), shT = new Float64Array(g);
+  gridShifts(grid, kappaCoef, tauCoef, bandKCoef, bandTCoef, shK, shT);
+  const out: GridBands = {
+    kLo: new Float64Array(g), kHi: new Float64Array(g), tLo: new Float64Array(g), tHi: new Float64Array(g),
+    kBias: new Float64Array(g), tBias: new Float64Array(g),
+  };
+  // The replicates of 8 grid points at a time (a cache line of each replicate's row), point-major.
+  const kBlock = new Float64Array(COLUMN_BLOCK * Rb), tBlock = new Float64Array(COLUMN_BLOCK * Rb);
+  for (let j0 = 0; j0 < g; j0 += COLUMN_BLOCK) {
+    const width = Math.min(COLUMN_BLOCK, g - j0);
+    gatherColumns(boot.kappa, g, Rb, j0, width, kBlock);
+    gatherColumns(boot.tau, g, Rb, j0, width, tBlock);
+    for (let jj = 0; jj < width; ++jj) columnBands(kBlock.subarray(jj * Rb, (jj + 1) * Rb), tBlock.subarray(jj * Rb, (jj + 1) * Rb), j0 + jj, shK, shT, out);
+  }
+  return out;
+}
+
+/** Grid points whose replicates are gathered together (8 doubles: one cache line per replicate). */
+const COLUMN_BLOCK = 8;
+
+/** dst[jj * Rb + r] = src[r * g + j0 + jj] for jj < width: columns j0.. of the replicate-major src. */
+function gatherColumns(src: Float64Array, g: number, Rb: number, j0: number, width: number, dst: Float64Array): void {
+  for (let r = 0; r < Rb; ++r) {
+    const base = r * g + j0;
+    for (let jj = 0; jj < width; ++jj) dst[jj * Rb + r] = src[base + jj];
+  }
+}
+
+/** The bands and bias ratios of grid point j from its replicates (both arrays are reordered). */
+function columnBands(kCol: Float64Array, tCol: Float64Array, j: number, shK: Float64Array, shT: Float64Array, out: GridBands): void {
+  placeBandQuantiles(kCol);
+  const half = 0.5 * (quantileSorted(kCol, 0.975) - quantileSorted(kCol, 0.025));
+  // Bias ratio: the less-smoothed fit's move over the half-width of the noise band.
+  out.kBias[j] = Math.abs(shK[j]) / Math.max(half, 1e-300);
+  const [klo, khi] = bandOffsets(kCol, shK[j]);
+  out.kLo[j] = klo; out.kHi[j] = khi;
+  let finite = 0;
+  for (let r = 0; r < tCol.length; ++r) { const v = tCol[r]; if (Number.isFinite(v)) tCol[finite++] = v; }
+  const tc = placeBandQuantiles(tCol.subarray(0, finite));
+  const sh = shT[j];
+  out.tBias[j] = Number.isFinite(sh) && finite >= 10 ? Math.abs(sh) / Math.max(0.5 * (quantileSorted(tc, 0.975) - quantileSorted(tc, 0.025)), 1e-300) : 0;
+  if (finite >= 10) {
+    const [tlo, thi] = bandOffsets(tc, sh);
+    out.tLo[j] = tlo; out.tHi[j] = thi;
+  } else { out.tLo[j] = NaN; out.tHi[j] = NaN; }
+}
+
+/** shK = kappa of the band fit minus kappa of the estimate, shT the same for tau, at each grid point. */
+function gridShifts(
+  grid: GridBasis, kappaCoef: Float64Array, tauCoef: Float64Array, bandKCoef: Float64Array, bandTCoef: Float64Array, shK: Float64Array, shT: Float64Array,
+): void {
+  const d12 = new Float64Array(12), kt = new Float64Array(5);
+  for (let j = 0; j < grid.m; ++j) {
+    const gk = kappaTauAt(grid, kappaCoef, null, j, d12, kt)[0];
+    const gt = kappaTauAt(grid, tauCoef, null, j, d12, kt)[1];
+    shK[j] = kappaTauAt(grid, bandKCoef, null, j, d12, kt)[0] - gk;
+    shT[j] = kappaTauAt(grid, bandTCoef, null, j, d12, kt)[1] - gt;
+  }
+}
+
+/** The quantiles the bands read (see `quantileSorted`). */
+const BAND_PS = Float64Array.of(0.025, 0.5, 0.975);
+
+/**
+ * Arranges `a` so that every entry `quantileSorted` reads for p = 0.025, 0.5 and 0.975 holds the
+ * value an ascending sort would put there (Hoare selection of each, in ascending order, on the part
+ * above the last one placed: O(n) instead of a sort); returns `a`. With a zero or a NaN in `a` it
+ * sorts instead (the sort puts -0 before +0 and NaN last, which selection by < cannot tell).
+ */
+export function placeBandQuantiles(a: Float64Array): Float64Array {
+  const n = a.length;
+  for (let i = 0; i < n; ++i) { const v = a[i]; if (v === 0 || v !== v) return a.sort(); }
+  let left = 0;
+  for (let q = 0; q < BAND_PS.length; ++q) {
+    const lo = Math.floor((n - 1) * BAND_PS[q]);
+    if (lo >= left) {
+      selectInPlace(a.subarray(left), n - left, lo - left);
+      left = lo + 1;
+    }
+    if (lo + 1 < n && lo + 1 >= left) {
+      // The next order statistic: the least of the part above.
+      let at = lo + 1;
+      for (let i = lo + 2; i < n; ++i) if (a[i] < a[at]) at = i;
+      const t = a[lo + 1]; a[lo + 1] = a[at]; a[at] = t;
+      left = lo + 2;
+    }
+  }
+  return a;
+}
+
+/** Value of grid array `arr` linearly interpolated at sample j. */
+function atSample(arr: Float64Array, pos: GridPosition, j: number, g: number): number {
+  const k = pos.index[j], f = pos.frac[j];
+  return arr[k] + f * (arr[Math.min(k + 1, g - 1)] - arr[k]);
+}
+
+/**
+ * Per sample: the bands (from the grid), the bias and end flags, and the torsion gate (tau set to
+ * NaN and flagged where the curvature cannot be told from zero, or a planar projection). `tau` and
+ * `flags` are changed in place; returns the bands and the count of straight samples.
+ */
+function sampleBands(o: {
+  readonly kappa: Float64Array; readonly tau: Float64Array; readonly kv: Float64Array; readonly s: Float64Array; readonly flags: Uint8Array;
+  readonly gridPos: GridPosition; readonly g: number; readonly curvatureVar: Float64Array; readonly gb: GridBands; readonly L0: number;
+  readonly noiseUnknown: boolean; readonly withBands: boolean; readonly normalDims: 1 | 2; readonly planarProjection: boolean;
+  readonly closed: boolean; readonly endZone: number; readonly lengthM: number;
+}): { kappaLo: Float64Array; kappaHi: Float64Array; tauLo: Float64Array; tauHi: Float64Array; straightCount: number } {
+  const m = o.kappa.length;
+  const out = {
+    kappaLo: new Float64Array(m).fill(NaN), kappaHi: new Float64Array(m).fill(NaN),
+    tauLo: new Float64Array(m).fill(NaN), tauHi: new Float64Array(m).fill(NaN), straightCount: 0,
+  };
+  out.straightCount = sampleLoop(o, out.kappaLo, out.kappaHi, out.tauLo, out.tauHi);
+  return out;
+}
+
+/** The loop of {@link sampleBands}; returns the count of straight samples. */
+function sampleLoop(
+  o: Parameters<typeof sampleBands>[0], kappaLo: Float64Array, kappaHi: Float64Array, tauLo: Float64Array, tauHi: Float64Array,
+): number {
+  const { kappa, tau, kv, s, flags, gridPos, g, curvatureVar, L0, noiseUnknown, withBands, planarProjection, closed, endZone, lengthM } = o;
+  const { kLo, kHi, tLo, tHi, kBias, tBias } = o.gb;
+  const zeroWithin = o.normalDims === 2 ? 2.448 : 1.96;
+  let straightCount = 0;
+  for (let j = 0; j < kappa.length; ++j) {
+    const sdK = noiseUnknown ? 0 : Math.sqrt(atSample(curvatureVar, gridPos, j, g));
+    const kap = hypot3(kv[3 * j], kv[3 * j + 1], kv[3 * j + 2]);
+    let resolved = kap > 3 * sdK && kap > STRAIGHT_KAPPA;
+    if (!(kap > STRAIGHT_KAPPA)) ++straightCount;
+    if (withBands) {
+      kappaLo[j] = Math.max(0, kappa[j] + atSample(kLo, gridPos, j, g) / L0);
+      // Where the curvature vector's 95% region holds 0 (|k| within sqrt(chi2_d(0.95)) of its
+      // per-direction SD: 2.448 for the 2 normal directions in space, 1.96 in a plane; the
+      // confidence region of a normal mean, common practice), the band of |k| reaches down to 0:
+      // quantiles of the replicates' norms never do, and a straight stretch's band then misses 0.
+      if (kap <= zeroWithin * sdK) kappaLo[j] = 0;
+      kappaHi[j] = kappa[j] + atSample(kHi, gridPos, j, g) / L0;
+      if (atSample(kBias, gridPos, j, g) > BIAS_RATIO_KAPPA) flags[j] |= FLAG_BIAS;
+      // A curvature band that reaches 0 (noise, or the bias of a feature near the resolution
+      // length) cannot tell the curvature from zero either: no torsion there.
+      if (!(kappaLo[j] > 0)) resolved = false;
+    }
+    if (planarProjection) {
+      flags[j] |= FLAG_TORSION_NOT_MEASURABLE;
+      tau[j] = NaN;
+    } else if (!resolved) {
+      flags[j] |= FLAG_TORSION_UNDEFINED;
+      tau[j] = NaN;
+    } else if (withBands) {
+      const lo = atSample(tLo, gridPos, j, g) / L0, hi = atSample(tHi, gridPos, j, g) / L0;
+      tauLo[j] = tau[j] + lo;
+      tauHi[j] = tau[j] + hi;
+      if (atSample(tBias, gridPos, j, g) > BIAS_RATIO_TAU) flags[j] |= FLAG_BIAS;
+    }
+    if (!closed && (s[j] < endZone || s[j] > lengthM - endZone)) flags[j] |= FLAG_END;
+  }
+  return straightCount;
+}
+
+/** 1 where the torsion is defined (not flagged undefined), else 0. */
+function torsionMask(flags: Uint8Array): Uint8Array {
+  const mask = new Uint8Array(flags.length);
+  for (let j = 0; j < flags.length; ++j) mask[j] = flags[j] & FLAG_TORSION_UNDEFINED ? 0 : 1;
+  return mask;
+}
+
+function countSet(mask: Uint8Array): number {
+  let c = 0;
+  for (let j = 0; j < mask.length; ++j) c += mask[j];
+  return c;
+}
+
+/** Samples flagged biased and not at an end. */
+function countBiased(flags: Uint8Array): number {
+  let c = 0;
+  for (let j = 0; j < flags.length; ++j) if (flags[j] & FLAG_BIAS && !(flags[j] & FLAG_END)) ++c;
+  return c;
+}
+
+function markTransported(transported: Uint8Array, flags: Uint8Array): void {
+  for (let j = 0; j < flags.length; ++j) if (transported[j]) flags[j] |= FLAG_FRAME_TRANSPORTED;
+}
+
+/** v (3 per sample, canonical frame) turned to the lab frame in place: v <- Q^T v. */
+function rotateToLab(v: Float64Array, Q: Float64Array): void {
+  for (let j = 0; j < v.length; j += 3) {
+    const a = v[j], b = v[j + 1], c = v[j + 2];
+    v[j] = Q[0] * a + Q[3] * b + Q[6] * c;
+    v[j + 1] = Q[1] * a + Q[4] * b + Q[7] * c;
+    v[j + 2] = Q[2] * a + Q[5] * b + Q[8] * c;
+  }
+}
+
+/** Input row of each sample (1-based, or the trace's row numbers; -1 for resampled samples). */
+function inputRows(traceIndex: Int32Array, rows: Trace["rows"]): Int32Array {
+  const out = new Int32Array(traceIndex.length);
+  for (let j = 0; j < traceIndex.length; ++j) { const i = traceIndex[j]; out[j] = i < 0 ? -1 : rows ? rows[i] : i + 1; }
+  return out;
+}
+
+/** Trace indices of the points whose robust weight is below 0.5. */
+function downweightedPoints(w: Float64Array, kept: Int32Array): number[] {
+  const out: number[] = [];
+  for (let i = 0; i < w.length; ++i) if (w[i] < 0.5) out.push(kept[i]);
+  return out;
+}
+
+/**
+ * The replicates kept for the physics stage: each replicate's deviation from its grid point's
+ * median, interpolated to the samples, added to the estimate (kappa floored at 0; NaN where tau is).
+ */
+function keptReplicates(
+  boot: BootstrapOutput, Rb: number, R: number, gridPos: GridPosition, kappa: Float64Array, tau: Float64Array, L0: number,
+): { kappa: Float64Array; tau: Float64Array } {
+  const g = boot.curvatureVar.length, m = kappa.length;
+  // Replicates recentred on their median, as the bands are.
+  const kMed = new Float64Array(g), tMed = new Float64Array(g);
+  gridMedians(boot, Rb, kMed, tMed);
+  const out = { kappa: new Float64Array(R * m), tau: new Float64Array(R * m) };
+  keptLoop(boot, R, gridPos, kappa, tau, L0, kMed, tMed, out.kappa, out.tau);
+  return out;
+}
+
+function gridMedians(boot: BootstrapOutput, Rb: number, kMed: Float64Array, tMed: Float64Array): void {
+  const g = kMed.length;
+  const col = new Float64Array(Rb);
+  for (let j = 0; j < g; ++j) {
+    for (let r = 0; r < Rb; ++r) col[r] = boot.kappa[r * g + j];
+    kMed[j] = quantileSorted(placeBandQuantiles(col), 0.5);
+    let finite = 0;
+    for (let r = 0; r < Rb; ++r) { const v = boot.tau[r * g + j]; if (Number.isFinite(v)) col[finite++] = v; }
+    tMed[j] = finite > 0 ? quantileSorted(placeBandQuantiles(col.subarray(0, finite)), 0.5) : 0;
+  }
+}
+
+function keptLoop(
+  boot: BootstrapOutput, R: number, gridPos: GridPosition, kappa: Float64Array, tau: Float64Array, L0: number,
+  kMed: Float64Array, tMed: Float64Array, kappaSamples: Float64Array, tauSamples: Float64Array,
+): void {
+  const g = kMed.length, m = kappa.length;
+  for (let r = 0; r < R; ++r) {
+    for (let j = 0; j < m; ++j) {
+      const k = gridPos.index[j], f = gridPos.frac[j], k1 = Math.min(k + 1, g - 1);
+      const dk = (boot.kappa[r * g + k] - kMed[k]) * (1 - f) + (boot.kappa[r * g + k1] - kMed[k1]) * f;
+      const dt = (boot.tau[r * g + k] - tMed[k]) * (1 - f) + (boot.tau[r * g + k1] - tMed[k1]) * f;
+      kappaSamples[r * m + j] = Math.max(0, kappa[j] + dk / L0);
+      tauSamples[r * m + j] = Number.isNaN(tau[j]) ? NaN : tau[j] + dt / L0;
+    }
+  }
 }
 
 /**
@@ -254,8 +475,14 @@ export function checkProfile(p: Profile, file: string): void {
   }
 }
 
+/** Where each sample sits on the grid: the interval and the fraction within. */
+interface GridPosition {
+  readonly index: Int32Array;
+  readonly frac: Float64Array;
+}
+
 /** For each sorted sample parameter, the grid interval holding it and the fraction within. */
-function locateOnGrid(grid: Float64Array, at: Float64Array, closed: boolean, basis: SplineBasis): { index: Int32Array; frac: Float64Array } {
+function locateOnGrid(grid: Float64Array, at: Float64Array, closed: boolean, basis: SplineBasis): GridPosition {
   const index = new Int32Array(at.length), frac = new Float64Array(at.length);
   if (grid === at) {
     for (let j = 0; j < at.length; ++j) index[j] = j;

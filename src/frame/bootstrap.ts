@@ -1,11 +1,12 @@
-import { basisAt, locate, type SplineBasis } from "./bspline.js";
+import { basisAt, basisValues, locate, type SplineBasis } from "./bspline.js";
 
 /** Quintic: six active basis functions per interval (local copy: imported bindings are slow in hot loops). */
 const ORDER = 6;
 const coefIndex = (basis: SplineBasis, i: number, j: number): number => (basis.periodic ? (i + j) % basis.K : i + j);
 import { kappaTau } from "./curve.js";
 import { envelope } from "./design.js";
-import { factorLdl, makeSkyline, mulLsqrtD, solveLdl, sqrtDiagonal, type Skyline } from "./skyline.js";
+import { factorLdl, makeSkyline, mulLsqrtD, solveLdl, solveLdl3, sqrtDiagonal, type Skyline } from "./skyline.js";
+export { solveLdl3 } from "./skyline.js";
 
 /** Replicates on the evaluation points, replicate-major: kappa[r * m + j]. */
 export interface BootstrapOutput {
@@ -19,17 +20,7 @@ export interface BootstrapOutput {
 export function normalGenerator(seed: number): () => number {
   // The state lives in typed arrays (closure variables holding doubles or 32-bit integers outside
   // the small-integer range cost a heap allocation per update); the bit operations are unchanged.
-  const st = new Int32Array(5), spare = new Float64Array(1);
-  st[4] = seed >>> 0;
-  const split = () => {
-    const x = (st[4] + 0x9e3779b9) >>> 0;
-    st[4] = x;
-    let z = x;
-    z = Math.imul(z ^ (z >>> 16), 0x85ebca6b) >>> 0;
-    z = Math.imul(z ^ (z >>> 13), 0xc2b2ae35) >>> 0;
-    return (z ^ (z >>> 16)) >>> 0;
-  };
-  st[0] = split(); st[1] = split(); st[2] = split(); st[3] = split();
+  const st = seededState(seed), spare = new Float64Array(1);
   const next = () => {
     let a = st[0], b = st[1], c = st[2], d = st[3];
     const r = Math.imul(((Math.imul(b, 5) << 7) | (Math.imul(b, 5) >>> 25)) >>> 0, 9) >>> 0;
@@ -52,6 +43,60 @@ export function normalGenerator(seed: number): () => number {
   };
 }
 
+/** The xoshiro128** state of `normalGenerator` (st[0..3]; st[4] the splitmix32 counter). */
+function seededState(seed: number): Int32Array {
+  const st = new Int32Array(5);
+  st[4] = seed >>> 0;
+  const split = () => {
+    const x = (st[4] + 0x9e3779b9) >>> 0;
+    st[4] = x;
+    let z = x;
+    z = Math.imul(z ^ (z >>> 16), 0x85ebca6b) >>> 0;
+    z = Math.imul(z ^ (z >>> 13), 0xc2b2ae35) >>> 0;
+    return (z ^ (z >>> 16)) >>> 0;
+  };
+  st[0] = split(); st[1] = split(); st[2] = split(); st[3] = split();
+  return st;
+}
+
+/**
+ * The stream of `normalGenerator(seed)`, filled into whole arrays: each call continues where the
+ * last one ended (a pair's second normal carried over), the same numbers as calling the generator
+ * once per entry, without a call per number.
+ */
+export function normalFiller(seed: number): (out: Float64Array) => void {
+  const st = seededState(seed), spare = Float64Array.of(NaN);
+  return (out) => fillNormals(st, spare, out);
+}
+
+/** The loop of {@link normalFiller}: the generator's operations with the state in locals (the
+ * 32-bit words are the same modulo 2^32 whether held signed or unsigned). */
+function fillNormals(st: Int32Array, spare: Float64Array, out: Float64Array): void {
+  const n = out.length;
+  let k = 0;
+  if (n === 0) return;
+  if (!Number.isNaN(spare[0])) { out[k++] = spare[0]; spare[0] = NaN; }
+  let a = st[0], b = st[1], c = st[2], d = st[3];
+  while (k < n) {
+    let p = 0, q = 0;
+    for (let draw = 0; draw < 2; ) {
+      const r = Math.imul(((Math.imul(b, 5) << 7) | (Math.imul(b, 5) >>> 25)) >>> 0, 9) >>> 0;
+      const t = (b << 9) >>> 0;
+      c ^= a; d ^= b; b ^= c; a ^= d; c ^= t;
+      d = ((d << 11) | (d >>> 21)) >>> 0;
+      const x = r / 4294967296;
+      // The first uniform of a pair must be positive (redrawn until it is), as in the generator.
+      if (draw === 0) { if (x > 0) { p = x; draw = 1; } } else { q = x; draw = 2; }
+    }
+    const rad = Math.sqrt(-2 * Math.log(p));
+    out[k++] = rad * Math.cos(2 * Math.PI * q);
+    const second = rad * Math.sin(2 * Math.PI * q);
+    if (k < n) out[k++] = second;
+    else spare[0] = second;
+  }
+  st[0] = a; st[1] = b; st[2] = c; st[3] = d;
+}
+
 /**
  * Law of the perturbation dB = B^T W dy of the right-hand side under normal-plane noise
  * dy_i = sigma P_i xi_i (P_i the projector on the normal plane of the fit at point i):
@@ -63,12 +108,22 @@ export function rhsNoiseFactor(
 ): Skyline {
   const K = basis.K;
   const C = makeSkyline(envelope(K, ORDER - 1, basis.periodic, 3));
-  const st = new Float64Array(1), b = new Float64Array(24), idx = new Int32Array(ORDER);
-  const Pm = new Float64Array(9);
-  const s2 = sigma * sigma;
-  const data = C.data;
   const rowBase = new Int32Array(C.n);
   for (let r = 0; r < C.n; ++r) rowBase[r] = C.offset[r] - C.first[r];
+  accumulateRhsLaw(basis, u, w, tangent, sigma * sigma, normalDims, C.data, rowBase);
+  // A basis richer than the data (sparse traces) makes C singular; a ridge of 1e-9 of its largest
+  // diagonal keeps the L D L^T stable and adds a negligible variance.
+  addRidge(C, 1e-9);
+  factorLdl(C, 0);
+  return C;
+}
+
+/** The per-point sums of {@link rhsNoiseFactor} into C's data (s2 = sigma^2; a loop of its own for the JIT). */
+function accumulateRhsLaw(
+  basis: SplineBasis, u: Float64Array, w: Float64Array, tangent: Float64Array, s2: number, normalDims: 1 | 2, data: Float64Array, rowBase: Int32Array,
+): void {
+  const st = new Float64Array(1), b = new Float64Array(24), idx = new Int32Array(ORDER);
+  const Pm = new Float64Array(9);
   for (let p = 0; p < u.length; ++p) {
     const wp = w[p];
     if (wp === 0) continue;
@@ -84,7 +139,7 @@ export function rhsNoiseFactor(
     }
     Pm[3] = Pm[1]; Pm[6] = Pm[2]; Pm[7] = Pm[5];
     const i = locate(basis, u[p], st);
-    basisAt(st[0], basis.h, 0, b);
+    basisValues(st[0], b);
     for (let j = 0; j < ORDER; ++j) idx[j] = coefIndex(basis, i, j);
     const f = wp * wp * s2;
     const p0 = Pm[0], p1 = Pm[1], p2 = Pm[2], p4 = Pm[4], p5 = Pm[5], p8 = Pm[8];
@@ -113,13 +168,13 @@ export function rhsNoiseFactor(
       }
     }
   }
-  // A basis richer than the data (sparse traces) makes C singular; a ridge of 1e-9 of its largest
-  // diagonal keeps the L D L^T stable and adds a negligible variance.
+}
+
+/** Adds `ridge` times the largest diagonal entry to every diagonal entry. */
+function addRidge(C: Skyline, ridge: number): void {
   let maxDiag = 0;
   for (let r = 0; r < C.n; ++r) maxDiag = Math.max(maxDiag, C.data[C.offset[r] + r - C.first[r]]);
-  for (let r = 0; r < C.n; ++r) C.data[C.offset[r] + r - C.first[r]] += 1e-9 * maxDiag;
-  factorLdl(C, 0);
-  return C;
+  for (let r = 0; r < C.n; ++r) C.data[C.offset[r] + r - C.first[r]] += ridge * maxDiag;
 }
 
 /** Draws dB (3K, coefficient-major) and returns the coefficient perturbation (x, y, z blocks of K)
@@ -148,80 +203,51 @@ export function drawCoefPerturbation(
  * products as `mulLsqrtD` (L_ik sqrt(D_k) is formed once per factor and reused: bit-identical).
  */
 export function drawRhs(C: Skyline, xi: Float64Array, db: Float64Array, scratch: DrawScratch): Float64Array {
-  if (scratch.factorOf !== C || !scratch.sqrtD || !scratch.lsd) {
-    const sd = sqrtDiagonal(C);
-    const { n, first, offset, data } = C;
-    const lsd = new Float64Array(data.length);
-    for (let i = 0; i < n; ++i) {
-      const fi = first[i], oi = offset[i];
-      for (let k = fi; k < i; ++k) lsd[oi + k - fi] = data[oi + k - fi] * sd[k];
-    }
-    scratch.sqrtD = sd;
-    scratch.lsd = lsd;
-    scratch.factorOf = C;
+  if (scratch.factorOf !== C || !scratch.sqrtD || !scratch.lsd) scaleFactor(C, scratch);
+  mulScaled(C, scratch.sqrtD!, scratch.lsd!, xi, db);
+  return db;
+}
+
+/** scratch.sqrtD = sqrt(D) and scratch.lsd = L_ik sqrt(D_k) of C's factor. */
+function scaleFactor(C: Skyline, scratch: DrawScratch): void {
+  const sd = sqrtDiagonal(C);
+  const { n, first, offset, data } = C;
+  const lsd = new Float64Array(data.length);
+  for (let i = 0; i < n; ++i) {
+    const fi = first[i], oi = offset[i];
+    for (let k = fi; k < i; ++k) lsd[oi + k - fi] = data[oi + k - fi] * sd[k];
   }
+  scratch.sqrtD = sd;
+  scratch.lsd = lsd;
+  scratch.factorOf = C;
+}
+
+/** db = L sqrt(D) xi from sqrt(D) and the scaled factor (the sums of `mulLsqrtD`, in its order). */
+function mulScaled(C: Skyline, sd: Float64Array, lsd: Float64Array, xi: Float64Array, db: Float64Array): void {
   const { n, first, offset } = C;
-  const sd = scratch.sqrtD, lsd = scratch.lsd;
   for (let i = 0; i < n; ++i) {
     const fi = first[i], o = offset[i] - fi;
     let s = sd[i] * xi[i];
     for (let k = fi; k < i; ++k) s += lsd[o + k] * xi[k];
     db[i] = s;
   }
-  return db;
 }
 
-/**
- * Solves (L D L^T) x_c = b_c for the three coordinates at once: b interleaved (b[3k + c]), x as
- * x, y, z blocks of K. Each coordinate sees exactly the operations of `solveLdl` (bit-identical);
- * one sweep over the factor serves all three. `w` is scratch of length 3K.
- */
-export function solveLdl3(f: Skyline, b: Float64Array, x: Float64Array, w: Float64Array): Float64Array {
-  // One loop per function (forward, diagonal, backward, scatter): a loop compiled on the stack
-  // before the later loops have run would otherwise be deoptimised on every call.
-  forward3(f, b, w);
-  diagonal3(f, w);
-  backward3(f, w);
-  scatter3(w, x, f.n);
-  return x;
+/** `drawRhs` for two vectors at once: each dB the sums of `drawRhs` in its order (bit-identical), one sweep over the scaled factor. */
+export function drawRhsPair(C: Skyline, xiA: Float64Array, xiB: Float64Array, dbA: Float64Array, dbB: Float64Array, scratch: DrawScratch): void {
+  if (scratch.factorOf !== C || !scratch.sqrtD || !scratch.lsd) scaleFactor(C, scratch);
+  mulScaledPair(C, scratch.sqrtD!, scratch.lsd!, xiA, xiB, dbA, dbB);
 }
 
-function forward3(f: Skyline, b: Float64Array, w: Float64Array): void {
-  const { n, first, offset, data } = f;
+/** The loop of {@link drawRhsPair}. */
+function mulScaledPair(C: Skyline, sd: Float64Array, lsd: Float64Array, xiA: Float64Array, xiB: Float64Array, dbA: Float64Array, dbB: Float64Array): void {
+  const { n, first, offset } = C;
   for (let i = 0; i < n; ++i) {
     const fi = first[i], o = offset[i] - fi;
-    let s0 = b[3 * i], s1 = b[3 * i + 1], s2 = b[3 * i + 2];
-    for (let k = fi; k < i; ++k) {
-      const l = data[o + k];
-      s0 -= l * w[3 * k]; s1 -= l * w[3 * k + 1]; s2 -= l * w[3 * k + 2];
-    }
-    w[3 * i] = s0; w[3 * i + 1] = s1; w[3 * i + 2] = s2;
+    let a = sd[i] * xiA[i], b = sd[i] * xiB[i];
+    for (let k = fi; k < i; ++k) { const l = lsd[o + k]; a += l * xiA[k]; b += l * xiB[k]; }
+    dbA[i] = a; dbB[i] = b;
   }
-}
-
-function diagonal3(f: Skyline, w: Float64Array): void {
-  const { n, first, offset, data } = f;
-  for (let i = 0; i < n; ++i) {
-    const d = data[offset[i] + i - first[i]];
-    if (d === 0) { w[3 * i] = 0; w[3 * i + 1] = 0; w[3 * i + 2] = 0; }
-    else { w[3 * i] /= d; w[3 * i + 1] /= d; w[3 * i + 2] /= d; }
-  }
-}
-
-function backward3(f: Skyline, w: Float64Array): void {
-  const { n, first, offset, data } = f;
-  for (let i = n - 1; i >= 0; --i) {
-    const fi = first[i], o = offset[i] - fi;
-    const x0 = w[3 * i], x1 = w[3 * i + 1], x2 = w[3 * i + 2];
-    for (let k = fi; k < i; ++k) {
-      const l = data[o + k];
-      w[3 * k] -= l * x0; w[3 * k + 1] -= l * x1; w[3 * k + 2] -= l * x2;
-    }
-  }
-}
-
-function scatter3(w: Float64Array, x: Float64Array, n: number): void {
-  for (let k = 0; k < n; ++k) { x[k] = w[3 * k]; x[n + k] = w[3 * k + 1]; x[2 * n + k] = w[3 * k + 2]; }
 }
 
 /** Scratch of {@link drawCoefPerturbation}: dB, the solve's workspace, C's scaled factor, and (for
@@ -370,33 +396,64 @@ export function bootstrapBands(inp: {
   readonly seed: number;
 }): BootstrapOutput {
   const { C, grid, kappaFit, tauFit, replicates: R } = inp;
-  const K = grid.basis.K, m = grid.m;
-  const d12 = new Float64Array(12), kt = new Float64Array(5);
+  const m = grid.m;
   const kvec0 = new Float64Array(3 * m);
-  for (let j = 0; j < m; ++j) {
-    kappaTauAt(grid, kappaFit.coef, null, j, d12, kt);
-    kvec0[3 * j] = kt[2]; kvec0[3 * j + 1] = kt[3]; kvec0[3 * j + 2] = kt[4];
-  }
+  curvatureVectors(grid, kappaFit.coef, kvec0);
   const kappa = new Float64Array(R * m), tau = new Float64Array(R * m), curvatureVar = new Float64Array(m);
-  const rnd = normalGenerator(inp.seed);
-  const xi = new Float64Array(3 * K), dc = new Float64Array(3 * K);
-  const scratch = drawScratch(K);
-  const db = scratch.db, work = scratch.sol3 ?? new Float64Array(3 * K);
-  const sameFactor = kappaFit.factor === tauFit.factor;
-  const cs = new Float64Array(3 * K);
-  for (let r = 0; r < R; ++r) {
-    for (let k = 0; k < 3 * K; ++k) xi[k] = rnd();
-    // One draw of dB serves both factors (as drawCoefPerturbation twice, without the second product).
-    drawRhs(C, xi, db, scratch);
-    solveLdl3(kappaFit.factor, db, dc, work);
-    addInto(kappaFit.coef, dc, cs);
-    replicateKappa(grid, cs, kappa, sameFactor ? tau : null, r * m, kvec0, curvatureVar, d12, kt);
-    if (!sameFactor) {
-      solveLdl3(tauFit.factor, db, dc, work);
-      addInto(tauFit.coef, dc, cs);
-      replicateTau(grid, cs, tau, r * m, d12, kt);
-    }
-  }
+  drawReplicates(C, grid, kappaFit, tauFit, R, inp.seed, kvec0, { kappa, tau, curvatureVar });
   for (let j = 0; j < m; ++j) curvatureVar[j] /= Math.max(R, 1) * inp.normalDims;
   return { kappa, tau, curvatureVar };
+}
+
+/** The curvature vector of the fit `coef` at each grid point (3 per point). */
+function curvatureVectors(grid: GridBasis, coef: Float64Array, kvec: Float64Array): void {
+  const d12 = new Float64Array(12), kt = new Float64Array(5);
+  for (let j = 0; j < grid.m; ++j) {
+    kappaTauAt(grid, coef, null, j, d12, kt);
+    kvec[3 * j] = kt[2]; kvec[3 * j + 1] = kt[3]; kvec[3 * j + 2] = kt[4];
+  }
+}
+
+/**
+ * The R replicates of {@link bootstrapBands} into out.kappa, out.tau (replicate-major) and the
+ * curvature vector's squared deviations summed into out.curvatureVar. Replicates are drawn in pairs
+ * (`drawRhsPair`: one sweep over C's factor for two draws), the normals in the same stream order,
+ * and each replicate is then finished in turn, so every number is the one drawn one at a time.
+ */
+function drawReplicates(
+  C: Skyline, grid: GridBasis, kappaFit: { readonly coef: Float64Array; readonly factor: Skyline }, tauFit: { readonly coef: Float64Array; readonly factor: Skyline },
+  R: number, seed: number, kvec0: Float64Array, out: { readonly kappa: Float64Array; readonly tau: Float64Array; readonly curvatureVar: Float64Array },
+): void {
+  const K = grid.basis.K, m = grid.m;
+  const fill = normalFiller(seed);
+  const xiA = new Float64Array(3 * K), xiB = new Float64Array(3 * K), dbB = new Float64Array(3 * K);
+  const scratch = drawScratch(K);
+  const dbA = scratch.db;
+  const rep = { dc: new Float64Array(3 * K), work: scratch.sol3 ?? new Float64Array(3 * K), cs: new Float64Array(3 * K), d12: new Float64Array(12), kt: new Float64Array(5) };
+  for (let r = 0; r < R; r += 2) {
+    fill(xiA);
+    if (r + 1 < R) {
+      fill(xiB);
+      drawRhsPair(C, xiA, xiB, dbA, dbB, scratch);
+    } else drawRhs(C, xiA, dbA, scratch);
+    finishReplicate(grid, kappaFit, tauFit, dbA, r * m, kvec0, out, rep);
+    if (r + 1 < R) finishReplicate(grid, kappaFit, tauFit, dbB, (r + 1) * m, kvec0, out, rep);
+  }
+}
+
+/** One replicate from its dB: kappa (and tau) through each fit's factor (one draw serves both factors). */
+function finishReplicate(
+  grid: GridBasis, kappaFit: { readonly coef: Float64Array; readonly factor: Skyline }, tauFit: { readonly coef: Float64Array; readonly factor: Skyline },
+  db: Float64Array, off: number, kvec0: Float64Array, out: { readonly kappa: Float64Array; readonly tau: Float64Array; readonly curvatureVar: Float64Array },
+  rep: { readonly dc: Float64Array; readonly work: Float64Array; readonly cs: Float64Array; readonly d12: Float64Array; readonly kt: Float64Array },
+): void {
+  const sameFactor = kappaFit.factor === tauFit.factor;
+  solveLdl3(kappaFit.factor, db, rep.dc, rep.work);
+  addInto(kappaFit.coef, rep.dc, rep.cs);
+  replicateKappa(grid, rep.cs, out.kappa, sameFactor ? out.tau : null, off, kvec0, out.curvatureVar, rep.d12, rep.kt);
+  if (!sameFactor) {
+    solveLdl3(tauFit.factor, db, rep.dc, rep.work);
+    addInto(tauFit.coef, rep.dc, rep.cs);
+    replicateTau(grid, rep.cs, out.tau, off, rep.d12, rep.kt);
+  }
 }

@@ -104,3 +104,14 @@ export function basisAt(t: number, h: number, nd: number, out: Float64Array): vo
     if (nd >= 3) out[18 + j] = (6 * a3 + 24 * a4 * t + 60 * a5 * t2) * ih * ih * ih;
   }
 }
+
+/**
+ * Basis values alone at local coordinate t into out[0..5]: the `nd = 0` part of `basisAt` with its
+ * arithmetic (bit-identical), small enough for the JIT to inline into per-point loops.
+ */
+export function basisValues(t: number, out: Float64Array): void {
+  const t2 = t * t, t3 = t2 * t, t4 = t3 * t, t5 = t4 * t;
+  for (let j = 0; j < 6; ++j) {
+    out[j] = PIECES[j * 6] + PIECES[j * 6 + 1] * t + PIECES[j * 6 + 2] * t2 + PIECES[j * 6 + 3] * t3 + PIECES[j * 6 + 4] * t4 + PIECES[j * 6 + 5] * t5;
+  }
+}

@@ -1,4 +1,4 @@
-import { basisAt, locate, type SplineBasis } from "./bspline.js";
+import { basisValues, locate, type SplineBasis } from "./bspline.js";
 
 /** Quintic: six active basis functions per interval (local copy: imported bindings are slow in hot loops). */
 const ORDER = 6;
@@ -52,20 +52,32 @@ function accumulateNormal(
   basis: SplineBasis, u: Float64Array, xyz: Float64Array, w: Float64Array, gd: Float64Array, rowBase: Int32Array, rhs: Float64Array, sums: Float64Array,
 ): void {
   const K = basis.K;
-  const tOut = new Float64Array(1), b = new Float64Array(24), idx = new Int32Array(ORDER);
+  const tOut = new Float64Array(1), b = new Float64Array(ORDER), idx = new Int32Array(ORDER);
   let yWy = 0, wSum = 0;
   const n = u.length;
   for (let p = 0; p < n; ++p) {
     const wp = w[p];
     if (wp === 0) continue;
     const i = locate(basis, u[p], tOut);
-    basisAt(tOut[0], basis.h, 0, b);
+    basisValues(tOut[0], b);
     const x = xyz[3 * p], y = xyz[3 * p + 1], z = xyz[3 * p + 2];
     yWy += wp * (x * x + y * y + z * z);
     wSum += wp;
-    for (let j = 0; j < ORDER; ++j) idx[j] = coefIndex(basis, i, j);
     // Each entry of G gets one term per point (distinct coefficient pairs), so the sums run in point
     // order whatever the order within a point; rowBase[m] + q addresses entry (m, q), m >= q.
+    if (i + ORDER <= K) {
+      // No wrap: coefficients i .. i + 5, the lower triangle of the 6 x 6 block at (i, i).
+      for (let j = 0; j < ORDER; ++j) {
+        const bj = wp * b[j], m = i + j;
+        rhs[m] += bj * x;
+        rhs[K + m] += bj * y;
+        rhs[2 * K + m] += bj * z;
+        const rm = rowBase[m] + i;
+        for (let k = 0; k <= j; ++k) gd[rm + k] += bj * b[k];
+      }
+      continue;
+    }
+    for (let j = 0; j < ORDER; ++j) idx[j] = coefIndex(basis, i, j);
     for (let j = 0; j < ORDER; ++j) {
       const bj = wp * b[j], m = idx[j];
       rhs[m] += bj * x;

@@ -1,7 +1,7 @@
 import { ParameterError, InputError } from "../errors.js";
 import type { Profile, Trace } from "../types.js";
 import { fitBands } from "./bands.js";
-import { arcAt, uAtArc } from "./curve.js";
+import { arcAt, uAtArc, type ArcTable } from "./curve.js";
 import { checkClosable, describeLength, GAP_LIMIT } from "./fitGuard.js";
 import { detectClosed } from "./detectClosed.js";
 import { runPasses, type PassesResult } from "./passes.js";
@@ -124,26 +124,26 @@ export function robustStart(trace: Trace, options: ProfileOptions, diagnostics: 
   const all = toCanonical(trace.xyz, planar);
   if (!all) throw new InputError(file, null, "points", "all points coincide: the trace has zero length");
   const declaredClosed = options.closed ?? trace.closed;
-  const keepMask = grossOutliers(all.y, declaredClosed === true);
-  const kept: number[] = [], dropped: number[] = [];
-  for (let i = 0; i < n; ++i) (keepMask[i] ? kept : dropped).push(i);
+  // The step lengths of all points serve the outlier screen and, when it drops none, the gap check.
+  const allSteps = stepLengths(all.y);
+  const allMedianStep = medianOf(allSteps);
+  const keepMask = grossOutliers(all.y, declaredClosed === true, allMedianStep);
+  const { kept, dropped } = splitKept(keepMask);
   if (kept.length < 6) throw new InputError(file, null, "points", `need at least 6 points for a quintic fit after leaving out ${dropped.length} gross outliers, got ${kept.length}`);
   if (dropped.length > 0.2 * n) {
     throw new InputError(file, null, "points", `${dropped.length} of ${n} points (${rowListing(trace, dropped)}) sit far off their neighbours: the points are not an ordered trace of one wire (for unordered points use --format cloud)`);
   }
   let xyz = trace.xyz;
   if (dropped.length > 0) {
-    xyz = new Float64Array(3 * kept.length);
-    kept.forEach((i, k) => xyz.set(trace.xyz.subarray(3 * i, 3 * i + 3), 3 * k));
+    xyz = pointsAt(trace.xyz, kept);
     diagnostics.push(`robust start: left out ${dropped.length} gross outlier${dropped.length === 1 ? "" : "s"} far off their neighbours (${rowListing(trace, dropped)})`);
   }
   const canon = dropped.length > 0 ? toCanonical(xyz, planar) : all;
   if (!canon) throw new InputError(file, null, "points", "all points coincide: the trace has zero length");
   const y = canon.y;
-  const steps = stepLengths(y);
-  const medianStep = medianOf(steps);
-  let longest = 0;
-  for (let k = 1; k < steps.length; ++k) if (steps[k] > steps[longest]) longest = k;
+  const steps = canon === all ? allSteps : stepLengths(y);
+  const medianStep = canon === all ? allMedianStep : medianOf(steps);
+  const longest = indexOfMax(steps);
   if (steps[longest] > GAP_LIMIT * medianStep) {
     throw new InputError(file, null, "points",
       `no points over ${describeLength(steps[longest] * canon.scale, trace.source)} of the wire between ${rowName(trace, kept[longest])} and ${rowName(trace, kept[longest + 1])} (${(steps[longest] / medianStep).toFixed(0)}x the median step): the fit would invent the wire there; trace it more evenly or split it at the gap`);
@@ -166,12 +166,11 @@ export function robustStart(trace: Trace, options: ProfileOptions, diagnostics: 
   }
   // Noise floor: coordinates carry finitely many digits (1e-9 of the largest, below any text file);
   // a mesh centre line carries the tessellation's ripple, a fraction of the radius spread.
-  let maxAbs = 0;
-  for (let k = 0; k < trace.xyz.length; ++k) maxAbs = Math.max(maxAbs, Math.abs(trace.xyz[k]));
+  const maxAbs = largestMagnitude(trace.xyz);
   let floor = (1e-9 * maxAbs) / canon.scale;
   if (trace.radiusSpread && trace.radiusSpread.length > 0) floor = Math.max(floor, (0.25 * medianOf(trace.radiusSpread)) / canon.scale);
   return {
-    canon, kept: Int32Array.from(kept), dropped, closed, u, span, referenceLength: referenceLength(y, closed), medianStep,
+    canon, kept, dropped, closed, u, span, referenceLength: referenceLength(y, closed), medianStep,
     sigmaFloor: floor, sigmaDiff, minWavelength: trace.facetLength ? (4 * trace.facetLength) / canon.scale : 0,
   };
 }
@@ -182,6 +181,51 @@ export function rowListing(trace: Trace, indices: readonly number[]): string {
   const more = indices.length > 8 ? ` and ${indices.length - 8} more` : "";
   const noun = trace.rows ? (indices.length === 1 ? "row" : "rows") : (indices.length === 1 ? "point" : "points");
   return `${noun} ${names.join(", ")}${more}`;
+}
+
+// The loops of robustStart and fitProfile, one per function (the JIT compiles each alone; a loop
+// compiled on the stack in a driver is deoptimised at the first later statement it had not run).
+
+/** Index of the first non-finite entry, -1 when all are finite. */
+function firstNonFinite(v: Float64Array): number {
+  for (let k = 0; k < v.length; ++k) if (!Number.isFinite(v[k])) return k;
+  return -1;
+}
+
+/** Trace indices of the kept points (mask 1) and of the dropped ones (mask 0), ascending. */
+function splitKept(keepMask: Uint8Array): { kept: Int32Array; dropped: number[] } {
+  let count = 0;
+  for (let i = 0; i < keepMask.length; ++i) count += keepMask[i] ? 1 : 0;
+  const kept = new Int32Array(count), dropped: number[] = [];
+  for (let i = 0, k = 0; i < keepMask.length; ++i) {
+    if (keepMask[i]) kept[k++] = i;
+    else dropped.push(i);
+  }
+  return { kept, dropped };
+}
+
+/** The points with the given indices (interleaved xyz). */
+function pointsAt(xyz: Float64Array, indices: Int32Array): Float64Array {
+  const out = new Float64Array(3 * indices.length);
+  for (let k = 0; k < indices.length; ++k) {
+    const i = indices[k];
+    out[3 * k] = xyz[3 * i]; out[3 * k + 1] = xyz[3 * i + 1]; out[3 * k + 2] = xyz[3 * i + 2];
+  }
+  return out;
+}
+
+/** Index of the first largest value (0 for an empty array). */
+function indexOfMax(v: Float64Array): number {
+  let best = 0;
+  for (let k = 1; k < v.length; ++k) if (v[k] > v[best]) best = k;
+  return best;
+}
+
+/** Largest absolute value (0 for none). */
+function largestMagnitude(v: Float64Array): number {
+  let m = 0;
+  for (let k = 0; k < v.length; ++k) m = Math.max(m, Math.abs(v[k]));
+  return m;
 }
 
 /**
@@ -210,9 +254,8 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
   const n = trace.xyz.length / 3;
   const set = settingsOf(options, n);
   if (!Number.isInteger(n) || n < 6) throw new InputError(file, null, "points", `need at least 6 points for a quintic fit, got ${Math.floor(n)}`);
-  for (let k = 0; k < 3 * n; ++k) {
-    if (!Number.isFinite(trace.xyz[k])) throw new InputError(file, null, "xyz", `coordinate ${k % 3} of ${rowName(trace, Math.floor(k / 3))} is not finite`);
-  }
+  const bad = firstNonFinite(trace.xyz);
+  if (bad >= 0) throw new InputError(file, null, "xyz", `coordinate ${bad % 3} of ${rowName(trace, Math.floor(bad / 3))} is not finite`);
   const diagnostics: string[] = [...trace.diagnostics];
   if (set.coordinateError !== undefined) diagnostics.push(`noise: the coordinate error given (${describeLength(set.coordinateError, trace.source)} per coordinate) is the noise level; it is not estimated`);
   const start = robustStart(trace, options, diagnostics);
@@ -267,14 +310,31 @@ function sampleAt(trace: Trace, start: Start, fit: PassesResult, set: Settings):
   }
   const m = u.length;
   // Foot points of an ordered trace are nearly always in order already: sort only when they are not.
+  const order = ascendingOrder(u);
+  const su = new Float64Array(m), s = new Float64Array(m), traceIndex = new Int32Array(m);
+  gatherSamples(u, start.kept, order, su, traceIndex);
+  arcFromStart(table, su, closed, s);
+  return { u: su, traceIndex, s };
+}
+
+/** Indices 0..m-1 in ascending order of u (ties by index); no sort when u is in order already. */
+function ascendingOrder(u: Float64Array): Uint32Array {
+  const m = u.length;
   let sorted = true;
   for (let i = 1; i < m && sorted; ++i) sorted = u[i] >= u[i - 1];
   const order = new Uint32Array(m);
   for (let i = 0; i < m; ++i) order[i] = i;
   if (!sorted) order.sort((a, b) => u[a] - u[b] || a - b);
-  const su = new Float64Array(m), s = new Float64Array(m), traceIndex = new Int32Array(m);
-  for (let j = 0; j < m; ++j) { su[j] = u[order[j]]; traceIndex[j] = start.kept[order[j]]; }
+  return order;
+}
+
+/** su[j] = u[order[j]], traceIndex[j] = kept[order[j]]. */
+function gatherSamples(u: Float64Array, kept: Int32Array, order: Uint32Array, su: Float64Array, traceIndex: Int32Array): void {
+  for (let j = 0; j < order.length; ++j) { su[j] = u[order[j]]; traceIndex[j] = kept[order[j]]; }
+}
+
+/** s[j] = arc length of su[j] from su[0] (floored at 0). */
+function arcFromStart(table: ArcTable, su: Float64Array, closed: boolean, s: Float64Array): void {
   const s0 = arcAt(table, su[0], closed);
-  for (let j = 0; j < m; ++j) s[j] = Math.max(0, arcAt(table, su[j], closed) - s0);
-  return { u: su, traceIndex, s };
+  for (let j = 0; j < su.length; ++j) s[j] = Math.max(0, arcAt(table, su[j], closed) - s0);
 }

@@ -260,54 +260,76 @@ const OUTLIER_SCALE_FLOOR = 0.375;
  * identifier: Hampel 1974, JASA 69:383; the running-median idea: Tukey 1977, "Exploratory Data
  * Analysis"). A point is flagged only when the detour it forces on the path agrees (see below), so
  * a long straight segment between exact points is not taken for outliers. Returns 1 for a kept
- * point, 0 for a gross outlier. Cost O(n).
+ * point, 0 for a gross outlier. Cost O(n). `medStep`: the median of `stepLengths(y)`, when the
+ * caller has it (the same number).
  */
-export function grossOutliers(y: Float64Array, closed: boolean): Uint8Array {
+export function grossOutliers(y: Float64Array, closed: boolean, medStep?: number): Uint8Array {
   const n = y.length / 3;
   const keep = new Uint8Array(n).fill(1);
   if (n < 7) return keep;
   const d = neighbourhoodDistances(y, closed);
-  const medStep = medianOf(stepLengths(y));
-  const scale = Math.max(medianInPlace(d.slice()), OUTLIER_SCALE_FLOOR * medStep);
+  const ms = medStep ?? medianOf(stepLengths(y));
+  const scale = Math.max(medianInPlace(d.slice()), OUTLIER_SCALE_FLOOR * ms);
   if (!(scale > 0)) return keep;
-  // Second opinion, from the path itself: the detour a point forces, |p_a p_i| + |p_i p_b| - |p_a p_b|
-  // with a, b its neighbours (the smaller over +-1 and +-2); an end point's distance off the line
-  // through its two neighbours. A point on the way (the start of a long straight segment, the far
-  // end of one) forces no detour and is kept even where its neighbourhood median is far. Its scale
-  // comes from at most 20000 points spread along the trace; only candidates are judged.
-  const dist = (a: number, b: number) => hypot3(y[3 * a] - y[3 * b], y[3 * a + 1] - y[3 * b + 1], y[3 * a + 2] - y[3 * b + 2]);
-  const idx = (j: number) => (closed ? (j + n) % n : j);
-  const detour = (i: number): number => {
-    let best = Infinity;
-    for (let k = 1; k <= 2; ++k) {
-      const a = idx(i - k), b = idx(i + k);
-      if (a < 0 || b >= n) continue;
-      const v = dist(a, i) + dist(i, b) - dist(a, b);
-      if (v < best) best = v;
-    }
-    if (best !== Infinity) return best;
-    const a = i === 0 ? 1 : n - 2, b = i === 0 ? 2 : n - 3;
-    const ux = y[3 * a] - y[3 * b], uy = y[3 * a + 1] - y[3 * b + 1], uz = y[3 * a + 2] - y[3 * b + 2];
-    const ul = hypot3(ux, uy, uz) || 1;
-    const vx = y[3 * i] - y[3 * a], vy = y[3 * i + 1] - y[3 * a + 1], vz = y[3 * i + 2] - y[3 * a + 2];
-    const perp = hypot3(vy * uz - vz * uy, vz * ux - vx * uz, vx * uy - vy * ux) / ul;
-    // Along the line (within 0.5 rad) the end point continues the wire, however far it is.
-    return perp > Math.sin(0.5) * hypot3(vx, vy, vz) ? perp : 0;
-  };
+  // Second opinion, from the path itself: the detour a point forces (see `detour`). A point on the
+  // way (the start of a long straight segment, the far end of one) forces no detour and is kept
+  // even where its neighbourhood median is far. Its scale comes from at most 20000 points spread
+  // along the trace; only candidates are judged.
   const stride = Math.max(1, Math.ceil(n / 20_000));
   const sample = new Float64Array(Math.ceil(n / stride));
-  for (let i = 0, c = 0; i < n; i += stride) sample[c++] = detour(i);
-  const detourScale = Math.max(medianInPlace(sample), OUTLIER_SCALE_FLOOR * medStep);
+  sampleDetours(y, closed, stride, sample);
+  const detourScale = Math.max(medianInPlace(sample), OUTLIER_SCALE_FLOOR * ms);
+  flagOutliers(y, closed, d, OUTLIER_CUT * scale, detourScale, keep);
+  return keep;
+}
+
+/** sample[c] = detour of point c * stride. */
+function sampleDetours(y: Float64Array, closed: boolean, stride: number, sample: Float64Array): void {
+  const n = y.length / 3;
+  for (let i = 0, c = 0; i < n; i += stride) sample[c++] = detour(y, closed, i);
+}
+
+/** keep[i] = 0 for the candidates (d[i] above `cut`) whose detour confirms them (see grossOutliers). */
+function flagOutliers(y: Float64Array, closed: boolean, d: Float64Array, cut: number, detourScale: number, keep: Uint8Array): void {
+  const n = y.length / 3;
   const steps = new Float64Array(2 * OUTLIER_HALF);
   for (let i = 0; i < n; ++i) {
-    if (!(d[i] > OUTLIER_CUT * scale)) continue;
-    const dt = detour(i);
+    if (!(d[i] > cut)) continue;
+    const dt = detour(y, closed, i);
     // The detour is also judged against the local spacing: where the trace is sampled sparsely (a
     // coarse stretch after a dense one), every point's detour is large on the global scale, but a
     // point on the way of its neighbours forces a detour of a fraction of their step.
     if (dt > OUTLIER_CUT * detourScale && dt > OUTLIER_CUT * OUTLIER_SCALE_FLOOR * localStep(y, i, closed, steps)) keep[i] = 0;
   }
-  return keep;
+}
+
+/** Distance between points a and b. */
+function pointDistance(y: Float64Array, a: number, b: number): number {
+  return hypot3(y[3 * a] - y[3 * b], y[3 * a + 1] - y[3 * b + 1], y[3 * a + 2] - y[3 * b + 2]);
+}
+
+/**
+ * The detour point i forces on the path, |p_a p_i| + |p_i p_b| - |p_a p_b| with a, b its neighbours
+ * (the smaller over +-1 and +-2, wrapped on a ring); an open end point's distance off the line
+ * through its two neighbours (0 when it continues that line within 0.5 rad).
+ */
+function detour(y: Float64Array, closed: boolean, i: number): number {
+  const n = y.length / 3;
+  let best = Infinity;
+  for (let k = 1; k <= 2; ++k) {
+    const a = closed ? (i - k + n) % n : i - k, b = closed ? (i + k + n) % n : i + k;
+    if (a < 0 || b >= n) continue;
+    const v = pointDistance(y, a, i) + pointDistance(y, i, b) - pointDistance(y, a, b);
+    if (v < best) best = v;
+  }
+  if (best !== Infinity) return best;
+  const a = i === 0 ? 1 : n - 2, b = i === 0 ? 2 : n - 3;
+  const ux = y[3 * a] - y[3 * b], uy = y[3 * a + 1] - y[3 * b + 1], uz = y[3 * a + 2] - y[3 * b + 2];
+  const ul = hypot3(ux, uy, uz) || 1;
+  const vx = y[3 * i] - y[3 * a], vy = y[3 * i + 1] - y[3 * a + 1], vz = y[3 * i + 2] - y[3 * a + 2];
+  const perp = hypot3(vy * uz - vz * uy, vz * ux - vx * uz, vx * uy - vy * ux) / ul;
+  // Along the line (within 0.5 rad) the end point continues the wire, however far it is.
+  return perp > Math.sin(0.5) * hypot3(vx, vy, vz) ? perp : 0;
 }
 
 /**
@@ -368,9 +390,14 @@ export function startParameter(y: Float64Array, closed: boolean): { u: Float64Ar
   const n = y.length / 3;
   const sm = runningMedian(y, n >= 60 ? 2 : 0, closed);
   const u = new Float64Array(n);
-  for (let i = 1; i < n; ++i) u[i] = u[i - 1] + hypot3(sm[3 * i] - sm[3 * i - 3], sm[3 * i + 1] - sm[3 * i - 2], sm[3 * i + 2] - sm[3 * i - 1]);
+  cumulativeChords(sm, u);
   const span = closed ? u[n - 1] + hypot3(sm[0] - sm[3 * n - 3], sm[1] - sm[3 * n - 2], sm[2] - sm[3 * n - 1]) : u[n - 1];
   return { u, span };
+}
+
+/** u[i] = u[i - 1] + |p_i - p_i-1| from u[0] (left as it is). */
+function cumulativeChords(p: Float64Array, u: Float64Array): void {
+  for (let i = 1; i < u.length; ++i) u[i] = u[i - 1] + hypot3(p[3 * i] - p[3 * i - 3], p[3 * i + 1] - p[3 * i - 2], p[3 * i + 2] - p[3 * i - 1]);
 }
 
 /**
@@ -414,6 +441,14 @@ export function differenceNoise(y: Float64Array, u: Float64Array, normalDims: 1 
   const n = y.length / 3;
   if (n < 7) return NaN;
   const r2 = new Float64Array(n);
+  const m = pseudoResiduals(y, u, r2);
+  if (m < 5) return NaN;
+  return Math.sqrt(medianInPlace(r2, m) / (normalDims === 2 ? 1.3863 : 0.4549));
+}
+
+/** The normalised squared pseudo-residuals of {@link differenceNoise} into r2; returns their count. */
+function pseudoResiduals(y: Float64Array, u: Float64Array, r2: Float64Array): number {
+  const n = y.length / 3;
   let m = 0;
   for (let i = 2; i < n - 2; ++i) {
     const t0 = u[i - 2], t1 = u[i - 1], t2 = u[i + 1], t3 = u[i + 2], x = u[i];
@@ -437,8 +472,7 @@ export function differenceNoise(y: Float64Array, u: Float64Array, normalDims: 1 
     const f = 1 + w0 * w0 + w1 * w1 + w2 * w2 + w3 * w3;
     r2[m++] = (e0 * e0 + e1 * e1 + e2 * e2 - along * along) / f;
   }
-  if (m < 5) return NaN;
-  return Math.sqrt(medianInPlace(r2, m) / (normalDims === 2 ? 1.3863 : 0.4549));
+  return m;
 }
 
 /** Where an ordered trace turns back along its own path. */
@@ -469,25 +503,19 @@ export interface Retrace {
 export function findRetrace(y: Float64Array, closed: boolean, sigma: number, step: number): Retrace | null {
   const n = y.length / 3;
   if (!(step > 0)) return null;
-  const at = (j: number) => (closed ? ((j % n) + n) % n : j);
-  const dist = (a: number, b: number) => {
-    const p = 3 * at(a), q = 3 * at(b);
-    return hypot3(y[p] - y[q], y[p + 1] - y[q + 1], y[p + 2] - y[q + 2]);
-  };
+  const dist = (a: number, b: number) => wrappedDistance(y, closed, a, b);
   // Net progress per point: where the noise is comparable to the step, the step overstates it.
   const k0 = Math.max(4, Math.ceil((8 * (sigma > 0 ? sigma : 0)) / step));
   const chords = new Float64Array(closed ? n : Math.max(0, n - k0));
   if (chords.length < 5) return null;
-  for (let i = 0; i < chords.length; ++i) chords[i] = dist(i + k0, i);
+  chordsOver(y, closed, k0, chords);
   const progress = Math.min(step, medianInPlace(chords) / k0);
   if (!(progress > 0)) return null;
   const within = 4 * (sigma > 0 ? sigma : 0) + 0.6 * step;
   const k = Math.min(200, Math.max(4, Math.ceil((2 * within) / progress) + 4));
   if (n < 2 * k + 1) return null;
   const first = closed ? 0 : k, last = closed ? n : n - k;
-  for (let i = first; i < last; ++i) {
-    const a = dist(i, i - k), b = dist(i + k, i);
-    if (a < 0.5 * k * progress || b < 0.5 * k * progress || dist(i + k, i - k) > 0.5 * Math.min(a, b)) continue;
+  for (let i = retraceScreen(y, closed, k, progress, first, last); i < last; i = retraceScreen(y, closed, k, progress, i + 1, last)) {
     let eligible = 0, hits = 0;
     for (let j = 1; j <= k; ++j) {
       const r = dist(i + j, i);
@@ -514,4 +542,29 @@ export function findRetrace(y: Float64Array, closed: boolean, sigma: number, ste
     return { at: i, count, within };
   }
   return null;
+}
+
+/** Distance between points a and b, indices taken modulo n on a ring. */
+function wrappedDistance(y: Float64Array, closed: boolean, a: number, b: number): number {
+  const n = y.length / 3;
+  const p = 3 * (closed ? ((a % n) + n) % n : a), q = 3 * (closed ? ((b % n) + n) % n : b);
+  return hypot3(y[p] - y[q], y[p + 1] - y[q + 1], y[p + 2] - y[q + 2]);
+}
+
+/** chords[i] = |p_i+k0 - p_i| (wrapped on a ring). */
+function chordsOver(y: Float64Array, closed: boolean, k0: number, chords: Float64Array): void {
+  for (let i = 0; i < chords.length; ++i) chords[i] = wrappedDistance(y, closed, i + k0, i);
+}
+
+/**
+ * The first i in [from, last) that passes the screen of `findRetrace` (the path goes somewhere on
+ * both sides of p_i over k points and comes back), or `last`.
+ */
+function retraceScreen(y: Float64Array, closed: boolean, k: number, progress: number, from: number, last: number): number {
+  for (let i = from; i < last; ++i) {
+    const a = wrappedDistance(y, closed, i, i - k), b = wrappedDistance(y, closed, i + k, i);
+    if (a < 0.5 * k * progress || b < 0.5 * k * progress || wrappedDistance(y, closed, i + k, i - k) > 0.5 * Math.min(a, b)) continue;
+    return i;
+  }
+  return last;
 }

@@ -97,6 +97,59 @@ export function solveLdl(f: Skyline, b: Float64Array, x: Float64Array): Float64A
   return x;
 }
 
+/**
+ * Solves (L D L^T) x_c = b_c for the three coordinates at once: b interleaved (b[3k + c]), x as
+ * x, y, z blocks of K. Each coordinate sees exactly the operations of `solveLdl` (bit-identical);
+ * one sweep over the factor serves all three. `w` is scratch of length 3K.
+ */
+export function solveLdl3(f: Skyline, b: Float64Array, x: Float64Array, w: Float64Array): Float64Array {
+  // One loop per function (forward, diagonal, backward, scatter): a loop compiled on the stack
+  // before the later loops have run would otherwise be deoptimised on every call.
+  forward3(f, b, w);
+  diagonal3(f, w);
+  backward3(f, w);
+  scatter3(w, x, f.n);
+  return x;
+}
+
+function forward3(f: Skyline, b: Float64Array, w: Float64Array): void {
+  const { n, first, offset, data } = f;
+  for (let i = 0; i < n; ++i) {
+    const fi = first[i], o = offset[i] - fi;
+    let s0 = b[3 * i], s1 = b[3 * i + 1], s2 = b[3 * i + 2];
+    for (let k = fi; k < i; ++k) {
+      const l = data[o + k];
+      s0 -= l * w[3 * k]; s1 -= l * w[3 * k + 1]; s2 -= l * w[3 * k + 2];
+    }
+    w[3 * i] = s0; w[3 * i + 1] = s1; w[3 * i + 2] = s2;
+  }
+}
+
+function diagonal3(f: Skyline, w: Float64Array): void {
+  const { n, first, offset, data } = f;
+  for (let i = 0; i < n; ++i) {
+    const d = data[offset[i] + i - first[i]];
+    if (d === 0) { w[3 * i] = 0; w[3 * i + 1] = 0; w[3 * i + 2] = 0; }
+    else { w[3 * i] /= d; w[3 * i + 1] /= d; w[3 * i + 2] /= d; }
+  }
+}
+
+function backward3(f: Skyline, w: Float64Array): void {
+  const { n, first, offset, data } = f;
+  for (let i = n - 1; i >= 0; --i) {
+    const fi = first[i], o = offset[i] - fi;
+    const x0 = w[3 * i], x1 = w[3 * i + 1], x2 = w[3 * i + 2];
+    for (let k = fi; k < i; ++k) {
+      const l = data[o + k];
+      w[3 * k] -= l * x0; w[3 * k + 1] -= l * x1; w[3 * k + 2] -= l * x2;
+    }
+  }
+}
+
+function scatter3(w: Float64Array, x: Float64Array, n: number): void {
+  for (let k = 0; k < n; ++k) { x[k] = w[3 * k]; x[n + k] = w[3 * k + 1]; x[2 * n + k] = w[3 * k + 2]; }
+}
+
 /** y = L sqrt(D) z for a factorised skyline (draws N(0, A) when z ~ N(0, I)); y must not alias z. */
 export function mulLsqrtD(f: Skyline, z: Float64Array, y: Float64Array, sqrtD?: Float64Array): Float64Array {
   const { n, first, offset, data } = f;
@@ -186,3 +239,24 @@ export function symMul(S: Skyline, x: Float64Array, off: number, y: Float64Array
   }
 }
 
+
+/**
+ * y = S x for the three blocks of length n of x (x, y, z coefficients) at once: for each block the
+ * operations of `symMul` in its order (bit-identical), one sweep over S for all three.
+ */
+export function symMul3(S: Skyline, x: Float64Array, y: Float64Array): void {
+  const { n, first, offset, data } = S;
+  y.fill(0);
+  for (let i = 0; i < n; ++i) {
+    const fi = first[i], oi = offset[i] - fi;
+    const x0 = x[i], x1 = x[n + i], x2 = x[2 * n + i];
+    let s0 = 0, s1 = 0, s2 = 0;
+    for (let j = fi; j < i; ++j) {
+      const a = data[oi + j];
+      s0 += a * x[j]; s1 += a * x[n + j]; s2 += a * x[2 * n + j];
+      y[j] += a * x0; y[n + j] += a * x1; y[2 * n + j] += a * x2;
+    }
+    const d = data[oi + i];
+    y[i] += s0 + d * x0; y[n + i] += s1 + d * x1; y[2 * n + i] += s2 + d * x2;
+  }
+}

@@ -1,6 +1,6 @@
 import type { SplineBasis } from "./bspline.js";
 import { differencePenalty, normalEquations, type Normal } from "./design.js";
-import { factorLdl, selectedInverse, solveLdl, symMul, type Skyline } from "./skyline.js";
+import { factorLdl, selectedInverse, solveLdl3, symMul3, type Skyline } from "./skyline.js";
 
 /**
  * A penalised spline smoother for one parametrisation: the normal equations, the penalty, and
@@ -65,18 +65,29 @@ function combined(g: Float64Array, lambda: number, p: Float64Array): Float64Arra
   return out;
 }
 
-/** Coefficients of x, y, z into `coef` from the factor A, and the weighted RSS (yWy - 2 c.b + c.G c). */
+/**
+ * Coefficients of x, y, z into `coef` from the factor A, and the weighted RSS (yWy - 2 c.b + c.G c).
+ * The three coordinates share each sweep over A and G (`solveLdl3`, `symMul3`: per coordinate the
+ * operations of `solveLdl` and `symMul`), the RSS summed coordinate by coordinate.
+ */
 function solveCoordinates(A: Skyline, G: Skyline, rhs: Float64Array, yWy: number, coef: Float64Array): number {
   const K = A.n;
-  const tmp = new Float64Array(K), Gc = new Float64Array(K);
+  const b3 = new Float64Array(3 * K), work = new Float64Array(3 * K), Gc = new Float64Array(3 * K);
+  interleave3(rhs, K, b3);
+  solveLdl3(A, b3, coef, work);
+  symMul3(G, coef, Gc);
+  return residualSum(coef, rhs, Gc, yWy);
+}
+
+/** out[3k + c] = blocks[c K + k]. */
+function interleave3(blocks: Float64Array, K: number, out: Float64Array): void {
+  for (let k = 0; k < K; ++k) { out[3 * k] = blocks[k]; out[3 * k + 1] = blocks[K + k]; out[3 * k + 2] = blocks[2 * K + k]; }
+}
+
+/** yWy + sum_i (-2 c_i b_i + c_i (G c)_i), in index order. */
+function residualSum(coef: Float64Array, rhs: Float64Array, Gc: Float64Array, yWy: number): number {
   let rss = yWy;
-  for (let c = 0; c < 3; ++c) {
-    const b = rhs.subarray(c * K, (c + 1) * K);
-    solveLdl(A, b, tmp);
-    coef.set(tmp, c * K);
-    symMul(G, coef, c * K, Gc);
-    for (let i = 0; i < K; ++i) rss += -2 * tmp[i] * b[i] + tmp[i] * Gc[i];
-  }
+  for (let i = 0; i < coef.length; ++i) rss += -2 * coef[i] * rhs[i] + coef[i] * Gc[i];
   return rss;
 }
 

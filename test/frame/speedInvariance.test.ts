@@ -2,18 +2,19 @@
  * Speed work on the geometry core must not change its results: the fast kernels against the plain
  * formulations they replaced (bit for bit), and whole profiles against a fixture written before the
  * speed work (1e-9 relative). References: Math.hypot of the JavaScript engine (ECMA-262
- * sec. 21.3.2.18); medians of a sorted copy (common practice); the 0-1 principle for sorting
+ * sec. 21.3.2.18); medians and quantiles of a sorted copy (common practice); the 0-1 principle for sorting
  * networks (Knuth, TAOCP vol. 3, sec. 5.3.4, from memory); the bootstrap stream of the previous
  * closure-based generator (restated below); L D L^T solves column by column (`solveLdl`).
  */
 import { readFileSync } from "node:fs";
 import { describe, expect, it } from "vitest";
-import { drawRhs, drawScratch, gridBasis, kappaTauAt, normalGenerator, solveLdl3 } from "../../src/frame/bootstrap.js";
-import { basisAt, locate, makeBasis, type SplineBasis } from "../../src/frame/bspline.js";
+import { placeBandQuantiles, quantileSorted } from "../../src/frame/bands.js";
+import { drawRhs, drawRhsPair, drawScratch, gridBasis, kappaTauAt, normalFiller, normalGenerator, solveLdl3 } from "../../src/frame/bootstrap.js";
+import { basisAt, basisValues, locate, makeBasis, type SplineBasis } from "../../src/frame/bspline.js";
 import { evalCurve, kappaTau } from "../../src/frame/curve.js";
 import { hypot3 } from "../../src/frame/hypot3.js";
 import { median5, median8, medianInPlace, medianOf, selectInPlace } from "../../src/frame/robustStart.js";
-import { factorLdl, makeSkyline, mulLsqrtD, solveLdl } from "../../src/frame/skyline.js";
+import { factorLdl, makeSkyline, mulLsqrtD, solveLdl, symMul, symMul3 } from "../../src/frame/skyline.js";
 import { envelope } from "../../src/frame/design.js";
 import { speedCaseDigests } from "../support/speedCases.js";
 import { normalStream } from "../support/rng.js";
@@ -120,10 +121,42 @@ describe("fast kernels equal the plain formulations bit for bit", () => {
     }
   });
 
+  it("placeBandQuantiles puts the entries the band quantiles read where a sort puts them (seeded; ties, sorted, reversed, zeros, NaN)", () => {
+    const g = normalStream(23);
+    for (let t = 0; t < 400; ++t) {
+      const n = 1 + Math.floor(Math.abs(g()) * 150) + (t % 5 === 0 ? 200 : 0);
+      const v = Float64Array.from({ length: n }, () => (t % 3 === 0 ? Math.round(4 * g()) : g()));
+      if (t % 7 === 1) v.sort();
+      if (t % 7 === 2) v.sort().reverse();
+      if (t % 11 === 3) v[Math.floor(n / 2)] = NaN;
+      if (t % 13 === 4) v[0] = -0;
+      const s = v.slice().sort();
+      const a = placeBandQuantiles(v.slice());
+      for (const p of [0.025, 0.5, 0.975]) {
+        expect(Object.is(quantileSorted(a, p), quantileSorted(s, p))).toBe(true);
+        const lo = Math.floor((n - 1) * p);
+        expect(Object.is(a[lo], s[lo])).toBe(true);
+        if (lo + 1 < n) expect(Object.is(a[lo + 1], s[lo + 1])).toBe(true);
+      }
+      expect(Array.from(a.slice().sort())).toEqual(Array.from(v.slice().sort())); // the same values, rearranged
+    }
+  });
+
   it("normalGenerator draws the same stream as before (seeds 1, 7 and 2^31 + 5)", () => {
     for (const seed of [1, 7, 2 ** 31 + 5]) {
       const a = normalGenerator(seed), b = closureGenerator(seed);
       for (let k = 0; k < 20_001; ++k) { const va = a(), vb = b(); if (!bits(va, vb)) expect(va).toBe(vb); }
+    }
+  });
+
+  it("normalFiller fills the stream of the generator before it (seeds 1, 7 and 2^31 + 5; odd and even lengths)", () => {
+    for (const seed of [1, 7, 2 ** 31 + 5]) {
+      const fill = normalFiller(seed), b = closureGenerator(seed);
+      for (const len of [0, 1, 3, 4, 4515, 1, 2, 7, 10_000]) {
+        const out = new Float64Array(len);
+        fill(out);
+        for (let k = 0; k < len; ++k) { const vb = b(); if (!bits(out[k], vb)) expect(out[k]).toBe(vb); }
+      }
     }
   });
 
@@ -150,7 +183,7 @@ describe("fast kernels equal the plain formulations bit for bit", () => {
     }
   });
 
-  it("drawRhs equals mulLsqrtD and solveLdl3 equals solveLdl per coordinate (open and periodic)", () => {
+  it("drawRhs and drawRhsPair equal mulLsqrtD and solveLdl3 equals solveLdl per coordinate (open and periodic)", () => {
     const g = normalStream(12);
     for (const periodic of [false, true]) {
       const K = 40;
@@ -159,10 +192,40 @@ describe("fast kernels equal the plain formulations bit for bit", () => {
       const scratch = drawScratch(K);
       const db = drawRhs(C, xi, scratch.db, scratch);
       expect(Array.from(db)).toEqual(Array.from(mulLsqrtD(C, xi, new Float64Array(3 * K))));
+      const xi2 = Float64Array.from({ length: 3 * K }, () => g()), dbA = new Float64Array(3 * K), dbB = new Float64Array(3 * K);
+      drawRhsPair(C, xi, xi2, dbA, dbB, drawScratch(K));
+      expect(Array.from(dbA)).toEqual(Array.from(db));
+      expect(Array.from(dbB)).toEqual(Array.from(mulLsqrtD(C, xi2, new Float64Array(3 * K))));
       const x = solveLdl3(A, db, new Float64Array(3 * K), new Float64Array(3 * K));
       for (let c = 0; c < 3; ++c) {
         const b = Float64Array.from({ length: K }, (_, k) => db[3 * k + c]);
         expect(Array.from(x.subarray(c * K, (c + 1) * K))).toEqual(Array.from(solveLdl(A, b, new Float64Array(K))));
+      }
+    }
+  });
+
+  it("basisValues equals the values of basisAt (seeded local coordinates, the ends of the interval, extrapolation)", () => {
+    const g = normalStream(14);
+    const a = new Float64Array(24), b = new Float64Array(6);
+    for (const t of [0, 1, 1 - 1e-16, -1e-12, 1 + 1e-12, ...Array.from({ length: 2000 }, () => Math.abs(g()) % 1)]) {
+      basisAt(t, 0.37, 0, a);
+      basisValues(t, b);
+      for (let j = 0; j < 6; ++j) expect(bits(a[j], b[j])).toBe(true);
+    }
+  });
+
+  it("symMul3 equals symMul per coordinate block (open and periodic)", () => {
+    const g = normalStream(13);
+    for (const periodic of [false, true]) {
+      const K = 40;
+      const S = randomFactor(K, periodic, 1, 7); // any envelope-shaped symmetric matrix will do
+      const x = Float64Array.from({ length: 3 * K }, () => g());
+      const y3 = new Float64Array(3 * K);
+      symMul3(S, x, y3);
+      for (let c = 0; c < 3; ++c) {
+        const y = new Float64Array(K);
+        symMul(S, x, c * K, y);
+        expect(Array.from(y3.subarray(c * K, (c + 1) * K))).toEqual(Array.from(y));
       }
     }
   });
