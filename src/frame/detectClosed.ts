@@ -1,7 +1,8 @@
 /**
  * Decides whether an ordered trace is a closed curve: the gap between its last and first points is
  * within a few sample steps plus the noise (noise from the difference-based pseudo-residuals of
- * Gasser, Sroka & Jennen-Steinmetz 1986, Biometrika 73:625), and small against the whole length.
+ * Gasser, Sroka & Jennen-Steinmetz 1986, Biometrika 73:625), small against the whole length, and
+ * no point away from the ends lies nearer to either end than the other end does.
  * Adds one line to `diagnostics` when it calls the trace closed. Cost O(n).
  * Units: any (the result depends only on ratios).
  */
@@ -26,7 +27,25 @@ export function detectClosed(xyz: Float64Array, diagnostics: string[]): boolean 
   // Var of (p[i-1] + p[i+1]) / 2 - p[i] per coordinate is 1.5 sigma^2 for white noise.
   const sigma = Math.sqrt(e2 / (3 * 1.5 * (n - 2)));
   const gap = Math.hypot(xyz[3 * n - 3] - xyz[0], xyz[3 * n - 2] - xyz[1], xyz[3 * n - 1] - xyz[2]);
-  const closed = gap <= 3 * medStep + 4 * Math.SQRT2 * sigma && gap < 0.05 * total;
-  if (closed) diagnostics.push(`closed curve detected: the ends meet within ${(gap / medStep).toFixed(2)} sample steps (use --open to override)`);
-  return closed;
+  if (!(gap <= 3 * medStep + 4 * Math.SQRT2 * sigma && gap < 0.05 * total)) return false;
+  // The ends meet only if they are each other's nearest part of the wire: a tight open coil has its
+  // ends a few steps apart, but the neighbouring turn passes closer to them.
+  const w = Math.ceil(gap / medStep) + 3;
+  const near = nearerThan(xyz, 3 * (n - 1), gap, w, n - 1 - w) || nearerThan(xyz, 0, gap, w, n - 1 - w);
+  if (near) {
+    diagnostics.push(`not taken for closed: the ends are ${(gap / medStep).toFixed(2)} sample steps apart, but the wire passes closer to an end elsewhere (use --closed to override)`);
+    return false;
+  }
+  diagnostics.push(`closed curve detected: the ends meet within ${(gap / medStep).toFixed(2)} sample steps (use --open to override)`);
+  return true;
+}
+
+/** Whether a point with index in [from, to] lies nearer than `d` to the point at offset `a`. */
+function nearerThan(xyz: Float64Array, a: number, d: number, from: number, to: number): boolean {
+  const d2 = d * d;
+  for (let i = from; i <= to; ++i) {
+    const dx = xyz[3 * i] - xyz[a], dy = xyz[3 * i + 1] - xyz[a + 1], dz = xyz[3 * i + 2] - xyz[a + 2];
+    if (dx * dx + dy * dy + dz * dz < d2) return true;
+  }
+  return false;
 }

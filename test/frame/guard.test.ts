@@ -5,6 +5,7 @@
  * input (a straight line has kappa = 0 and no torsion: common practice).
  */
 import { describe, expect, it } from "vitest";
+import { detectClosed } from "../../src/frame/detectClosed.js";
 import { fitProfile } from "../../src/frame/profile.js";
 import { grossOutliers, differenceNoise, findRetrace, referenceLength } from "../../src/frame/robustStart.js";
 import { FLAG_END, FLAG_TORSION_UNDEFINED, type Profile, type Trace } from "../../src/types.js";
@@ -115,6 +116,26 @@ describe("robust start", () => {
     expect(findRetrace(hairpin(0.5), false, 0, 1)).not.toBeNull();
   });
 
+  it("takes ends a few steps apart for closed only when nothing else on the wire is nearer to them", () => {
+    // A tight open coil (radius 50, pitch 1, 5 turns, noise 0.3 per coordinate): its ends are 3 steps
+    // apart but the neighbouring turn passes 1 away. Was: detected closed, the fit joined the ends
+    // (kappa up to 24% high there), exit 0.
+    const coil = sampleCurve(helixCurve(50, 1 / (2 * Math.PI), 5), 1000, 0.3, 8).xyz;
+    const d: string[] = [];
+    expect(detectClosed(coil, d)).toBe(false);
+    expect(d[0]).toMatch(/^not taken for closed: the ends are [\d.]+ sample steps apart, but the wire passes closer to an end elsewhere \(use --closed to override\)$/);
+    const p = fitProfile(trace(coil, { source: { file: "coil.csv", unit: "m" } }), { bootstrap: 0 });
+    expect(p.closed).toBe(false);
+    // helix kappa = R/(R^2+c^2) (https://en.wikipedia.org/wiki/Helix)
+    expect(interiorMedian(p, "kappa") / (50 / (2500 + 1 / (4 * Math.PI * Math.PI)))).toBeCloseTo(1, 2);
+    // A circle traced twice has its ends together and its middle on top of them: not one closed loop.
+    const once = sampleCurve(circleCurve(100), 200, 0.5, 3).xyz, twice = new Float64Array(1200);
+    twice.set(once); twice.set(sampleCurve(circleCurve(100), 200, 0.5, 4).xyz, 600);
+    expect(detectClosed(twice, [])).toBe(false);
+    // A noisy closed circle still is.
+    for (let seed = 1; seed <= 5; ++seed) expect(detectClosed(sampleCurve(circleCurve(1), 200, 0.01, seed).xyz, [])).toBe(true);
+  });
+
   it("measures a robust length that ignores a wild point", () => {
     const x = clean.slice();
     x[600] += 5000e-9;
@@ -192,7 +213,7 @@ describe("never a silent wrong answer", () => {
     const r = mulberry32(4);
     const x = clean.slice();
     for (let i = 0; i < 400; i += 3) for (let a = 0; a < 3; ++a) x[3 * i + a] += (r() - 0.5) * 2e-6;
-    expect(() => fitProfile(trace(x))).toThrow(/^w\.csv: points: (\d+ of 400 points \(rows .* and \d+ more\) sit far off their neighbours: the points are not an ordered trace of one wire \(for unordered points use --format cloud\)|the fit diverged: its length is [\d.]+x a robust polyline length of the trace \([\d.]+ nm\); the points farthest from it are row \d+, row \d+, row \d+: check for stray points, or for unordered points use --format cloud)$/);
+    expect(() => fitProfile(trace(x))).toThrow(/^w\.csv: points: (\d+ of 400 points \(rows .* and \d+ more\) sit far off their neighbours: the points are not an ordered trace of one wire \(for unordered points use --format cloud\)|the fit diverged: its length is [\d.]+x a robust polyline length of the trace \([\d.]+ nm\); the points farthest from it are row \d+, row \d+, row \d+: check for stray points, or for unordered points use --format cloud|no points over [\d.]+ nm of the wire between row \d+ and row \d+ \(\d+x the median spacing\): the fit would invent the wire there; trace it more evenly or split it at the gap)$/);
   });
 
   it("gives a straight line (exact, or with tiny noise) no torsion anywhere: NaN, flag 1", () => {
