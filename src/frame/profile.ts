@@ -6,7 +6,7 @@ import { checkClosable, describeLength, GAP_LIMIT } from "./fitGuard.js";
 import { detectClosed } from "./detectClosed.js";
 import { runPasses, type PassesResult } from "./passes.js";
 export { segmentCount } from "./passes.js";
-import { differenceNoise, findRetrace, grossOutliers, medianOf, referenceLength, startParameter, stepLengths, toCanonical, type CanonicalTrace } from "./robustStart.js";
+import { differenceNoise, findOverlap, findRetrace, grossOutliers, medianOf, referenceLength, startParameter, stepLengths, toCanonical, type CanonicalTrace } from "./robustStart.js";
 import { chooseLevels, curvatureLevel } from "./levels.js";
 
 /** Options of `fitProfile`; lengths in metres. */
@@ -163,6 +163,14 @@ export function robustStart(trace: Trace, options: ProfileOptions, diagnostics: 
     const end = closed ? (back.at + back.count) % kept.length : back.at + back.count;
     throw new InputError(file, null, "points",
       `the trace turns back on its own path near ${rowName(trace, kept[back.at])}: the next ${back.count} points (to ${rowName(trace, kept[end])}) run back over the points before it (within ${describeLength(back.within * canon.scale, trace.source)}); a wire cannot retrace itself: remove the retraced rows or split the file there`);
+  }
+  const again = trace.dims === 3 && !trace.planarProjection ? findOverlap(y, closed, sigmaDiff, medianStep) : null;
+  if (again) {
+    const m = kept.length, wrap = (j: number) => ((j % m) + m) % m;
+    const a = rowName(trace, kept[again.at]), b = rowName(trace, kept[wrap(again.at + again.count - 1)]);
+    const c = rowName(trace, kept[Math.min(again.other, again.otherEnd)]), d = rowName(trace, kept[Math.max(again.other, again.otherEnd)]);
+    throw new InputError(file, null, "points",
+      `the trace runs along the same path twice: ${a} to ${b} and ${c} to ${d} lie within ${describeLength(again.within * canon.scale, trace.source)} of each other with no offset between them; a wire cannot pass through itself (and turns of a coil closer than the noise cannot be told apart): remove the repeated rows or split the file there`);
   }
   // Noise floor: coordinates carry finitely many digits (1e-9 of the largest, below any text file);
   // a mesh centre line carries the tessellation's ripple, a fraction of the radius spread.

@@ -504,16 +504,9 @@ export function findRetrace(y: Float64Array, closed: boolean, sigma: number, ste
   const n = y.length / 3;
   if (!(step > 0)) return null;
   const dist = (a: number, b: number) => wrappedDistance(y, closed, a, b);
-  // Net progress per point: where the noise is comparable to the step, the step overstates it.
-  const k0 = Math.max(4, Math.ceil((8 * (sigma > 0 ? sigma : 0)) / step));
-  const chords = new Float64Array(closed ? n : Math.max(0, n - k0));
-  if (chords.length < 5) return null;
-  chordsOver(y, closed, k0, chords);
-  const progress = Math.min(step, medianInPlace(chords) / k0);
-  if (!(progress > 0)) return null;
-  const within = 4 * (sigma > 0 ? sigma : 0) + 0.6 * step;
-  const k = Math.min(200, Math.max(4, Math.ceil((2 * within) / progress) + 4));
-  if (n < 2 * k + 1) return null;
+  const win = selfWindow(y, closed, sigma, step);
+  if (!win) return null;
+  const { progress, within, k } = win;
   const first = closed ? 0 : k, last = closed ? n : n - k;
   for (let i = retraceScreen(y, closed, k, progress, first, last); i < last; i = retraceScreen(y, closed, k, progress, i + 1, last)) {
     let eligible = 0, hits = 0;
@@ -542,6 +535,192 @@ export function findRetrace(y: Float64Array, closed: boolean, sigma: number, ste
     return { at: i, count, within };
   }
   return null;
+}
+
+/**
+ * The window of the self-overlap checks: tolerance within = 4 noise SDs + 0.6 median steps; net
+ * progress per point (the median chord over k0 points over k0, k0 doubled from 4 until that chord
+ * exceeds 8 noise SDs: noise comparable to the step inflates the step); k points advancing 2 tolerances and 4 more points. Null when the trace
+ * cannot be judged: k above 200 (noise far above the progress per point), fewer than 2k + 1
+ * points, or a tolerance above a quarter of the points' RMS distance from their centroid (wild
+ * points: everything would be "near"; the fit's guards refuse such traces).
+ */
+function selfWindow(y: Float64Array, closed: boolean, sigma: number, step: number): { progress: number; within: number; k: number } | null {
+  const n = y.length / 3;
+  if (!(step > 0)) return null;
+  const sd = sigma > 0 ? sigma : 0;
+  // Chords over k0 points, k0 doubled until the median chord stands above the noise (8 SDs).
+  let k0 = 4, chord = 0;
+  for (;;) {
+    const chords = new Float64Array(closed ? n : Math.max(0, n - k0));
+    if (chords.length < 5) return null;
+    chordsOver(y, closed, k0, chords);
+    chord = medianInPlace(chords);
+    if (chord >= 8 * sd) break;
+    if (4 * k0 > n) return null;
+    k0 *= 2;
+  }
+  const progress = Math.min(step, chord / k0);
+  if (!(progress > 0)) return null;
+  const within = 4 * sd + 0.6 * step;
+  const k = Math.max(4, Math.ceil((2 * within) / progress) + 4);
+  return k > 200 || n < 2 * k + 1 || within > 0.25 * rmsRadius(y) ? null : { progress, within, k };
+}
+
+/** Where a 3D trace runs a second time along a stretch of its own path. */
+export interface Overlap {
+  /** Index where the second pass was found. */
+  readonly at: number;
+  /** Index of the nearest point of the first pass. */
+  readonly other: number;
+  /** Points from `at` on that lie on the other pass. */
+  readonly count: number;
+  /** Index of the last point of the other pass they were matched to. */
+  readonly otherEnd: number;
+  /** The distance within which they lie on it (canonical units). */
+  readonly within: number;
+}
+
+/**
+ * The first stretch where an ordered 3D trace runs along its own path a second time (a loop traced
+ * twice, a file holding the same wire twice), in either direction, or null. Candidates: points
+ * within the tolerance of `selfWindow` of a point more than 3k points away along the trace (a
+ * spatial hash of cell size `within`, so O(n) for the search). Confirmation over the 2k + 1 points
+ * around the candidate: 80% have a point of the other pass within the tolerance, and their offsets
+ * from it, normal to the local tangent, have a mean under 3 sqrt(2) sigma / sqrt(count) + 0.05
+ * steps (no systematic offset: the neighbouring turn of a coil is offset by its pitch) and an RMS
+ * spread about that mean under 3 sqrt(2) sigma + 0.3 steps (runs together, does not cross), and
+ * at least k points from the candidate on follow the other pass (`followPass`). Turns
+ * of a coil closer than the noise can tell apart are taken for an overlap: refused, not misread.
+ * After a rejected candidate the scan skips k points: O(n k) at worst.
+ */
+export function findOverlap(y: Float64Array, closed: boolean, sigma: number, step: number): Overlap | null {
+  const n = y.length / 3;
+  const win = selfWindow(y, closed, sigma, step);
+  if (!win) return null;
+  const { within, k } = win;
+  const sd = sigma > 0 ? sigma : 0;
+  const far = (a: number, b: number) => indexGap(n, closed, a, b) > 3 * k;
+  const hash = spatialHash(y, within);
+  for (let i = closed ? 0 : k; i < (closed ? n : n - k); ++i) {
+    const m = hash.nearest(i, within, (j) => far(i, j));
+    if (m < 0) continue;
+    const c = overlapStats(y, closed, i, m, k, within);
+    const meanLimit = (3 * Math.SQRT2 * sd) / Math.sqrt(Math.max(1, c.count)) + 0.05 * step;
+    const spreadLimit = 3 * Math.SQRT2 * sd + 0.3 * step;
+    if (c.count >= 2 * k && c.hits >= 0.8 * c.count && c.meanOffset <= meanLimit && c.spread <= spreadLimit) {
+      const f = followPass(y, closed, i, m, k, within);
+      if (f.count >= k) return { at: i, other: m, count: f.count, otherEnd: f.last, within };
+    }
+    i += k;
+  }
+  return null;
+}
+
+/**
+ * How many points from `a` on follow the other pass (each within `within` of a point within 2k
+ * indices of the previous partner, which then becomes the partner; up to k misses in a row), and
+ * the last partner.
+ */
+function followPass(y: Float64Array, closed: boolean, a: number, m: number, k: number, within: number): { count: number; last: number } {
+  const n = y.length / 3;
+  let q = m, count = 0, misses = 0;
+  for (let t = a; misses <= k && count + misses < n && (closed || t < n); ++t) {
+    const b = nearestInRange(y, closed, t, q - 2 * k, q + 2 * k);
+    if (b >= 0 && wrappedDistance(y, closed, t, b) <= within && indexGap(n, closed, b, t) > 2 * k) { count += misses + 1; misses = 0; q = b; }
+    else ++misses;
+  }
+  return { count, last: q };
+}
+
+/** Index in [lo, hi] (wrapped on a ring, clamped otherwise) of the point nearest p_a, or -1. */
+function nearestInRange(y: Float64Array, closed: boolean, a: number, lo: number, hi: number): number {
+  const n = y.length / 3;
+  if (!closed) { lo = Math.max(0, lo); hi = Math.min(n - 1, hi); }
+  let best = -1, bestD = Infinity;
+  for (let b = lo; b <= hi; ++b) {
+    const d = wrappedDistance(y, closed, a, b);
+    if (d < bestD) { bestD = d; best = closed ? ((b % n) + n) % n : b; }
+  }
+  return best;
+}
+
+/**
+ * Offsets of the points i - k .. i + k from their nearest points of the other pass (searched within
+ * 3k indices of m): how many were judged, how many lie within `within`, the length of the mean
+ * offset normal to the local tangent, and the RMS spread of those offsets about their mean.
+ */
+function overlapStats(y: Float64Array, closed: boolean, i: number, m: number, k: number, within: number): { count: number; hits: number; meanOffset: number; spread: number } {
+  const n = y.length / 3;
+  const h = Math.max(1, Math.round(k / 4));
+  let count = 0, hits = 0, mx = 0, my = 0, mz = 0, s2 = 0;
+  const at = (j: number) => 3 * (closed ? ((j % n) + n) % n : j);
+  for (let a = i - k; a <= i + k; ++a) {
+    if (!closed && (a - h < 0 || a + h >= n)) continue;
+    const b = nearestInRange(y, closed, a, m - 3 * k, m + 3 * k);
+    if (b < 0) continue;
+    const pa = at(a), pb = 3 * b, p1 = at(a + h), p0 = at(a - h);
+    let tx = y[p1] - y[p0], ty = y[p1 + 1] - y[p0 + 1], tz = y[p1 + 2] - y[p0 + 2];
+    const tl = hypot3(tx, ty, tz);
+    if (!(tl > 0)) continue;
+    tx /= tl; ty /= tl; tz /= tl;
+    let ox = y[pa] - y[pb], oy = y[pa + 1] - y[pb + 1], oz = y[pa + 2] - y[pb + 2];
+    if (hypot3(ox, oy, oz) <= within) ++hits;
+    const along = ox * tx + oy * ty + oz * tz;
+    ox -= along * tx; oy -= along * ty; oz -= along * tz;
+    mx += ox; my += oy; mz += oz; s2 += ox * ox + oy * oy + oz * oz;
+    ++count;
+  }
+  if (count === 0) return { count, hits, meanOffset: Infinity, spread: Infinity };
+  mx /= count; my /= count; mz /= count;
+  return { count, hits, meanOffset: hypot3(mx, my, mz), spread: Math.sqrt(Math.max(0, s2 / count - (mx * mx + my * my + mz * mz))) };
+}
+
+/** A uniform grid of cell size h over the points, for nearest-point queries within h. */
+function spatialHash(y: Float64Array, h: number): { nearest(i: number, r: number, ok: (j: number) => boolean): number } {
+  const n = y.length / 3, inv = 1 / h;
+  const key = (cx: number, cy: number, cz: number) => (cx * 73856093) ^ (cy * 19349663) ^ (cz * 83492791);
+  const cells = new Map<number, number[]>();
+  const cellOf = new Int32Array(3 * n);
+  for (let i = 0; i < n; ++i) {
+    const cx = Math.floor(y[3 * i] * inv), cy = Math.floor(y[3 * i + 1] * inv), cz = Math.floor(y[3 * i + 2] * inv);
+    cellOf[3 * i] = cx; cellOf[3 * i + 1] = cy; cellOf[3 * i + 2] = cz;
+    const kk = key(cx, cy, cz);
+    const list = cells.get(kk);
+    if (list) list.push(i); else cells.set(kk, [i]);
+  }
+  return {
+    nearest(i, r, ok) {
+      let best = -1, bestD = r;
+      for (let dx = -1; dx <= 1; ++dx) for (let dy = -1; dy <= 1; ++dy) for (let dz = -1; dz <= 1; ++dz) {
+        const list = cells.get(key(cellOf[3 * i] + dx, cellOf[3 * i + 1] + dy, cellOf[3 * i + 2] + dz));
+        if (!list) continue;
+        for (const j of list) {
+          if (!ok(j)) continue;
+          const d = hypot3(y[3 * j] - y[3 * i], y[3 * j + 1] - y[3 * i + 1], y[3 * j + 2] - y[3 * i + 2]);
+          if (d <= bestD) { bestD = d; best = j; }
+        }
+      }
+      return best;
+    },
+  };
+}
+
+/** RMS distance of the points from their centroid. */
+function rmsRadius(y: Float64Array): number {
+  const n = y.length / 3;
+  let cx = 0, cy = 0, cz = 0;
+  for (let i = 0; i < n; ++i) { cx += y[3 * i]; cy += y[3 * i + 1]; cz += y[3 * i + 2]; }
+  cx /= n; cy /= n; cz /= n;
+  let s2 = 0;
+  for (let i = 0; i < n; ++i) s2 += (y[3 * i] - cx) ** 2 + (y[3 * i + 1] - cy) ** 2 + (y[3 * i + 2] - cz) ** 2;
+  return Math.sqrt(s2 / n);
+}
+
+/** Number of steps between indices a and b (the shorter way round on a ring). */
+function indexGap(n: number, closed: boolean, a: number, b: number): number {
+  const d = Math.abs(a - b);
+  return closed ? Math.min(d, n - d) : d;
 }
 
 /** Distance between points a and b, indices taken modulo n on a ring. */

@@ -7,7 +7,7 @@
 import { describe, expect, it } from "vitest";
 import { detectClosed } from "../../src/frame/detectClosed.js";
 import { fitProfile } from "../../src/frame/profile.js";
-import { grossOutliers, differenceNoise, findRetrace, referenceLength } from "../../src/frame/robustStart.js";
+import { grossOutliers, differenceNoise, findOverlap, findRetrace, referenceLength } from "../../src/frame/robustStart.js";
 import { FLAG_END, FLAG_TORSION_UNDEFINED, type Profile, type Trace } from "../../src/types.js";
 import { bumpCurve, circleCurve, helixCurve, sampleCurve, sampleCurveUneven } from "../support/curves.js";
 import { mulberry32, normalStream } from "../support/rng.js";
@@ -136,6 +136,31 @@ describe("robust start", () => {
     for (let seed = 1; seed <= 5; ++seed) expect(detectClosed(sampleCurve(circleCurve(1), 200, 0.01, seed).xyz, [])).toBe(true);
   });
 
+  it("finds a stretch traced twice (either direction), and not the turns of a tight coil or a crossing", () => {
+    const step = 780e-9 / 399, noisy = (seed: number) => sampleCurve(helix, 400, 0.5e-9, seed).xyz;
+    const joined = (a: Float64Array, b: Float64Array) => { const x = new Float64Array(a.length + b.length); x.set(a); x.set(b, a.length); return x; };
+    const reversed = (a: Float64Array) => { const x = new Float64Array(a.length); for (let i = 0; i < a.length / 3; ++i) x.set(a.subarray(3 * i, 3 * i + 3), a.length - 3 * i - 3); return x; };
+    // The same helix twice with fresh noise, the second time also backwards.
+    expect(findOverlap(joined(noisy(1), noisy(2)), false, 0.5e-9, step)).not.toBeNull();
+    expect(findOverlap(joined(noisy(1), reversed(noisy(2))), false, 0.5e-9, step)).not.toBeNull();
+    expect(findOverlap(noisy(1), false, 0.5e-9, step)).toBeNull();
+    // A coil whose turns are 1 apart at noise 0.3 (offset by the pitch: not the same path).
+    const coil = sampleCurve(helixCurve(50, 1 / (2 * Math.PI), 5), 1000, 0.3, 8).xyz;
+    expect(findOverlap(coil, false, 0.3, (2 * Math.PI * 50 * 5) / 999)).toBeNull();
+    // A planar figure eight drawn in 3D: its strands cross at the middle, they do not run together.
+    const eight = new Float64Array(3 * 400);
+    for (let i = 0; i < 400; ++i) { const t = (2 * Math.PI * i) / 400; eight.set([Math.sin(t), 0.6 * Math.sin(2 * t), 0], 3 * i); }
+    expect(findOverlap(eight, true, 0, 0.0155)).toBeNull();
+    // A dense trace whose noise is 50x its progress per point: the window is set by chords that stand
+    // above the noise, so neither check is fooled by noisy neighbours (was: refused as a path traced
+    // twice, a 150000-point helix with 0.2 nm noise on 0.003 nm steps).
+    const dense = sampleCurve(helixCurve(30, 8, 2), 20000, 0.2, 6).xyz;
+    const denseStep = (2 * 2 * Math.PI * Math.hypot(30, 8)) / 19999;
+    expect(findOverlap(dense, false, 0.2, 0.2 * Math.sqrt(6))).toBeNull();
+    expect(findRetrace(dense, false, 0.2, 0.2 * Math.sqrt(6))).toBeNull();
+    expect(denseStep).toBeLessThan(0.02);
+  });
+
   it("measures a robust length that ignores a wild point", () => {
     const x = clean.slice();
     x[600] += 5000e-9;
@@ -206,6 +231,16 @@ describe("never a silent wrong answer", () => {
     // Was: a 856 nm profile with a cusp at the turn and the way back counted as wire, exit 0.
     expect(() => fitProfile(trace(outAndBack(clean, 300, 150)))).toThrow(
       "w.csv: points: the trace turns back on its own path near row 302: the next 150 points (to row 452) run back over the points before it (within 5.06 nm); a wire cannot retrace itself: remove the retraced rows or split the file there",
+    );
+  });
+
+  it("refuses a loop traced twice, naming both passes", () => {
+    // Was: a closed "wire" of twice the length (1256 nm for a 628 nm ring), exit 0.
+    const ring = (seed: number) => sampleCurve(circleCurve(100e-9), 200, 0.5e-9, seed).xyz;
+    const x = new Float64Array(1200);
+    x.set(ring(3)); x.set(ring(4), 600);
+    expect(() => fitProfile(trace(x))).toThrow(
+      "w.csv: points: the trace runs along the same path twice: row 17 to row 202 and row 217 to row 401 lie within 3.81 nm of each other with no offset between them; a wire cannot pass through itself (and turns of a coil closer than the noise cannot be told apart): remove the repeated rows or split the file there",
     );
   });
 
