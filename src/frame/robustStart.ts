@@ -592,7 +592,7 @@ export interface Overlap {
  * spread about that mean under 3 sqrt(2) sigma + 0.3 steps (runs together, does not cross), and
  * at least k points from the candidate on follow the other pass (`followPass`). Turns
  * of a coil closer than the noise can tell apart are taken for an overlap: refused, not misread.
- * After a rejected candidate the scan skips k points: O(n k) at worst.
+ * The scan visits every k-th point and skips k more after a rejected candidate: O(n k) at worst.
  */
 export function findOverlap(y: Float64Array, closed: boolean, sigma: number, step: number): Overlap | null {
   const n = y.length / 3;
@@ -602,7 +602,10 @@ export function findOverlap(y: Float64Array, closed: boolean, sigma: number, ste
   const sd = sigma > 0 ? sigma : 0;
   const far = (a: number, b: number) => indexGap(n, closed, a, b) > 3 * k;
   const hash = spatialHash(y, within);
-  for (let i = closed ? 0 : k; i < (closed ? n : n - k); ++i) {
+  // Confirmation needs the 2k + 1 points around a candidate on the repeated stretch: visiting every
+  // k-th point finds any such stretch of 3k + 1 points or more.
+  const stride = k;
+  for (let i = closed ? 0 : k; i < (closed ? n : n - k); i += stride) {
     const m = hash.nearest(i, within, (j) => far(i, j));
     if (m < 0) continue;
     const c = overlapStats(y, closed, i, m, k, within);
@@ -676,27 +679,31 @@ function overlapStats(y: Float64Array, closed: boolean, i: number, m: number, k:
   return { count, hits, meanOffset: hypot3(mx, my, mz), spread: Math.sqrt(Math.max(0, s2 / count - (mx * mx + my * my + mz * mz))) };
 }
 
-/** A uniform grid of cell size h over the points, for nearest-point queries within h. */
+/**
+ * A uniform grid of cell size h over the points, for nearest-point queries within h: cells hashed
+ * into a power-of-two table with chains in typed arrays (no per-cell allocation).
+ */
 function spatialHash(y: Float64Array, h: number): { nearest(i: number, r: number, ok: (j: number) => boolean): number } {
   const n = y.length / 3, inv = 1 / h;
-  const key = (cx: number, cy: number, cz: number) => (cx * 73856093) ^ (cy * 19349663) ^ (cz * 83492791);
-  const cells = new Map<number, number[]>();
-  const cellOf = new Int32Array(3 * n);
+  let size = 1;
+  while (size < 2 * n) size *= 2;
+  const mask = size - 1;
+  const head = new Int32Array(size).fill(-1), next = new Int32Array(n), cellOf = new Int32Array(3 * n);
+  const slot = (cx: number, cy: number, cz: number) => (Math.imul(cx, 73856093) ^ Math.imul(cy, 19349663) ^ Math.imul(cz, 83492791)) & mask;
   for (let i = 0; i < n; ++i) {
     const cx = Math.floor(y[3 * i] * inv), cy = Math.floor(y[3 * i + 1] * inv), cz = Math.floor(y[3 * i + 2] * inv);
     cellOf[3 * i] = cx; cellOf[3 * i + 1] = cy; cellOf[3 * i + 2] = cz;
-    const kk = key(cx, cy, cz);
-    const list = cells.get(kk);
-    if (list) list.push(i); else cells.set(kk, [i]);
+    const b = slot(cx, cy, cz);
+    next[i] = head[b]; head[b] = i;
   }
   return {
     nearest(i, r, ok) {
       let best = -1, bestD = r;
+      const cx = cellOf[3 * i], cy = cellOf[3 * i + 1], cz = cellOf[3 * i + 2];
       for (let dx = -1; dx <= 1; ++dx) for (let dy = -1; dy <= 1; ++dy) for (let dz = -1; dz <= 1; ++dz) {
-        const list = cells.get(key(cellOf[3 * i] + dx, cellOf[3 * i + 1] + dy, cellOf[3 * i + 2] + dz));
-        if (!list) continue;
-        for (const j of list) {
-          if (!ok(j)) continue;
+        const ax = cx + dx, ay = cy + dy, az = cz + dz;
+        for (let j = head[slot(ax, ay, az)]; j >= 0; j = next[j]) {
+          if (cellOf[3 * j] !== ax || cellOf[3 * j + 1] !== ay || cellOf[3 * j + 2] !== az || !ok(j)) continue;
           const d = hypot3(y[3 * j] - y[3 * i], y[3 * j + 1] - y[3 * i + 1], y[3 * j + 2] - y[3 * i + 2]);
           if (d <= bestD) { bestD = d; best = j; }
         }

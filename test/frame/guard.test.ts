@@ -240,7 +240,7 @@ describe("never a silent wrong answer", () => {
     const x = new Float64Array(1200);
     x.set(ring(3)); x.set(ring(4), 600);
     expect(() => fitProfile(trace(x))).toThrow(
-      "w.csv: points: the trace runs along the same path twice: row 17 to row 202 and row 217 to row 401 lie within 3.81 nm of each other with no offset between them; a wire cannot pass through itself (and turns of a coil closer than the noise cannot be told apart): remove the repeated rows or split the file there",
+      "w.csv: points: the trace runs along the same path twice: row 23 to row 202 and row 222 to row 401 lie within 3.81 nm of each other with no offset between them; a wire cannot pass through itself (and turns of a coil closer than the noise cannot be told apart): remove the repeated rows or split the file there",
     );
   });
 
