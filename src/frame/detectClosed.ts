@@ -1,3 +1,5 @@
+import { selectInPlace } from "./robustStart.js";
+
 /**
  * Decides whether an ordered trace is a closed curve: the gap between its last and first points is
  * within a few sample steps plus the noise (noise from the difference-based pseudo-residuals of
@@ -15,8 +17,8 @@ export function detectClosed(xyz: Float64Array, diagnostics: string[]): boolean 
     steps[i - 1] = Math.hypot(xyz[3 * i] - xyz[3 * i - 3], xyz[3 * i + 1] - xyz[3 * i - 2], xyz[3 * i + 2] - xyz[3 * i - 1]);
     total += steps[i - 1];
   }
-  const sorted = steps.slice().sort();
-  const medStep = sorted[(sorted.length - 1) >> 1];
+  // The lower median (the element a sort would put at (n - 2) >> 1), by selection.
+  const medStep = selectInPlace(steps.slice(), steps.length, (steps.length - 1) >> 1);
   let e2 = 0;
   for (let i = 1; i < n - 1; ++i) {
     for (let c = 0; c < 3; ++c) {

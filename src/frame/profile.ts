@@ -6,7 +6,7 @@ import { checkClosable, describeLength, GAP_LIMIT } from "./fitGuard.js";
 import { detectClosed } from "./detectClosed.js";
 import { runPasses, type PassesResult } from "./passes.js";
 export { segmentCount } from "./passes.js";
-import { differenceNoise, findOverlap, findRetrace, grossOutliers, medianOf, referenceLength, startParameter, stepLengths, toCanonical, type CanonicalTrace } from "./robustStart.js";
+import { differenceNoise, findOverlap, findRetrace, selfWindow, grossOutliers, medianOf, referenceLength, startParameter, stepLengths, toCanonical, type CanonicalTrace } from "./robustStart.js";
 import { chooseLevels, curvatureLevel } from "./levels.js";
 
 /** Options of `fitProfile`; lengths in metres. */
@@ -158,13 +158,14 @@ export function robustStart(trace: Trace, options: ProfileOptions, diagnostics: 
   if (!(span > 0)) throw new InputError(file, null, "points", "all points coincide: the trace has zero length");
   const normalDims: 1 | 2 = planar ? 1 : 2;
   const sigmaDiff = differenceNoise(y, u, normalDims);
-  const back = findRetrace(y, closed, sigmaDiff, medianStep);
+  const win = selfWindow(y, closed, sigmaDiff, medianStep);
+  const back = findRetrace(y, closed, sigmaDiff, medianStep, win);
   if (back) {
     const end = closed ? (back.at + back.count) % kept.length : back.at + back.count;
     throw new InputError(file, null, "points",
       `the trace turns back on its own path near ${rowName(trace, kept[back.at])}: the next ${back.count} points (to ${rowName(trace, kept[end])}) run back over the points before it (within ${describeLength(back.within * canon.scale, trace.source)}); a wire cannot retrace itself: remove the retraced rows or split the file there`);
   }
-  const again = trace.dims === 3 && !trace.planarProjection ? findOverlap(y, closed, sigmaDiff, medianStep) : null;
+  const again = trace.dims === 3 && !trace.planarProjection ? findOverlap(y, closed, sigmaDiff, medianStep, win) : null;
   if (again) {
     const m = kept.length, wrap = (j: number) => ((j % m) + m) % m;
     const a = rowName(trace, kept[again.at]), b = rowName(trace, kept[wrap(again.at + again.count - 1)]);

@@ -500,11 +500,10 @@ export interface Retrace {
  * a trace so dense that 200 steps span under 2 tolerances is not judged. Cost O(n) for the
  * screen, O(k^2) per candidate.
  */
-export function findRetrace(y: Float64Array, closed: boolean, sigma: number, step: number): Retrace | null {
+export function findRetrace(y: Float64Array, closed: boolean, sigma: number, step: number, win = selfWindow(y, closed, sigma, step)): Retrace | null {
   const n = y.length / 3;
   if (!(step > 0)) return null;
   const dist = (a: number, b: number) => wrappedDistance(y, closed, a, b);
-  const win = selfWindow(y, closed, sigma, step);
   if (!win) return null;
   const { progress, within, k } = win;
   const first = closed ? 0 : k, last = closed ? n : n - k;
@@ -537,6 +536,9 @@ export function findRetrace(y: Float64Array, closed: boolean, sigma: number, ste
   return null;
 }
 
+/** Window of the self-overlap checks (`selfWindow`). */
+export interface SelfWindow { readonly progress: number; readonly within: number; readonly k: number }
+
 /**
  * The window of the self-overlap checks: tolerance within = 4 noise SDs + 0.6 median steps; net
  * progress per point (the median chord over k0 points over k0, k0 doubled from 4 until that chord
@@ -545,17 +547,18 @@ export function findRetrace(y: Float64Array, closed: boolean, sigma: number, ste
  * points, or a tolerance above a quarter of the points' RMS distance from their centroid (wild
  * points: everything would be "near"; the fit's guards refuse such traces).
  */
-function selfWindow(y: Float64Array, closed: boolean, sigma: number, step: number): { progress: number; within: number; k: number } | null {
+export function selfWindow(y: Float64Array, closed: boolean, sigma: number, step: number): SelfWindow | null {
   const n = y.length / 3;
   if (!(step > 0)) return null;
   const sd = sigma > 0 ? sigma : 0;
   // Chords over k0 points, k0 doubled until the median chord stands above the noise (8 SDs).
   let k0 = 4, chord = 0;
+  const chords = new Float64Array(n);
   for (;;) {
-    const chords = new Float64Array(closed ? n : Math.max(0, n - k0));
-    if (chords.length < 5) return null;
-    chordsOver(y, closed, k0, chords);
-    chord = medianInPlace(chords);
+    const count = closed ? n : Math.max(0, n - k0);
+    if (count < 5) return null;
+    chordsOver(y, closed, k0, chords.subarray(0, count));
+    chord = medianInPlace(chords, count);
     if (chord >= 8 * sd) break;
     if (4 * k0 > n) return null;
     k0 *= 2;
@@ -594,9 +597,8 @@ export interface Overlap {
  * of a coil closer than the noise can tell apart are taken for an overlap: refused, not misread.
  * The scan visits every k-th point and skips k more after a rejected candidate: O(n k) at worst.
  */
-export function findOverlap(y: Float64Array, closed: boolean, sigma: number, step: number): Overlap | null {
+export function findOverlap(y: Float64Array, closed: boolean, sigma: number, step: number, win = selfWindow(y, closed, sigma, step)): Overlap | null {
   const n = y.length / 3;
-  const win = selfWindow(y, closed, sigma, step);
   if (!win) return null;
   const { within, k } = win;
   const sd = sigma > 0 ? sigma : 0;
@@ -739,7 +741,11 @@ function wrappedDistance(y: Float64Array, closed: boolean, a: number, b: number)
 
 /** chords[i] = |p_i+k0 - p_i| (wrapped on a ring). */
 function chordsOver(y: Float64Array, closed: boolean, k0: number, chords: Float64Array): void {
-  for (let i = 0; i < chords.length; ++i) chords[i] = wrappedDistance(y, closed, i + k0, i);
+  const n = y.length / 3;
+  for (let i = 0; i < chords.length; ++i) {
+    const p = 3 * i, q = 3 * (closed && i + k0 >= n ? i + k0 - n : i + k0);
+    chords[i] = hypot3(y[q] - y[p], y[q + 1] - y[p + 1], y[q + 2] - y[p + 2]);
+  }
 }
 
 /**
