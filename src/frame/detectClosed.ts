@@ -4,7 +4,8 @@ import { selectInPlace } from "./robustStart.js";
  * Decides whether an ordered trace is a closed curve: the gap between its last and first points is
  * within a few sample steps plus the noise (noise from the difference-based pseudo-residuals of
  * Gasser, Sroka & Jennen-Steinmetz 1986, Biometrika 73:625), small against the whole length, and
- * no point away from the ends lies nearer to either end than the other end does.
+ * no point away from the ends lies nearer to either end than the other end does, and the wire runs on
+ * through the gap (the closing step turns by under 75 degrees from the tangents at both ends).
  * Adds one line to `diagnostics` when it calls the trace closed. Cost O(n).
  * Units: any (the result depends only on ratios).
  */
@@ -38,8 +39,33 @@ export function detectClosed(xyz: Float64Array, diagnostics: string[]): boolean 
     diagnostics.push(`not taken for closed: the ends are ${(gap / medStep).toFixed(2)} sample steps apart, but the wire passes closer to an end elsewhere (use --closed to override)`);
     return false;
   }
+  // ... and only if the wire runs on through the gap: the step from the last point to the first
+  // turns by less than 75 degrees from the tangents at both ends (the open ends of a narrow hairpin
+  // face each other across it at 90 degrees). Not judged when the gap is within the noise or under
+  // half a step (its direction is then noise, or the ends all but coincide).
+  if (gap > Math.max(0.5 * medStep, 4 * sigma)) {
+    const h = Math.max(1, Math.min(w, (n - 1) >> 2));
+    const e = 3 * (n - 1), eb = 3 * (n - 1 - h);
+    const gx = xyz[0] - xyz[e], gy = xyz[1] - xyz[e + 1], gz = xyz[2] - xyz[e + 2];
+    const cosEnd = cosine(xyz[e] - xyz[eb], xyz[e + 1] - xyz[eb + 1], xyz[e + 2] - xyz[eb + 2], gx, gy, gz);
+    const cosStart = cosine(gx, gy, gz, xyz[3 * h] - xyz[0], xyz[3 * h + 1] - xyz[1], xyz[3 * h + 2] - xyz[2]);
+    if (!(cosEnd > 0.25 && cosStart > 0.25)) {
+      diagnostics.push(`not taken for closed: the ends are ${(gap / medStep).toFixed(2)} sample steps apart, but the wire does not run on through the gap (it turns by ${angleDeg(Math.min(cosEnd, cosStart))} degrees there; use --closed to override)`);
+      return false;
+    }
+  }
   diagnostics.push(`closed curve detected: the ends meet within ${(gap / medStep).toFixed(2)} sample steps (use --open to override)`);
   return true;
+}
+
+/** Cosine of the angle between two vectors (NaN when either is zero). */
+function cosine(ax: number, ay: number, az: number, bx: number, by: number, bz: number): number {
+  return (ax * bx + ay * by + az * bz) / (Math.hypot(ax, ay, az) * Math.hypot(bx, by, bz));
+}
+
+/** An angle in whole degrees from its cosine. */
+function angleDeg(c: number): string {
+  return Number.isFinite(c) ? (Math.acos(Math.max(-1, Math.min(1, c))) * 180 / Math.PI).toFixed(0) : "an undefined number of";
 }
 
 /** Whether a point with index in [from, to] lies nearer than `d` to the point at offset `a`. */

@@ -116,7 +116,7 @@ describe("robust start", () => {
     expect(findRetrace(hairpin(0.5), false, 0, 1)).not.toBeNull();
   });
 
-  it("takes ends a few steps apart for closed only when nothing else on the wire is nearer to them", () => {
+  it("takes ends a few steps apart for closed only when nothing else is nearer to them and the wire runs on through the gap", () => {
     // A tight open coil (radius 50, pitch 1, 5 turns, noise 0.3 per coordinate): its ends are 3 steps
     // apart but the neighbouring turn passes 1 away. Was: detected closed, the fit joined the ends
     // (kappa up to 24% high there), exit 0.
@@ -132,8 +132,19 @@ describe("robust start", () => {
     const once = sampleCurve(circleCurve(100), 200, 0.5, 3).xyz, twice = new Float64Array(1200);
     twice.set(once); twice.set(sampleCurve(circleCurve(100), 200, 0.5, 4).xyz, 600);
     expect(detectClosed(twice, [])).toBe(false);
-    // A noisy closed circle still is.
-    for (let seed = 1; seed <= 5; ++seed) expect(detectClosed(sampleCurve(circleCurve(1), 200, 0.01, seed).xyz, [])).toBe(true);
+    // A noisy closed circle still is, at 1% and 0.1% noise.
+    for (let seed = 1; seed <= 5; ++seed) {
+      for (const [n, noise] of [[200, 0.01], [200, 0.001], [50, 0.001]]) expect(detectClosed(sampleCurve(circleCurve(1), n, noise, seed).xyz, [])).toBe(true);
+    }
+    // A narrow hairpin (legs 200 long, 3 apart, noise 0.3): its open ends face each other across the
+    // gap at 90 degrees. Was: detected closed, a 3-wide closing jump fitted as wire.
+    const g = mulberry32(12), jitter = () => 0.3 * Math.sqrt(-2 * Math.log(1 - g())) * Math.cos(2 * Math.PI * g());
+    const pin: number[] = [];
+    for (let i = 0; i < 200; ++i) pin.push(i + jitter(), jitter(), jitter());
+    for (let i = 0; i < 200; ++i) pin.push(199 - i + jitter(), 3 + jitter(), jitter());
+    const dp: string[] = [];
+    expect(detectClosed(Float64Array.from(pin), dp)).toBe(false);
+    expect(dp[0]).toMatch(/^not taken for closed: the ends are [\d.]+ sample steps apart, but the wire does not run on through the gap \(it turns by \d+ degrees there; use --closed to override\)$/);
   });
 
   it("finds a stretch traced twice (either direction), and not the turns of a tight coil or a crossing", () => {
