@@ -14,6 +14,7 @@ import type { SplineBasis } from "./bspline.js";
 import { evalCurve, kappaTau } from "./curve.js";
 import { frames } from "./frames.js";
 import type { Levels } from "./levels.js";
+import { describeLength } from "./fitGuard.js";
 import type { PassesResult } from "./passes.js";
 import type { Samples, Start } from "./profile.js";
 import { solveAt } from "./smoother.js";
@@ -102,6 +103,13 @@ export function fitBands(
   else if (undefinedCount > 0 && !trace.planarProjection) diagnostics.push(`torsion: undefined at ${undefinedCount} of ${m} samples where the curvature cannot be told from zero (a twist-free frame is carried there)`);
   const biased = countBiased(flags);
   if (biased > 0) diagnostics.push(`bands: at ${biased} of ${m} samples the curvature or torsion changes by more than its noise band's half-width when smoothed less (a feature near the resolution length): the bands may under-cover there`);
+  // Near a point where the curvature cannot be told from zero (an inflection of a 3D wire), torsion
+  // is a ratio of two small quantities and the smoothed fit's bias there is not in its band
+  // (measured: 2-4x the true torsion within a fifth of the torsion fit's resolution length of an
+  // inflection, bands holding the truth at 62% of samples): flag it biased within half that length.
+  const tauResolutionM = resolutionM * Math.pow(lv.tauFactor, 1 / 8);
+  const nearZero = R > 0 && !trace.planarProjection && !lv.planarWithinNoise && straightCount < m ? flagNearUndefined(flags, s, closed, length * L0, 0.5 * tauResolutionM) : 0;
+  if (nearZero > 0) diagnostics.push(`torsion: at ${nearZero} samples within ${describeLength(0.5 * tauResolutionM, trace.source)} of a point where the curvature cannot be told from zero, the torsion is flagged biased (16): its smoothing bias there is not in its band`);
   if (trace.planarProjection) diagnostics.push("planar projection: curvature is the projected curvature; torsion is not measurable");
 
   const kept = set.keepSamples && R > 0 ? keptReplicates(boot, Rb, R, gridPos, kappa, tau, L0) : undefined;
@@ -362,6 +370,26 @@ function sampleLoop(
     if (!closed && (s[j] < endZone || s[j] > lengthM - endZone)) flags[j] |= FLAG_END;
   }
   return straightCount;
+}
+
+/**
+ * Sets FLAG_BIAS on samples with a defined torsion that lie within `reach` (arc length) of a sample
+ * whose torsion is undefined; returns how many were newly flagged. Samples are in order of s.
+ */
+function flagNearUndefined(flags: Uint8Array, s: Float64Array, closed: boolean, length: number, reach: number): number {
+  const m = flags.length;
+  const undef: number[] = [];
+  for (let j = 0; j < m; ++j) if (flags[j] & FLAG_TORSION_UNDEFINED) undef.push(s[j]);
+  if (undef.length === 0) return 0;
+  let count = 0, a = 0;
+  for (let j = 0; j < m; ++j) {
+    if (flags[j] & FLAG_TORSION_UNDEFINED || flags[j] & FLAG_BIAS) continue;
+    while (a + 1 < undef.length && undef[a + 1] <= s[j]) ++a;
+    let d = Math.min(Math.abs(s[j] - undef[a]), a + 1 < undef.length ? Math.abs(undef[a + 1] - s[j]) : Infinity);
+    if (closed) d = Math.min(d, length - Math.abs(s[j] - undef[0]), length - Math.abs(undef[undef.length - 1] - s[j]));
+    if (d <= reach) { flags[j] |= FLAG_BIAS; ++count; }
+  }
+  return count;
 }
 
 /** 1 where the torsion is defined (not flagged undefined), else 0. */

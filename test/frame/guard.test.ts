@@ -8,7 +8,7 @@ import { describe, expect, it } from "vitest";
 import { detectClosed } from "../../src/frame/detectClosed.js";
 import { fitProfile } from "../../src/frame/profile.js";
 import { grossOutliers, differenceNoise, findOverlap, findRetrace, referenceLength } from "../../src/frame/robustStart.js";
-import { FLAG_END, FLAG_TORSION_UNDEFINED, type Profile, type Trace } from "../../src/types.js";
+import { FLAG_BIAS, FLAG_END, FLAG_TORSION_UNDEFINED, type Profile, type Trace } from "../../src/types.js";
 import { bumpCurve, circleCurve, helixCurve, sampleCurve, sampleCurveUneven } from "../support/curves.js";
 import { mulberry32, normalStream } from "../support/rng.js";
 
@@ -278,6 +278,26 @@ describe("never a silent wrong answer", () => {
     const pts: number[] = [];
     for (let i = 0; i < 30; ++i) { const a = (i / 29) * 2; pts.push(100e-9 * Math.cos(a), 100e-9 * Math.sin(a), 0); }
     expect(() => fitProfile(trace(Float64Array.from(pts)), { lambda: 1e8 })).toThrow(/^w\.csv: points: the fit resolves nothing: its resolution length \([\d.e+]+ nm\) exceeds the wire's length \([\d.]+ nm\); too few points or too much noise for this wire$/);
+  });
+
+  it("flags the torsion biased (16) next to an inflection of a 3D wire, where its bias is not in its band", () => {
+    // r(t) = 100 nm (t, t^3/3, t^4/4), t in [-1, 1]: curvature 0 at t = 0, torsion
+    // 6t^2 / (4t^2 + 9t^4 + t^8) / 100 nm there (Frenet formulas, common practice) - a finite 0.015/nm
+    // that the smoothed fit overstates 2-4x within 15 nm of the inflection (measured).
+    const g = normalStream(9), n = 500, xyz = new Float64Array(3 * n);
+    for (let i = 0; i < n; ++i) {
+      const t = -1 + (2 * i) / (n - 1);
+      xyz.set([100e-9 * t + 0.2e-9 * g(), (100e-9 * t ** 3) / 3 + 0.2e-9 * g(), (100e-9 * t ** 4) / 4 + 0.2e-9 * g()], 3 * i);
+    }
+    const p = fitProfile(trace(xyz), { bootstrap: 100 });
+    let near = 0;
+    for (let j = 0; j < p.n; ++j) {
+      if (Math.abs(p.x[j]) > 15e-9) continue;
+      ++near;
+      expect(p.flags[j] & (FLAG_TORSION_UNDEFINED | FLAG_BIAS)).not.toBe(0);
+    }
+    expect(near).toBeGreaterThan(50);
+    expect(p.diagnostics.some((d) => /^torsion: at \d+ samples within [\d.]+ nm of a point where the curvature cannot be told from zero, the torsion is flagged biased \(16\): its smoothing bias there is not in its band$/.test(d))).toBe(true);
   });
 
   it("keeps every band around its estimate and starts s at 0, open and closed", () => {
