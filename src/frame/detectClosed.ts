@@ -3,8 +3,8 @@ import { selectInPlace } from "./robustStart.js";
 /**
  * Decides whether an ordered trace is a closed curve: the gap between its last and first points is
  * within a few sample steps plus the noise (noise from the difference-based pseudo-residuals of
- * Gasser, Sroka & Jennen-Steinmetz 1986, Biometrika 73:625), small against the whole length, and
- * no point away from the ends lies nearer to either end than the other end does, and the wire runs on
+ * Gasser, Sroka & Jennen-Steinmetz 1986, Biometrika 73:625) and small against the whole length; no
+ * point away from the ends lies nearer to either end than the other end does; and the wire runs on
  * through the gap (the closing step turns by under 75 degrees from the tangents at both ends).
  * Adds one line to `diagnostics` when it calls the trace closed. Cost O(n).
  * Units: any (the result depends only on ratios).

@@ -489,22 +489,19 @@ export interface Retrace {
  * The first place where the trace turns back along its own path (a traced skeleton walked out to a
  * dead end and back, or one file holding both directions of a wire), or null. A wire cannot
  * retrace itself: a fit would fold the path into a cusp and count the stretch twice.
- * Tolerance: within = 4 noise SDs + 0.6 median steps. Progress: the median chord over k0 points
- * divided by k0 (the net advance per point; noise comparable to the step inflates the step). At
- * each point i, with k points advancing 2 tolerances and 4 more points (k <= 200): the screen asks
- * that the path goes somewhere on both sides (|p_i - p_i-k| and |p_i+k - p_i| over half of k
- * progresses) and comes back (|p_i+k - p_i-k| under half the shorter of the two). Confirmation: of the points p_i+j
- * (j <= k) farther than 2 tolerances from p_i (at least 3 of them), 80% lie within the tolerance of
- * an earlier point p_m (m < i) that is itself at least half as far from p_i: on the way back, not
- * merely near the turn; the turn is then placed where p_i-k and p_i+k come closest. A real hairpin whose legs are farther apart than the tolerance is kept;
- * a trace so dense that 200 steps span under 2 tolerances is not judged. Cost O(n) for the
- * screen, O(k^2) per candidate.
+ * With the tolerance `within`, the net progress per point and the k points of `selfWindow`: the
+ * screen asks at each point i that the path goes somewhere on both sides (|p_i - p_i-k| and
+ * |p_i+k - p_i| over half of k progresses) and comes back (|p_i+k - p_i-k| under half the shorter
+ * of the two). Confirmation: of the points p_i+j (j <= k) farther than 2 tolerances from p_i (at
+ * least 3 of them), 80% lie within the tolerance of an earlier point p_m (m < i) that is itself at
+ * least half as far from p_i: on the way back, not merely near the turn; the turn is then placed
+ * where p_i-k and p_i+k come closest. A real hairpin whose legs are farther apart than the
+ * tolerance is kept. Cost O(n) for the screen, O(k^2) per candidate.
  */
 export function findRetrace(y: Float64Array, closed: boolean, sigma: number, step: number, win = selfWindow(y, closed, sigma, step)): Retrace | null {
-  const n = y.length / 3;
-  if (!(step > 0)) return null;
-  const dist = (a: number, b: number) => wrappedDistance(y, closed, a, b);
   if (!win) return null;
+  const n = y.length / 3;
+  const dist = (a: number, b: number) => wrappedDistance(y, closed, a, b);
   const { progress, within, k } = win;
   const first = closed ? 0 : k, last = closed ? n : n - k;
   for (let i = retraceScreen(y, closed, k, progress, first, last); i < last; i = retraceScreen(y, closed, k, progress, i + 1, last)) {
@@ -542,8 +539,8 @@ export interface SelfWindow { readonly progress: number; readonly within: number
 /**
  * The window of the self-overlap checks: tolerance within = 4 noise SDs + 0.6 median steps; net
  * progress per point (the median chord over k0 points over k0, k0 doubled from 4 until that chord
- * exceeds 8 noise SDs: noise comparable to the step inflates the step); k points advancing 2 tolerances and 4 more points. Null when the trace
- * cannot be judged: k above 200 (noise far above the progress per point), fewer than 2k + 1
+ * exceeds 8 noise SDs: noise comparable to the step inflates the step); k points advancing 2
+ * tolerances and 4 more points. Null when the trace cannot be judged: k above 200 (noise far above the progress per point), fewer than 2k + 1
  * points, or a tolerance above a quarter of the points' RMS distance from their centroid (wild
  * points: everything would be "near"; the fit's guards refuse such traces).
  */
@@ -595,7 +592,7 @@ export interface Overlap {
  * spread about that mean under 3 sqrt(2) sigma + 0.3 steps (runs together, does not cross), and
  * at least k points from the candidate on follow the other pass (`followPass`). Turns
  * of a coil closer than the noise can tell apart are taken for an overlap: refused, not misread.
- * The scan visits every k-th point and skips k more after a rejected candidate: O(n k) at worst.
+ * The scan visits every k-th point: O(n k) at worst (a candidate at every visited point).
  */
 export function findOverlap(y: Float64Array, closed: boolean, sigma: number, step: number, win = selfWindow(y, closed, sigma, step)): Overlap | null {
   const n = y.length / 3;
@@ -606,8 +603,7 @@ export function findOverlap(y: Float64Array, closed: boolean, sigma: number, ste
   const hash = spatialHash(y, within);
   // Confirmation needs the 2k + 1 points around a candidate on the repeated stretch: visiting every
   // k-th point finds any such stretch of 3k + 1 points or more.
-  const stride = k;
-  for (let i = closed ? 0 : k; i < (closed ? n : n - k); i += stride) {
+  for (let i = closed ? 0 : k; i < (closed ? n : n - k); i += k) {
     const m = hash.nearest(i, within, (j) => far(i, j));
     if (m < 0) continue;
     const c = overlapStats(y, closed, i, m, k, within);
@@ -617,7 +613,6 @@ export function findOverlap(y: Float64Array, closed: boolean, sigma: number, ste
       const f = followPass(y, closed, i, m, k, within);
       if (f.count >= k) return { at: i, other: m, count: f.count, otherEnd: f.last, within };
     }
-    i += k;
   }
   return null;
 }
