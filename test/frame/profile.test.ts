@@ -230,6 +230,40 @@ describe("fitProfile: bands, degenerate input, robustness", () => {
     expect(meanT).toBeGreaterThan(0);
   });
 
+  it("keeps a sparse helix near-interpolated when its coordinate error is given, which then sets bands that cover the truth", () => {
+    // Textbook alpha-helix geometry (Pauling, Corey & Branson 1951; values from memory), 30 atoms,
+    // 0.2 A coordinate error. Smoothed to the error given (the discrepancy level), the helix came out
+    // shrunk toward its axis: curvature +9 to +13% and torsion ~+35% (R > c, so a smaller radius at
+    // the same pitch has more curvature: kappa = R / (R^2 + c^2), textbook).
+    const Rh = 2.3e-10, c = 1.5e-10 / ((100 * Math.PI) / 180);
+    const k0 = Rh / (Rh * Rh + c * c), t0 = c / (Rh * Rh + c * c);
+    let covered = 0, count = 0;
+    for (const seed of [1, 2, 3]) {
+      const g = normalStream(30000 + seed), n = 30, xyz = new Float64Array(3 * n);
+      for (let i = 0; i < n; ++i) {
+        const t = (i * 100 * Math.PI) / 180;
+        xyz[3 * i] = Rh * Math.cos(t) + 0.2e-10 * g(); xyz[3 * i + 1] = Rh * Math.sin(t) + 0.2e-10 * g(); xyz[3 * i + 2] = c * t + 0.2e-10 * g();
+      }
+      const tr = trace(xyz, { source: { file: "helix.xyz", unit: "A" } });
+      const plain = fitProfile(tr, { bootstrap: 0 });
+      const given = fitProfile(tr, { bootstrap: 100, seed, coordinateError: 0.2e-10 });
+      expect(given.kappa).toEqual(plain.kappa);
+      expect(given.sigma).toBe(0.2e-10);
+      expect(given.diagnostics.some((d) => d.includes("near-interpolating the points (the coordinate error given sets the bands)"))).toBe(true);
+      const js = interior(given);
+      const meanK = js.reduce((a, j) => a + given.kappa[j], 0) / js.length;
+      const tv = js.filter((j) => !Number.isNaN(given.tau[j]));
+      const meanT = tv.reduce((a, j) => a + given.tau[j], 0) / tv.length;
+      expect(Math.abs(meanK / k0 - 1)).toBeLessThan(0.05); // measured +1 to +3% (was +9 to +13%)
+      expect(Math.abs(meanT / t0 - 1)).toBeLessThan(0.25); // measured +14 to +16%: noise inflates it (was ~+35%)
+      for (const j of js) {
+        ++count;
+        if (given.kappaLo[j] <= k0 && k0 <= given.kappaHi[j]) ++covered;
+      }
+    }
+    expect(covered / count).toBeGreaterThan(0.85); // measured 0.98 on seeds 1-6 of bench/trust.ts' helices
+  });
+
   it("flags a curvature peak narrower than the resolution as bias-dominated, and a smooth helix not", () => {
     // Planar wire y = 0.054 exp(-(x/0.3)^2): curvature peak 2 * 0.054 / 0.3^2 = 1.2 at x = 0 (second
     // derivative of the Gaussian; common practice), narrower than the fit's resolution at 1% noise.
