@@ -13,6 +13,7 @@ import { hypot3 } from "./hypot3.js";
 import { medianOf } from "./robustStart.js";
 import { lambdaForWavelength, makeSmoother, selectSmoothing, wavelengthForLambda, type Selection, type Smoother } from "./smoother.js";
 import type { Start } from "./profile.js";
+import { continuedFit, CONTINUED_MAX_POINTS } from "./endContinuation.js";
 
 const MAX_SEGMENTS = 5_000;
 const KNOTS_PER_WAVELENGTH = 12;
@@ -227,6 +228,14 @@ export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnos
     basis = makeBasis(0, span, nseg, closed);
   }
   if (!sel || !sm) throw new Error("unreachable: no pass ran");
+  if (sparse && !closed && n <= CONTINUED_MAX_POINTS) {
+    // So short a trace that the spline's end effects meet in the middle: each end continued by a helix.
+    const continued = continuedFit(basis, u, y, w, sel.fit.lambda);
+    if (continued) {
+      sel = { ...sel, fit: { ...sel.fit, coef: continued } };
+      diagnostics.push(`sparse trace of ${n} points: each end continued by the least-squares helix through its last points before near-interpolating (else the spline's end effect reaches the middle)`);
+    }
+  }
   const coef = sel.fit.coef;
   const table = arcTable(basis, coef);
   if (sparse) {
