@@ -5,11 +5,14 @@
  * curvature varies slowly (a helix, a ring) the rule smooths more than any single global level may;
  * where it changes fast (a bump, a knot's tight turns, a bend) it smooths less.
  *
- * Status: opt-in (`ProfileOptions.adaptive`). Measured with bench/families.ts (N = 1000, 0.2% and 1%
- * noise): it beats the best single global level on the bump and the sharp bend (0.82-0.99x), but on
- * slowly varying coils (helix, conical helix) it is 2-8x worse than the discrepancy level for every
- * window, step (1/4 to 1 decade) and threshold (c = 1 to 2) tried, so the discrepancy level stays
- * the default.
+ * Status: opt-in (`ProfileOptions.adaptive`), experimental. Against the discrepancy level it beat
+ * the best single global level on the bump and the sharp bend (0.82-0.99x) and was 2-8x worse on
+ * coils. Against the default since the curvature risk rule (`curvatureLevel`, its pilot here), it is
+ * worse on every family (2026-12-03, `ADAPTIVE=1 npx tsx bench/families.ts 200,1000 0.002,0.01 1-3`
+ * and `4-6`: error over the default's, geometric mean per family: sharp bend 1.00, wavy coil 1.18,
+ * bump 1.31, Viviani 1.36, trefoil 1.39, helix 1.61, conical helix 1.86, ring 3.79; curvature within
+ * 1.2x of the best single level in 65/192 cases against 176/192): the local rule decides on windows
+ * of a resolution length, too few degrees of freedom, and stops early on noise.
  */
 import { drawCoefPerturbation, kappaTauAt, noiseProbes, type GridBasis } from "./bootstrap.js";
 import type { Skyline } from "./skyline.js";

@@ -40,8 +40,8 @@ export interface ProfileOptions {
    */
   readonly curvatureRule?: "risk" | "discrepancy";
   /**
-   * Spatially adaptive curvature smoothing (default false: the discrepancy level everywhere). Opt-in
-   * and experimental: better on localised features, worse on slowly varying wires (see adaptiveLevel.ts).
+   * Spatially adaptive curvature smoothing (default false: one curvature level along the wire).
+   * Experimental and worse than the default on every family measured (see adaptiveLevel.ts).
    */
   readonly adaptive?: boolean;
 }
