@@ -285,7 +285,7 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
   const samples = sampleAt(trace, start, fit, set);
   const levels = chooseLevels(trace, start, fit, samples, set, diagnostics);
   if (fit.sel.sigmaFrom === "unknown" && set.replicates > 0) {
-    diagnostics.push(`noise not estimable: a sparse trace of ${fit.u.length} points leaves too few residual degrees of freedom; no bands (give the coordinate error to get them)`);
+    diagnostics.push(`noise not estimable: on a sparse trace (${fit.u.length} points, a few per turn) the shape cannot be told from the noise; no bands (give the coordinate error to get them)`);
     return fitBands(trace, start, fit, levels, samples, { ...set, replicates: 0 }, diagnostics);
   }
   return fitBands(trace, start, fit, levels, samples, set, diagnostics);

@@ -54,6 +54,20 @@ describe("which traces are near-interpolated", () => {
     expect(covered / count).toBeGreaterThan(0.75); // measured 0.88 over 10 seeds
   });
 
+  it("does not estimate the noise of a long sparse trace, which had bands too narrow by 2x", () => {
+    // 150-atom alpha helix at 0.2 A: the old probe estimate gave ~0.09 A, the curvature bands held
+    // the truth at ~0.7 of the samples, unflagged.
+    const dphi = (100 * Math.PI) / 180, c = 1.5 / dphi;
+    const p = fitProfile(trace(helixPoints(150, 2.3, c, dphi, 0.2, 7)), { bootstrap: 50 });
+    expect(isSparse(p)).toBe(true);
+    expect(p.sigma).toBeNaN();
+    expect(p.diagnostics.some((d) => d.startsWith("noise not estimable: on a sparse trace (150 points"))).toBe(true);
+    expect(interior(p).every((j) => Number.isNaN(p.kappaLo[j]))).toBe(true);
+    const given = fitProfile(trace(helixPoints(150, 2.3, c, dphi, 0.2, 7)), { bootstrap: 50, coordinateError: 0.2 });
+    expect(given.sigma).toBe(0.2);
+    expect(interior(given).every((j) => Number.isFinite(given.kappaLo[j]))).toBe(true);
+  });
+
   it("still near-interpolates an alpha helix (3.6 points per turn), short or long", () => {
     const dphi = (100 * Math.PI) / 180, c = 1.5 / dphi;
     for (const n of [10, 16, 40]) expect(isSparse(fitProfile(trace(helixPoints(n, 2.3, c, dphi, 0.1, n)), { bootstrap: 0 }))).toBe(true);
