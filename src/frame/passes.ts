@@ -30,6 +30,13 @@ export const SPARSE_TURN = 0.35;
  * under-fits a short trace (a 10-atom alpha helix measured 0.49-1.46 rad).
  */
 export const SPARSE_CHORD_TURN = 0.95;
+/**
+ * Dihedral concentration (`dihedralConcentration`) above which a trace whose chords turn by more
+ * than SPARSE_CHORD_TURN is sparse even when the first fit does not turn: helices traced at 3-4
+ * points per turn give 0.988-1.000 at 2-10% noise; noisy dense traces whose chords turn by more
+ * than 0.95 rad (noise above the step) gave 0.01-0.49 (six families, 200-2000 points).
+ */
+export const SPARSE_DIHEDRAL_CONCENTRATION = 0.8;
 /** Fewest residual degrees of freedom (over the normal directions) a noise estimate may rest on. */
 export const MIN_NOISE_DOF = 20;
 
@@ -214,15 +221,19 @@ export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnos
     checkPass({ length: span, u, resid, sigma: sel.sigmaFrom === "unknown" ? 0 : sel.sigma, closed, knotInterval: span / basis.nseg }, start.referenceLength, file, name, say);
     const wl = wavelengthForLambda(sel.fit.lambda, sm.normal.wSum / (basis.nseg * basis.h), basis.h);
     if (checkSparse) {
-      const turn = medianOf(turns);
-      if (turn > SPARSE_TURN && chordTurn(y, closed) > SPARSE_CHORD_TURN) {
+      const turn = medianOf(turns), chords = chordTurn(y, closed);
+      // A few points per turn: the chords turn by large angles, and either the first fit follows
+      // them or it straightened them while every quadruple of points twists the same way (a helix
+      // of 3 points per turn looks like noise about a straight axis to that fit: a 60-atom
+      // polyproline helix came out straight, curvature ~0 for 0.34/A, with 1.2 A of "noise").
+      if (chords > SPARSE_CHORD_TURN && (turn > SPARSE_TURN || dihedralConcentration(y) > SPARSE_DIHEDRAL_CONCENTRATION)) {
         sparse = true;
         nseg = Math.min(MAX_SEGMENTS, 4 * n);
         // The plain chord length of the points: the running median of the start parameter pulls a
         // few points per turn toward the axis (a 60-atom helix read back with +-30% curvature waves).
         span = chordLength(y, closed, u);
         w.fill(1);
-        diagnostics.push(`sparse trace: the curve turns by ${turn.toFixed(2)} rad between samples (median); fitted with ${nseg} knot intervals, near-interpolating the points (${sigmaKnown === undefined ? "give the coordinate error to get bands" : "the coordinate error given sets the bands"})`);
+        diagnostics.push(`sparse trace: the chords between points turn by ${chords.toFixed(2)} rad (median); fitted with ${nseg} knot intervals, near-interpolating the points (${sigmaKnown === undefined ? "give the coordinate error to get bands" : "the coordinate error given sets the bands"})`);
       }
     }
     if (set.lambda === undefined && set.segments === undefined && !sparse) {
@@ -311,4 +322,29 @@ export function chordTurn(y: Float64Array, closed: boolean): number {
     a[k] = Math.atan2(hypot3(cx, cy, cz), ux * vx + uy * vy + uz * vz);
   }
   return medianOf(a);
+}
+
+/**
+ * Concentration of the dihedral angles of consecutive point quadruples (interleaved xyz): the length
+ * of the mean unit vector (cos, sin) of the angles, 1 when every dihedral is the same (a helix traced
+ * point by point, noisy or not), well below it when they are random (noise larger than the step:
+ * ~0.26 for independent Gaussian points, whose dihedral cosine has a nonzero mean); 0 for fewer
+ * than 4 points or when no dihedral is defined.
+ */
+export function dihedralConcentration(y: Float64Array): number {
+  const n = y.length / 3;
+  let sc = 0, ss = 0, cnt = 0;
+  for (let i = 0; i + 3 < n; ++i) {
+    const b1 = [y[3 * i + 3] - y[3 * i], y[3 * i + 4] - y[3 * i + 1], y[3 * i + 5] - y[3 * i + 2]];
+    const b2 = [y[3 * i + 6] - y[3 * i + 3], y[3 * i + 7] - y[3 * i + 4], y[3 * i + 8] - y[3 * i + 5]];
+    const b3 = [y[3 * i + 9] - y[3 * i + 6], y[3 * i + 10] - y[3 * i + 7], y[3 * i + 11] - y[3 * i + 8]];
+    const n1 = [b1[1] * b2[2] - b1[2] * b2[1], b1[2] * b2[0] - b1[0] * b2[2], b1[0] * b2[1] - b1[1] * b2[0]];
+    const n2 = [b2[1] * b3[2] - b2[2] * b3[1], b2[2] * b3[0] - b2[0] * b3[2], b2[0] * b3[1] - b2[1] * b3[0]];
+    const x = n1[0] * n2[0] + n1[1] * n2[1] + n1[2] * n2[2];
+    const yy = hypot3(b2[0], b2[1], b2[2]) * (b1[0] * n2[0] + b1[1] * n2[1] + b1[2] * n2[2]);
+    const r = Math.hypot(x, yy);
+    if (!(r > 0)) continue;
+    sc += x / r; ss += yy / r; ++cnt;
+  }
+  return cnt > 0 ? Math.hypot(sc, ss) / cnt : 0;
 }

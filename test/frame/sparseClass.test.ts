@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { chordTurn } from "../../src/frame/passes.js";
+import { chordTurn, dihedralConcentration } from "../../src/frame/passes.js";
 import { fitProfile } from "../../src/frame/profile.js";
 import { FLAG_END, type Profile, type Trace } from "../../src/types.js";
 import { normalStream } from "../support/rng.js";
@@ -31,7 +31,31 @@ describe("chordTurn", () => {
   });
 });
 
+describe("dihedralConcentration", () => {
+  it("is 1 on a helix (every dihedral the same: a screw motion maps each quadruple to the next) and well below it on noise", () => {
+    const dphi = (100 * Math.PI) / 180;
+    expect(dihedralConcentration(helixPoints(20, 2.3, 1.5 / dphi, dphi))).toBeCloseTo(1, 12);
+    const g = normalStream(11), noise = Float64Array.from({ length: 600 }, () => g());
+    expect(dihedralConcentration(noise)).toBeLessThan(0.5); // measured 0.26 (random dihedrals are not uniform: their cosine has a mean)
+    expect(dihedralConcentration(helixPoints(3, 1, 0.1, 1))).toBe(0);
+  });
+});
+
 describe("which traces are near-interpolated", () => {
+  it("near-interpolates a 60-atom polyproline II helix (3 points per turn), which had come out straight", () => {
+    // Left-handed polyproline II: radius 1.6 A, rise 3.1 A, -120 degrees per residue (from memory);
+    // the first fit took the helix for noise about a straight axis (curvature ~0 for 0.34/A).
+    const dphi = (-120 * Math.PI) / 180, c = 3.1 / dphi, R = 1.6;
+    const k0 = R / (R * R + c * c), t0 = c / (R * R + c * c);
+    const p = fitProfile(trace(helixPoints(60, R, c, dphi, 0.03, 5)), { bootstrap: 0 });
+    expect(isSparse(p)).toBe(true);
+    const js = interior(p);
+    const meanK = js.reduce((s, j) => s + p.kappa[j], 0) / js.length, meanT = js.reduce((s, j) => s + p.tau[j], 0) / js.length;
+    expect(Math.abs(meanK / k0 - 1)).toBeLessThan(0.05); // measured +2.2%
+    expect(Math.abs(meanT / t0 - 1)).toBeLessThan(0.15); // measured -2.9%
+    expect(meanT).toBeLessThan(0);
+  });
+
   it("smooths a helix traced at 10 points per turn with the estimated noise, not near-interpolating it", () => {
     // DNA-like phosphate helix (radius 8.9 A, rise 3.38 A, 36 degrees per point; values from memory),
     // 30 points, 0.3 A noise. Helix curvature R / (R^2 + c^2), torsion c / (R^2 + c^2) (textbook).
