@@ -37,6 +37,8 @@ export const SPARSE_CHORD_TURN = 0.95;
  * than 0.95 rad (noise above the step) gave 0.01-0.49 (six families, 200-2000 points).
  */
 export const SPARSE_DIHEDRAL_CONCENTRATION = 0.8;
+/** Most points a sparse trace may have (four knot intervals per point). */
+export const MAX_SPARSE_POINTS = 2000;
 /** Fewest residual degrees of freedom (over the normal directions) a noise estimate may rest on. */
 export const MIN_NOISE_DOF = 20;
 
@@ -195,7 +197,8 @@ export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnos
     }
     // Foot-point projection: Newton on |r(u) - p|^2, steps limited to one knot interval.
     const coef = sel.fit.coef;
-    const checkSparse = pass === 0 && !sparse && n <= 2000 && set.segments === undefined;
+    const checkSparse = pass === 0 && !sparse && n <= MAX_SPARSE_POINTS && set.segments === undefined;
+    if (pass === 0 && n > MAX_SPARSE_POINTS && set.segments === undefined) refuseLongSparse(y, closed, n, file);
     const turns = new Float64Array(checkSparse ? n : 0);
     projectFootPoints(basis, coef, y, u, resid, checkSparse ? turns : null, start.medianStep, closed);
     // Robust weights from the residual norms (Rayleigh median in 3D: 1.1774 sigma; half-normal in
@@ -347,4 +350,17 @@ export function dihedralConcentration(y: Float64Array): number {
     sc += x / r; ss += yy / r; ++cnt;
   }
   return cnt > 0 ? Math.hypot(sc, ss) / cnt : 0;
+}
+
+/**
+ * Refuses a trace of more than MAX_SPARSE_POINTS points that is sparse by its chords and dihedrals
+ * (a few points per turn, every quadruple twisting the same way): the smoothing path takes such a
+ * helix for noise about a straight axis (3000 atoms of a polyproline helix: straight, 1.1 A of
+ * "noise", exit 0), and the sparse path stops at MAX_SPARSE_POINTS.
+ */
+function refuseLongSparse(y: Float64Array, closed: boolean, n: number, file: string): void {
+  const chords = chordTurn(y, closed);
+  if (chords > SPARSE_CHORD_TURN && dihedralConcentration(y) > SPARSE_DIHEDRAL_CONCENTRATION) {
+    throw new InputError(file, null, "points", `a sparse trace (the chords between points turn by ${chords.toFixed(2)} rad at the median, a few points per turn) of ${n} points: sparse traces are fitted up to ${MAX_SPARSE_POINTS} points; split the file into pieces`);
+  }
 }

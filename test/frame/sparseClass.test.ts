@@ -92,6 +92,16 @@ describe("which traces are near-interpolated", () => {
     expect(interior(given).every((j) => Number.isFinite(given.kappaLo[j]))).toBe(true);
   });
 
+  it("refuses a sparse trace of more than 2000 points (it came out straight), not a dense noisy one", () => {
+    const dphi = (-120 * Math.PI) / 180;
+    expect(() => fitProfile(trace(helixPoints(2500, 1.6, 3.1 / dphi, dphi, 0.03, 2)), { bootstrap: 0 })).toThrow(
+      "h.xyz: points: a sparse trace (the chords between points turn by 1.23 rad at the median, a few points per turn) of 2500 points: sparse traces are fitted up to 2000 points; split the file into pieces");
+    // 2500 points on 5 turns of a helix, noise about the step (0.6 on 0.65): chords turn by 1.88 rad
+    // at the median, but the dihedrals do not agree (concentration 0.14).
+    const dense = fitProfile(trace(helixPoints(2500, 50, 10, (5 * 2 * Math.PI) / 2500, 0.6, 3)), { bootstrap: 0 });
+    expect(isSparse(dense)).toBe(false);
+  });
+
   it("still near-interpolates an alpha helix (3.6 points per turn), short or long", () => {
     const dphi = (100 * Math.PI) / 180, c = 1.5 / dphi;
     for (const n of [10, 16, 40]) expect(isSparse(fitProfile(trace(helixPoints(n, 2.3, c, dphi, 0.1, n)), { bootstrap: 0 }))).toBe(true);
