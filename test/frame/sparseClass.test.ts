@@ -1,8 +1,9 @@
 import { describe, expect, it } from "vitest";
-import { chordTurn, dihedralConcentration } from "../../src/frame/passes.js";
+import { chordTurn, dihedralConcentration, sparseHelicalWindow } from "../../src/frame/passes.js";
 import { fitProfile } from "../../src/frame/profile.js";
 import { FLAG_END, type Profile, type Trace } from "../../src/types.js";
 import { normalStream } from "../support/rng.js";
+import { helixCurve, sampleCurveUneven } from "../support/curves.js";
 
 const trace = (xyz: Float64Array): Trace => ({ xyz, dims: 3, source: { file: "h.xyz", unit: "A" }, diagnostics: [] });
 const interior = (p: Profile) => Array.from({ length: p.n }, (_, j) => j).filter((j) => !(p.flags[j] & FLAG_END));
@@ -105,6 +106,32 @@ describe("which traces are near-interpolated", () => {
   it("still near-interpolates an alpha helix (3.6 points per turn), short or long", () => {
     const dphi = (100 * Math.PI) / 180, c = 1.5 / dphi;
     for (const n of [10, 16, 40]) expect(isSparse(fitProfile(trace(helixPoints(n, 2.3, c, dphi, 0.1, n)), { bootstrap: 0 }))).toBe(true);
+  });
+});
+
+describe("traces sparse in part", () => {
+  it("near-interpolates a straight lead followed by a 20-atom alpha helix, which came out nearly straight", () => {
+    // Alpha helix (from memory: radius 2.3 A, rise 1.5 A, 100 degrees per residue) preceded by 10
+    // points 3.8 A apart along its starting tangent; 0.05 A noise. Helix curvature R / (R^2 + c^2).
+    const dphi = (100 * Math.PI) / 180, c = 1.5 / dphi, R = 2.3, k0 = R / (R * R + c * c);
+    const g = normalStream(4), pts: number[] = [];
+    const T = [0, R * dphi, 1.5], tn = Math.hypot(...T);
+    for (let i = 10; i >= 1; --i) pts.push(R - (i * 3.8 * T[0]) / tn + 0.05 * g(), -(i * 3.8 * T[1]) / tn + 0.05 * g(), -(i * 3.8 * T[2]) / tn + 0.05 * g());
+    for (let i = 0; i < 20; ++i) { const t = i * dphi; pts.push(R * Math.cos(t) + 0.05 * g(), R * Math.sin(t) + 0.05 * g(), c * t + 0.05 * g()); }
+    const xyz = Float64Array.from(pts);
+    expect(sparseHelicalWindow(xyz)).toBeGreaterThanOrEqual(0);
+    const p = fitProfile(trace(xyz), { bootstrap: 0 });
+    expect(isSparse(p)).toBe(true);
+    // The helix's own samples (rows 14-25): measured +0.2%; the smoothing path gave 0.02-0.06/A.
+    const helix = interior(p).filter((j) => p.inputRow![j] >= 14 && p.inputRow![j] <= 25);
+    const meanK = helix.reduce((s, j) => s + p.kappa[j], 0) / helix.length;
+    expect(Math.abs(meanK / k0 - 1)).toBeLessThan(0.05);
+  });
+
+  it("finds no sparse window on noisy dense traces (noise up to the step)", () => {
+    for (const [N, noise, seed] of [[1000, 0.01, 19], [2000, 0.01, 3], [500, 0.03, 7], [200, 0.1, 2]] as const) {
+      expect(sparseHelicalWindow(sampleCurveUneven(helixCurve(1, 0.4, 4), N, noise, seed).xyz)).toBe(-1);
+    }
   });
 });
 
