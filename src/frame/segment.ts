@@ -381,6 +381,9 @@ function noiseSd(x: Float64Array, use: Uint8Array, corr: number, ds: number, kv:
   const lag = Math.max(1, Math.round(corr / Math.max(ds, 1e-300)));
   let sd = seriesNoise(x, use, lag);
   if (!Number.isFinite(sd)) sd = seriesNoise(x, use, 1);
+  // Too few non-end samples (a short trace): every finite sample, end samples included (their
+  // bias only raises the scale). The floor alone cut ideal 14-atom sparse helices into 5-7 stretches.
+  if (!Number.isFinite(sd)) sd = seriesNoise(x, Uint8Array.from(x, (v) => (Number.isFinite(v) ? 1 : 0)), 1);
   const medK = quantile(Array.from(kv, Math.abs), 0.5) ?? 0;
   const floor = Math.max(1e-3 * medK, 1e-300);
   return Number.isFinite(sd) ? Math.max(sd, floor) : floor;

@@ -136,6 +136,19 @@ describe("traces sparse in part", () => {
 });
 
 describe("stretches of a sparse helix", () => {
+  it("keeps a 14-atom helix in one stretch (too few non-end samples for a noise scale: all samples give it)", async () => {
+    const { samplePoints, segmentWire } = await import("../../src/frame/segment.js");
+    // 3-10 helix (radius 1.9 A, rise 2.0 A, 120 degrees per residue; from memory): with the noise
+    // scale at its floor these draws were cut into 5-7 stretches.
+    const dphi = (120 * Math.PI) / 180, c = 2.0 / dphi;
+    for (const seed of [1, 2, 3]) {
+      const tr = trace(helixPoints(14, 1.9, c, dphi, 0.04, seed * 31 + 14));
+      const p = fitProfile(tr, { bootstrap: 0, keepSamples: true });
+      const points = samplePoints(tr, p) ?? undefined;
+      expect(segmentWire(p, points ? { points } : {}).segments).toHaveLength(1);
+    }
+  });
+
   it("keeps an ideal 30-atom alpha helix in one helix stretch (its end samples no longer open stretches)", async () => {
     const { samplePoints, segmentWire } = await import("../../src/frame/segment.js");
     // Alpha helix (Pauling, Corey & Branson 1951; from memory), 0.046 A noise: with the end samples at
