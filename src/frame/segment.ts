@@ -276,11 +276,13 @@ export function segmentWire(profile: Profile, options: SegmentOptions = {}): { s
     // to the stretch's |Darboux| = sqrt(kappa^2 + tau^2). A statistically significant but small
     // variation (a few %) still describes a helix or an arc to the model.
     // The samples within one resolution length of an open end (flag 4) carry the end's extra bias:
-    // they do not count in the variation unless they are most of the stretch.
+    // they do not count in the variation unless fewer than 5 others are left (and they are most of
+    // the stretch): counted whenever they were most of it, they made a clean 20-point DNA-like helix
+    // (8 non-end samples) "irregular" in 4 draws of 6.
     let j0 = i0, j1 = i1;
     while (j0 < j1 && flags[j0] & FLAG_END) ++j0;
     while (j1 > j0 && flags[j1 - 1] & FLAG_END) --j1;
-    if (j1 - j0 < 0.5 * (i1 - i0)) { j0 = i0; j1 = i1; }
+    if (j1 - j0 < Math.min(5, 0.5 * (i1 - i0))) { j0 = i0; j1 = i1; }
     const rmsK = Math.sqrt(spread(kv, j0, j1)), rmsT = Math.sqrt(spreadWhere(tv, wt, j0, j1));
     const darboux = Math.hypot(km, Number.isFinite(tm) ? tm : 0);
     const relVar = darboux > 0 ? Math.hypot(rmsK, rmsT) / darboux : Infinity;

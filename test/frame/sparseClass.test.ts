@@ -149,6 +149,18 @@ describe("stretches of a sparse helix", () => {
     }
   });
 
+  it("labels a clean 20-point helix at 10 points per turn a helix, not irregular (its end samples left out of the variation)", async () => {
+    const { samplePoints, segmentWire } = await import("../../src/frame/segment.js");
+    // DNA-like phosphate helix (radius 8.9 A, rise 3.38 A, 36 degrees per point; from memory), 0.18 A noise.
+    const dphi = (36 * Math.PI) / 180, c = 3.38 / dphi;
+    for (const seed of [2 * 31 + 20, 3 * 31 + 20, 4 * 31 + 20]) {
+      const tr = trace(helixPoints(20, 8.9, c, dphi, 0.178, seed));
+      const p = fitProfile(tr, { bootstrap: 0, keepSamples: true });
+      const points = samplePoints(tr, p) ?? undefined;
+      expect(segmentWire(p, points ? { points } : {}).segments.map((g) => g.kind)).toEqual(["helix"]);
+    }
+  });
+
   it("keeps an ideal 30-atom alpha helix in one helix stretch (its end samples no longer open stretches)", async () => {
     const { samplePoints, segmentWire } = await import("../../src/frame/segment.js");
     // Alpha helix (Pauling, Corey & Branson 1951; from memory), 0.046 A noise: with the end samples at
