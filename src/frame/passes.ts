@@ -37,6 +37,12 @@ export const SPARSE_CHORD_TURN = 0.95;
  * than 0.95 rad (noise above the step) gave 0.01-0.49 (six families, 200-2000 points).
  */
 export const SPARSE_DIHEDRAL_CONCENTRATION = 0.8;
+/**
+ * Chord turn (rad) at and above which points that twist alike are not a helix but a trace that runs
+ * back and forth (two wires interleaved point by point: 3.14 rad, dihedral concentration 0.92);
+ * helices of 2.5 or more points per turn stay below (a 3-10 helix, 3 per turn: 1.66).
+ */
+export const MAX_HELICAL_CHORD_TURN = 2.5;
 /** Most points a sparse trace may have (four knot intervals per point). */
 export const MAX_SPARSE_POINTS = 2000;
 /** Fewest residual degrees of freedom (over the normal directions) a noise estimate may rest on. */
@@ -221,8 +227,17 @@ export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnos
       shiftClamp(u, a0, span);
       u[0] = 0; u[n - 1] = span;
     }
-    checkPass({ length: span, u, resid, sigma: sel.sigmaFrom === "unknown" ? 0 : sel.sigma, closed, knotInterval: span / basis.nseg }, start.referenceLength, file, name, say);
     const wl = wavelengthForLambda(sel.fit.lambda, sm.normal.wSum / (basis.nseg * basis.h), basis.h);
+    // The first fit of a sparse helix may be straight (a 60-atom pi helix: length 0.29x the
+    // polyline), which the guard takes for a divergence: then the trace is sparse if its points
+    // twist like a helix (not on the first fit's turn: wild or interleaved points keep the guard's word).
+    let guard: unknown = null;
+    try {
+      checkPass({ length: span, u, resid, sigma: sel.sigmaFrom === "unknown" ? 0 : sel.sigma, closed, knotInterval: span / basis.nseg }, start.referenceLength, file, name, say);
+    } catch (err) {
+      if (!checkSparse) throw err;
+      guard = err;
+    }
     if (checkSparse) {
       const turn = medianOf(turns), chords = chordTurn(y, closed);
       // A few points per turn: the chords turn by large angles, and either the first fit follows
@@ -230,7 +245,9 @@ export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnos
       // of 3 points per turn looks like noise about a straight axis to that fit: a 60-atom
       // polyproline helix came out straight, curvature ~0 for 0.34/A, with 1.2 A of "noise"); or
       // some 16 consecutive points are such a helix on their own (a trace sparse only in part).
-      if ((chords > SPARSE_CHORD_TURN && (turn > SPARSE_TURN || dihedralConcentration(y) > SPARSE_DIHEDRAL_CONCENTRATION)) || sparseHelicalWindow(y) >= 0) {
+      const helical = (chords > SPARSE_CHORD_TURN && chords < MAX_HELICAL_CHORD_TURN && dihedralConcentration(y) > SPARSE_DIHEDRAL_CONCENTRATION) || sparseHelicalWindow(y) >= 0;
+      if (guard !== null && !helical) throw guard;
+      if (helical || (chords > SPARSE_CHORD_TURN && turn > SPARSE_TURN)) {
         sparse = true;
         nseg = Math.min(MAX_SEGMENTS, 4 * n);
         // The plain chord length of the points: the running median of the start parameter pulls a
@@ -361,7 +378,7 @@ export function dihedralConcentration(y: Float64Array): number {
  */
 function refuseLongSparse(y: Float64Array, closed: boolean, n: number, file: string): void {
   const chords = chordTurn(y, closed);
-  if (chords > SPARSE_CHORD_TURN && dihedralConcentration(y) > SPARSE_DIHEDRAL_CONCENTRATION) {
+  if (chords > SPARSE_CHORD_TURN && chords < MAX_HELICAL_CHORD_TURN && dihedralConcentration(y) > SPARSE_DIHEDRAL_CONCENTRATION) {
     throw new InputError(file, null, "points", `a sparse trace (the chords between points turn by ${chords.toFixed(2)} rad at the median, a few points per turn) of ${n} points: sparse traces are fitted up to ${MAX_SPARSE_POINTS} points; split the file into pieces`);
   }
 }
@@ -384,7 +401,8 @@ export function sparseHelicalWindow(y: Float64Array): number {
   const n = y.length / 3;
   for (let i = 0; i + HELICAL_WINDOW <= n; ++i) {
     const w = y.subarray(3 * i, 3 * (i + HELICAL_WINDOW));
-    if (chordTurn(w, false) > SPARSE_CHORD_TURN && dihedralConcentration(w) > 0.97 && turnSpread(w) < 0.3) return i;
+    const t = chordTurn(w, false);
+    if (t > SPARSE_CHORD_TURN && t < MAX_HELICAL_CHORD_TURN && dihedralConcentration(w) > 0.97 && turnSpread(w) < 0.3) return i;
   }
   return -1;
 }

@@ -103,6 +103,18 @@ describe("which traces are near-interpolated", () => {
     expect(isSparse(dense)).toBe(false);
   });
 
+  it("near-interpolates a 60-atom pi helix whose first fit the divergence guard refused", () => {
+    // pi helix: radius 2.8 A, rise 1.15 A, 87 degrees per residue (from memory); 0.14 A noise. Its
+    // first (smoothing) fit came out straight, 0.29x the polyline's length, and was refused as diverged.
+    const dphi = (87 * Math.PI) / 180, c = 1.15 / dphi, R = 2.8;
+    const g = normalStream(3 * 77 + 60), xyz = new Float64Array(180);
+    for (let i = 0; i < 60; ++i) { const t = i * dphi; xyz.set([R * Math.cos(t) + 0.14 * g(), R * Math.sin(t) + 0.14 * g(), c * t + 0.14 * g()], 3 * i); }
+    const p = fitProfile(trace(xyz), { bootstrap: 0 });
+    expect(isSparse(p)).toBe(true);
+    const js = interior(p), k0 = R / (R * R + c * c);
+    expect(Math.abs(js.reduce((s, j) => s + p.kappa[j], 0) / js.length / k0 - 1)).toBeLessThan(0.05);
+  });
+
   it("still near-interpolates an alpha helix (3.6 points per turn), short or long", () => {
     const dphi = (100 * Math.PI) / 180, c = 1.5 / dphi;
     for (const n of [10, 16, 40]) expect(isSparse(fitProfile(trace(helixPoints(n, 2.3, c, dphi, 0.1, n)), { bootstrap: 0 }))).toBe(true);
