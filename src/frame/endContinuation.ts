@@ -14,7 +14,7 @@
  */
 import { makeBasis, type SplineBasis } from "./bspline.js";
 import { hypot3 } from "./hypot3.js";
-import { fitHelix } from "./primitives.js";
+import { fitHelix, scatter } from "./primitives.js";
 import { makeSmoother, solveAt } from "./smoother.js";
 import { symEigen3 } from "./symEigen3.js";
 
@@ -31,15 +31,10 @@ const MISFIT_PER_STEP = 0.15;
 function exactPlane(pts: Float64Array): { normal: number[]; point: number[] } | null {
   const m = pts.length / 3, mean = [0, 0, 0];
   for (let k = 0; k < m; ++k) for (let j = 0; j < 3; ++j) mean[j] += pts[3 * k + j] / m;
-  const cov = new Array<number>(9).fill(0);
-  for (let k = 0; k < m; ++k) {
-    const d = [pts[3 * k] - mean[0], pts[3 * k + 1] - mean[1], pts[3 * k + 2] - mean[2]];
-    for (let i = 0; i < 3; ++i) for (let j = 0; j < 3; ++j) cov[3 * i + j] += d[i] * d[j] / m;
-  }
-  const e = symEigen3(cov), normal = [e.vectors[0], e.vectors[1], e.vectors[2]];
+  const e = symEigen3(scatter(pts, m, true)), normal = [e.vectors[0], e.vectors[1], e.vectors[2]];
   let off = 0;
   for (let k = 0; k < m; ++k) off = Math.max(off, Math.abs((pts[3 * k] - mean[0]) * normal[0] + (pts[3 * k + 1] - mean[1]) * normal[1] + (pts[3 * k + 2] - mean[2]) * normal[2]));
-  return off <= 1e-12 * Math.sqrt(e.values[2]) ? { normal, point: mean } : null;
+  return off <= 1e-12 * Math.sqrt(e.values[2] / m) ? { normal, point: mean } : null;
 }
 
 /**

@@ -239,13 +239,13 @@ export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnos
       guard = err;
     }
     if (checkSparse) {
-      const turn = medianOf(turns), chords = chordTurn(y, closed);
+      const shape = chordShape(y, closed), turn = medianOf(turns), chords = shape.turn.length > 0 ? medianOf(shape.turn) : 0;
       // A few points per turn: the chords turn by large angles, and either the first fit follows
       // them or it straightened them while every quadruple of points twists the same way (a helix
       // of 3 points per turn looks like noise about a straight axis to that fit: a 60-atom
       // polyproline helix came out straight, curvature ~0 for 0.34/A, with 1.2 A of "noise"); or
       // some 16 consecutive points are such a helix on their own (a trace sparse only in part).
-      const helical = (chords > SPARSE_CHORD_TURN && chords < MAX_HELICAL_CHORD_TURN && dihedralConcentration(y) > SPARSE_DIHEDRAL_CONCENTRATION) || sparseHelicalWindow(y) >= 0;
+      const helical = helicalWhole(chords, () => concentration(shape.dihedralCos, shape.dihedralSin, 0, shape.dihedralCos.length)) || sparseHelicalWindow(y, shape) >= 0;
       if (guard !== null && !helical) throw guard;
       if (helical || (chords > SPARSE_CHORD_TURN && turn > SPARSE_TURN)) {
         sparse = true;
@@ -327,22 +327,55 @@ function selectLevel(
   return sel;
 }
 
-/**
- * Median turning angle (rad) between consecutive chords of the points (interleaved xyz), wrapping
- * when closed; 0 for fewer than 3 points.
- */
-export function chordTurn(y: Float64Array, closed: boolean): number {
+/** The chords between consecutive points of a trace, as the sparse tests see them. */
+export interface ChordShape {
+  /** Turning angle (rad) between chords k and k+1 (points k, k+1, k+2; wrapping when closed). */
+  readonly turn: Float64Array;
+  /** Unit (cos, sin) of the dihedral of points k..k+3 (open quadruples only); NaN where undefined. */
+  readonly dihedralCos: Float64Array;
+  readonly dihedralSin: Float64Array;
+}
+
+/** Turning angles and dihedrals of the chords of the points (interleaved xyz). Cost O(n). */
+export function chordShape(y: Float64Array, closed: boolean): ChordShape {
+  return { turn: chordTurns(y, closed), ...chordDihedrals(y) };
+}
+
+/** Turning angle (rad) between chords k and k+1 of the points, wrapping when closed. */
+function chordTurns(y: Float64Array, closed: boolean): Float64Array {
   const n = y.length / 3;
-  if (n < 3) return 0;
-  const m = closed ? n : n - 2, a = new Float64Array(m);
+  const m = n < 3 ? 0 : closed ? n : n - 2, turn = new Float64Array(m);
   for (let k = 0; k < m; ++k) {
     const i0 = k, i1 = (k + 1) % n, i2 = (k + 2) % n;
     const ux = y[3 * i1] - y[3 * i0], uy = y[3 * i1 + 1] - y[3 * i0 + 1], uz = y[3 * i1 + 2] - y[3 * i0 + 2];
     const vx = y[3 * i2] - y[3 * i1], vy = y[3 * i2 + 1] - y[3 * i1 + 1], vz = y[3 * i2 + 2] - y[3 * i1 + 2];
-    const cx = uy * vz - uz * vy, cy = uz * vx - ux * vz, cz = ux * vy - uy * vx;
-    a[k] = Math.atan2(hypot3(cx, cy, cz), ux * vx + uy * vy + uz * vz);
+    turn[k] = Math.atan2(hypot3(uy * vz - uz * vy, uz * vx - ux * vz, ux * vy - uy * vx), ux * vx + uy * vy + uz * vz);
   }
-  return medianOf(a);
+  return turn;
+}
+
+/** Unit (cos, sin) of the dihedral of points i..i+3 (open quadruples); NaN where undefined. */
+function chordDihedrals(y: Float64Array): { dihedralCos: Float64Array; dihedralSin: Float64Array } {
+  const q = Math.max(0, y.length / 3 - 3), dihedralCos = new Float64Array(q), dihedralSin = new Float64Array(q);
+  for (let i = 0; i < q; ++i) {
+    const b1x = y[3 * i + 3] - y[3 * i], b1y = y[3 * i + 4] - y[3 * i + 1], b1z = y[3 * i + 5] - y[3 * i + 2];
+    const b2x = y[3 * i + 6] - y[3 * i + 3], b2y = y[3 * i + 7] - y[3 * i + 4], b2z = y[3 * i + 8] - y[3 * i + 5];
+    const b3x = y[3 * i + 9] - y[3 * i + 6], b3y = y[3 * i + 10] - y[3 * i + 7], b3z = y[3 * i + 11] - y[3 * i + 8];
+    const n1x = b1y * b2z - b1z * b2y, n1y = b1z * b2x - b1x * b2z, n1z = b1x * b2y - b1y * b2x;
+    const n2x = b2y * b3z - b2z * b3y, n2y = b2z * b3x - b2x * b3z, n2z = b2x * b3y - b2y * b3x;
+    const x = n1x * n2x + n1y * n2y + n1z * n2z;
+    const yy = hypot3(b2x, b2y, b2z) * (b1x * n2x + b1y * n2y + b1z * n2z);
+    const r = Math.hypot(x, yy);
+    dihedralCos[i] = r > 0 ? x / r : NaN;
+    dihedralSin[i] = r > 0 ? yy / r : NaN;
+  }
+  return { dihedralCos, dihedralSin };
+}
+
+/** Median of the chords' turning angles (rad); 0 for fewer than 3 points. */
+export function chordTurn(y: Float64Array, closed: boolean): number {
+  const turn = chordTurns(y, closed);
+  return turn.length > 0 ? medianOf(turn) : 0;
 }
 
 /**
@@ -353,21 +386,27 @@ export function chordTurn(y: Float64Array, closed: boolean): number {
  * than 4 points or when no dihedral is defined.
  */
 export function dihedralConcentration(y: Float64Array): number {
-  const n = y.length / 3;
+  const { dihedralCos, dihedralSin } = chordDihedrals(y);
+  return concentration(dihedralCos, dihedralSin, 0, dihedralCos.length);
+}
+
+/** Length of the mean of the defined unit vectors i0..i1-1 (0 when none is defined). */
+function concentration(c: Float64Array, s: Float64Array, i0: number, i1: number): number {
   let sc = 0, ss = 0, cnt = 0;
-  for (let i = 0; i + 3 < n; ++i) {
-    const b1 = [y[3 * i + 3] - y[3 * i], y[3 * i + 4] - y[3 * i + 1], y[3 * i + 5] - y[3 * i + 2]];
-    const b2 = [y[3 * i + 6] - y[3 * i + 3], y[3 * i + 7] - y[3 * i + 4], y[3 * i + 8] - y[3 * i + 5]];
-    const b3 = [y[3 * i + 9] - y[3 * i + 6], y[3 * i + 10] - y[3 * i + 7], y[3 * i + 11] - y[3 * i + 8]];
-    const n1 = [b1[1] * b2[2] - b1[2] * b2[1], b1[2] * b2[0] - b1[0] * b2[2], b1[0] * b2[1] - b1[1] * b2[0]];
-    const n2 = [b2[1] * b3[2] - b2[2] * b3[1], b2[2] * b3[0] - b2[0] * b3[2], b2[0] * b3[1] - b2[1] * b3[0]];
-    const x = n1[0] * n2[0] + n1[1] * n2[1] + n1[2] * n2[2];
-    const yy = hypot3(b2[0], b2[1], b2[2]) * (b1[0] * n2[0] + b1[1] * n2[1] + b1[2] * n2[2]);
-    const r = Math.hypot(x, yy);
-    if (!(r > 0)) continue;
-    sc += x / r; ss += yy / r; ++cnt;
+  for (let i = i0; i < i1; ++i) {
+    if (!(c[i] === c[i])) continue;
+    sc += c[i]; ss += s[i]; ++cnt;
   }
   return cnt > 0 ? Math.hypot(sc, ss) / cnt : 0;
+}
+
+/**
+ * A few points per turn that twist alike over the whole trace: chords turning by more than
+ * SPARSE_CHORD_TURN and less than MAX_HELICAL_CHORD_TURN at the median (`chords`), dihedral
+ * concentration (asked for only then) above SPARSE_DIHEDRAL_CONCENTRATION.
+ */
+function helicalWhole(chords: number, concentrationOf: () => number): boolean {
+  return chords > SPARSE_CHORD_TURN && chords < MAX_HELICAL_CHORD_TURN && concentrationOf() > SPARSE_DIHEDRAL_CONCENTRATION;
 }
 
 /**
@@ -377,8 +416,9 @@ export function dihedralConcentration(y: Float64Array): number {
  * "noise", exit 0), and the sparse path stops at MAX_SPARSE_POINTS.
  */
 function refuseLongSparse(y: Float64Array, closed: boolean, n: number, file: string): void {
+  // Dihedrals only when the chords turn enough (this runs on traces of up to millions of points).
   const chords = chordTurn(y, closed);
-  if (chords > SPARSE_CHORD_TURN && chords < MAX_HELICAL_CHORD_TURN && dihedralConcentration(y) > SPARSE_DIHEDRAL_CONCENTRATION) {
+  if (helicalWhole(chords, () => dihedralConcentration(y))) {
     throw new InputError(file, null, "points", `a sparse trace (the chords between points turn by ${chords.toFixed(2)} rad at the median, a few points per turn) of ${n} points: sparse traces are fitted up to ${MAX_SPARSE_POINTS} points; split the file into pieces`);
   }
 }
@@ -388,34 +428,29 @@ const HELICAL_WINDOW = 16;
 
 /**
  * First point of a window of HELICAL_WINDOW consecutive points (interleaved xyz) that is a sparse
- * helix on its own: its chords turn by more than SPARSE_CHORD_TURN at the median, by nearly the same
- * angle (interquartile range under 0.3 rad) and with their dihedrals in agreement (concentration
- * above 0.97); -1 when there is none. A trace that is sparse only in part (a straight lead of 10
- * points, then a 20-atom alpha helix) passed neither test of the whole and came out nearly straight
- * (curvature 0.03/A for 0.38/A in the helix, exit 0). Measured: alpha, 3-10 and polyproline helices
- * of 20 atoms pass at 2-15% noise (of the radius) in 99-100% of draws, pi helices 70-100%; windows of
- * eight noisy dense families (100-2000 points, 0.2-10% noise, 6400 traces) never did (with 12-point
- * windows and looser limits, up to 1 trace in 50 did).
+ * helix on its own: its chords turn by more than SPARSE_CHORD_TURN (and less than
+ * MAX_HELICAL_CHORD_TURN) at the median, by nearly the same angle (interquartile range under 0.3
+ * rad) and with their dihedrals in agreement (concentration above 0.97); -1 when there is none. A
+ * trace that is sparse only in part (a straight lead of 10 points, then a 20-atom alpha helix)
+ * passed neither test of the whole and came out nearly straight (curvature 0.03/A for 0.38/A in the
+ * helix, exit 0). Measured: alpha, 3-10 and polyproline helices of 20 atoms pass at 2-15% noise (of
+ * the radius) in 99-100% of draws, pi helices 70-100%; windows of eight noisy dense families
+ * (100-2000 points, 0.2-10% noise, 6400 traces) never did (with 12-point windows and looser limits,
+ * up to 1 trace in 50 did). `shape` from `chordShape` of the same points (open or closed: the
+ * windows never wrap).
  */
-export function sparseHelicalWindow(y: Float64Array): number {
-  const n = y.length / 3;
+export function sparseHelicalWindow(y: Float64Array, shape: ChordShape = chordShape(y, false)): number {
+  const n = y.length / 3, turns = HELICAL_WINDOW - 2, quads = HELICAL_WINDOW - 3;
+  const sorted = new Float64Array(turns);
   for (let i = 0; i + HELICAL_WINDOW <= n; ++i) {
-    const w = y.subarray(3 * i, 3 * (i + HELICAL_WINDOW));
-    const t = chordTurn(w, false);
-    if (t > SPARSE_CHORD_TURN && t < MAX_HELICAL_CHORD_TURN && dihedralConcentration(w) > 0.97 && turnSpread(w) < 0.3) return i;
+    const w = shape.turn.subarray(i, i + turns);
+    const t = medianOf(w);
+    if (!(t > SPARSE_CHORD_TURN && t < MAX_HELICAL_CHORD_TURN)) continue;
+    if (!(concentration(shape.dihedralCos, shape.dihedralSin, i, i + quads) > 0.97)) continue;
+    sorted.set(w);
+    sorted.sort();
+    // Interquartile range (lower order statistics at 25% and 75%).
+    if (sorted[Math.floor(0.75 * (turns - 1))] - sorted[Math.floor(0.25 * (turns - 1))] < 0.3) return i;
   }
   return -1;
-}
-
-/** Interquartile range (rad) of the turning angles between consecutive chords of the points. */
-function turnSpread(y: Float64Array): number {
-  const n = y.length / 3, a: number[] = [];
-  for (let k = 0; k + 2 < n; ++k) {
-    const ux = y[3 * k + 3] - y[3 * k], uy = y[3 * k + 4] - y[3 * k + 1], uz = y[3 * k + 5] - y[3 * k + 2];
-    const vx = y[3 * k + 6] - y[3 * k + 3], vy = y[3 * k + 7] - y[3 * k + 4], vz = y[3 * k + 8] - y[3 * k + 5];
-    a.push(Math.atan2(hypot3(uy * vz - uz * vy, uz * vx - ux * vz, ux * vy - uy * vx), ux * vx + uy * vy + uz * vz));
-  }
-  a.sort((p, q) => p - q);
-  const q = (f: number) => a[Math.min(a.length - 1, Math.floor(f * (a.length - 1)))];
-  return a.length > 0 ? q(0.75) - q(0.25) : Infinity;
 }

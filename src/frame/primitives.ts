@@ -111,7 +111,8 @@ function normalise(xyz: ArrayLike<number>, caller: string): Normalised {
   return { n, p, c, L };
 }
 
-function scatter(p: Float64Array, n: number, centred: boolean): Float64Array {
+/** Scatter matrix sum (p - mean)(p - mean)^T of n interleaved points (about 0 unless `centred`), row-major. */
+export function scatter(p: Float64Array, n: number, centred: boolean): Float64Array {
   const m = new Float64Array(9);
   let mx = 0, my = 0, mz = 0;
   if (centred) {
