@@ -7,6 +7,7 @@ import {
   FLAG_BIAS, FLAG_END, FLAG_FRAME_TRANSPORTED, FLAG_TORSION_NOT_MEASURABLE, FLAG_TORSION_UNDEFINED,
   type Profile, type Trace,
 } from "../types.js";
+import { medianSpacing, spacingMeans } from "./spacingMean.js";
 import { bootstrapBands, kappaTauAt, type BootstrapOutput, type GridBasis } from "./bootstrap.js";
 import { hypot3 } from "./hypot3.js";
 import { selectInPlace } from "./robustStart.js";
@@ -71,6 +72,15 @@ export function fitBands(
 
   // Point estimates at the samples (their frames come after the torsion gate).
   const est = pointEstimates(basis, lv, samples, start.canon);
+  if (fit.sparse) {
+    // A near-interpolated trace resolves one point spacing, not the spline's knot intervals.
+    const span = basis.nseg * basis.h;
+    const width = medianSpacing(fit.u, closed, span);
+    let lo = Infinity, hi = -Infinity;
+    for (const v of fit.u) { lo = Math.min(lo, v); hi = Math.max(hi, v); }
+    spacingMeans(basis, lv.kappaFit.coef, lv.tauFit === lv.kappaFit ? null : lv.tauFit.coef, lv.planarWithinNoise, samples.u, width, lo, hi, closed, est.kappa, est.tau, L0);
+    diagnostics.push(`sparse trace: curvature and torsion at each sample are means over one point spacing (${describeLength(width * table.length / span * L0, trace.source)}) centred on it, the resolution of a near-interpolated trace`);
+  }
   const { s, kappa, tau, r1, kv } = est;
 
   // Bootstrap on the grid; bands from fits at a quarter of each level (less smoothing bias, so the
