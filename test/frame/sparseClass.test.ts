@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { chordTurn, dihedralConcentration, sparseHelicalWindow } from "../../src/frame/passes.js";
+import { checkSparseGaps, checkSparseLength, chordTurn, dihedralConcentration, SPARSE_GAP_LIMIT, sparseHelicalWindow } from "../../src/frame/passes.js";
 import { fitProfile } from "../../src/frame/profile.js";
 import { FLAG_END, type Profile, type Trace } from "../../src/types.js";
 import { normalStream } from "../support/rng.js";
@@ -189,5 +189,39 @@ describe("stretches of a sparse helix", () => {
       // Helix curvature R / (R^2 + c^2) (textbook).
       expect(Math.abs(segments[0].kappa / (2.3 / (2.3 * 2.3 + c * c)) - 1)).toBeLessThan(0.02);
     }
+  });
+});
+
+describe("sparse traces: gaps and loops refused", () => {
+  // Alpha-helix C-alpha geometry (radius 2.3 A, 100 degrees and 1.5 A per residue; from memory).
+  const R = 2.3, dphi = (100 * Math.PI) / 180, c = 1.5 / dphi;
+  it("refuses two 20-atom helices 30 A apart read as one trace, naming the gap", () => {
+    const a = helixPoints(20, R, c, dphi, 0.1, 1), b = helixPoints(20, R, c, dphi, 0.1, 2);
+    const xyz = new Float64Array(120);
+    xyz.set(a, 0);
+    for (let i = 0; i < 20; ++i) xyz.set([b[3 * i] + 30, b[3 * i + 1], b[3 * i + 2] + 5], 60 + 3 * i);
+    for (let k = 0; k < 120; ++k) xyz[k] *= 1e-10; // metres, read as A
+    // Near-interpolated across the jump, the fit was 1.8x the polyline's length, exit 0.
+    expect(() => fitProfile(trace(xyz), { bootstrap: 0 })).toThrow(
+      /^h\.xyz: points: gap in a sparse trace: 40\.\d A between point 20 and point 21, \d+\.\dx the steps around it \(missing points\?\): near-interpolation would invent the wire there; split the trace at the gap$/);
+  });
+
+  it("keeps every step of noisy sparse helices within the limit; finds the widest step on a closed wire", () => {
+    // Measured worst step over its neighbours' median: 1.38 on the molecule and trust benches.
+    const say = (d: number) => `${d.toFixed(2)} A`, name = (i: number) => `point ${i + 1}`;
+    for (let seed = 1; seed <= 5; ++seed) expect(() => checkSparseGaps(helixPoints(30, R, c, dphi, 0.3, seed), false, "h.xyz", name, say)).not.toThrow();
+    // A closed 12-gon whose closing side spans 1.6 rad, the others 0.43 (3.7x): that side is named.
+    const ring = new Float64Array(36);
+    for (let i = 0; i < 12; ++i) { const t = (i / 11) * (2 * Math.PI - 1.6); ring.set([10 * Math.cos(t), 10 * Math.sin(t), 0], 3 * i); }
+    expect(() => checkSparseGaps(ring, true, "r.xyz", name, say)).toThrow(/between point 12 and point 1, /);
+    expect(SPARSE_GAP_LIMIT).toBe(3);
+  });
+
+  it("refuses a fit that loops between the points (length over the polyline above 1.6)", () => {
+    const say = (d: number) => `${d} A`;
+    expect(() => checkSparseLength(100, 80, "h.xyz", say)).not.toThrow();
+    expect(() => checkSparseLength(130, 80, "h.xyz", say)).toThrow(
+      "h.xyz: points: the fit of this sparse trace diverged: its length is 1.6x the polyline through the points (80 A); the points are too few or too noisy for the turns of this wire (the curve loops between them)");
+    expect(() => checkSparseLength(20, 80, "h.xyz", say)).toThrow(/0\.25x the polyline/);
   });
 });
