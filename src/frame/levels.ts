@@ -43,6 +43,8 @@ export interface CurvatureLevel {
   /** log10 of the chosen level over the passes' (discrepancy) level. */
   readonly decades: number;
   readonly atTop: boolean;
+  /** The squared bias followed the linear-bias law of the ladder's top decade (`linearBiasLaw`). */
+  readonly biasLaw: boolean;
 }
 
 /**
@@ -78,7 +80,7 @@ export function curvatureLevel(
   const r = riskLevel(smoother, pilot, C, gridBasis(basis, gridU), interior, seed ^ 0x3c6ef372, { quantity: 0, maxDecades: down + up });
   const minLambda = start.minWavelength > 0 ? lambdaForWavelength(start.minWavelength, rho, basis.h) : 0;
   const lambda = Math.max(pilot.lambda * r.refinedFactor, minLambda);
-  return { lambda, decades: Math.log10(lambda / sel.fit.lambda), atTop: r.atTop };
+  return { lambda, decades: Math.log10(lambda / sel.fit.lambda), atTop: r.atTop, biasLaw: r.biasLaw };
 }
 
 /**

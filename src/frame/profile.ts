@@ -279,7 +279,7 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
     if (Math.abs(lv.decades) > 1e-9) {
       const refit = runPasses(trace, start, { passes: 1, lambda: lv.lambda, segments: fit.basis.nseg }, diagnostics, { u: fit.u, w: fit.w, span: fit.table.length, sigma: fit.sel.sigma });
       fit = { ...refit, sel: { ...refit.sel, sigmaFrom: fit.sel.sigmaFrom, rule: fit.sel.rule } };
-      diagnostics.push(`curvature: smoothing level ${Math.pow(10, lv.decades).toPrecision(2)}x the discrepancy level (least estimated curvature error${lv.atTop ? ", top of the scan" : ""})`);
+      diagnostics.push(`curvature: smoothing level ${Math.pow(10, lv.decades).toPrecision(2)}x the discrepancy level (least estimated curvature error${lv.biasLaw ? ", bias extrapolated from the top of the scan, where it grows in proportion to the level" : ""}${lv.atTop ? ", top of the scan" : ""})`);
     }
   }
   const samples = sampleAt(trace, start, fit, set);

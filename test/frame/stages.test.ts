@@ -8,9 +8,9 @@ import { describe, expect, it } from "vitest";
 import { bandOffsets } from "../../src/frame/bands.js";
 import { fitProfile } from "../../src/frame/profile.js";
 import { differenceNoise, medianInPlace, medianOf, selectInPlace, toCanonical } from "../../src/frame/robustStart.js";
-import { biasChange } from "../../src/frame/torsionLevel.js";
+import { biasChange, LINEAR_BIAS_SLOPE, linearBiasLaw } from "../../src/frame/torsionLevel.js";
 import { FLAG_END, type Profile } from "../../src/types.js";
-import { bumpCurve, denseTruth, helixCurve, matchTruth, sampleCurve, sampleCurveUneven, trefoilCurve } from "../support/curves.js";
+import { bumpCurve, circleCurve, denseTruth, helixCurve, matchTruth, sampleCurve, sampleCurveUneven, trefoilCurve } from "../support/curves.js";
 import { normalStream } from "../support/rng.js";
 
 describe("selection medians", () => {
@@ -139,6 +139,45 @@ describe("curvature level (least estimated curvature error)", () => {
     expect(p.diagnostics.some((d) => d.startsWith("curvature: smoothing level"))).toBe(false);
     expect(fitProfile(tr, { bootstrap: 0 }).diagnostics.some((d) => d.startsWith("curvature: smoothing level"))).toBe(true);
   });
+  it("reads the linear-bias law off the top decade of the ladder, and only that law", () => {
+    // A smoother's bias on a slowly varying signal is proportional to its level (the leading term of
+    // lambda w^8 / (1 + lambda w^8)): squared bias 10^(2 k / 4) on quarter-decade steps k.
+    const top = 12, ladder = (f: (x: number) => number) => Float64Array.from({ length: top + 1 }, (_, k) => f(Math.pow(10, k / 4)));
+    const lin = linearBiasLaw(ladder((x) => 3e-6 * x * x), top);
+    expect(lin).not.toBeNull();
+    expect(lin!.slope).toBeCloseTo(2, 12);
+    expect(Math.pow(10, lin!.intercept)).toBeCloseTo(3e-6, 15);
+    // Saturating (the feature smoothed away): (x / (1 + x / 30))^2 has slope 0.4 over the top decade.
+    expect(linearBiasLaw(ladder((x) => (x / (1 + x / 30)) ** 2), top)).toBeNull();
+    // Steeper than 2 (noise at the low end of the decade): capped at 2, through the centroid.
+    const steep = linearBiasLaw(ladder((x) => x ** 3), top)!;
+    expect(steep.slope).toBe(2);
+    // Fewer than 3 positive estimates: no law.
+    const few = ladder((x) => x * x); few[9] = few[10] = few[11] = -1;
+    expect(linearBiasLaw(few, top)).toBeNull();
+    expect(LINEAR_BIAS_SLOPE).toBe(1.5);
+  });
+
+  it("ring (constant curvature): the pilot's noise no longer pulls the level a decade low", () => {
+    // A ring of radius 1 (curvature 1 everywhere: elementary geometry), 1000 uneven points at 0.2%
+    // noise, the draw where the per-level bias estimate chose a decade below the best level and the
+    // curvature error was 1.73x the best fixed level's (bench/families.ts, circle N=1000 0.2% s2).
+    const curve = circleCurve(1), truth = denseTruth(curve, 20000);
+    const { xyz } = sampleCurveUneven(curve, 1000, 0.002, 207);
+    const tr = { xyz, dims: 3 as const, source: { file: "ring", unit: "m" as const }, diagnostics: [] };
+    const auto = fitProfile(tr, { closed: true, bootstrap: 0, seed: 2 });
+    expect(auto.diagnostics.some((d) => d.includes("bias extrapolated from the top of the scan"))).toBe(true);
+    const err = (p: Profile) => {
+      const idx = matchTruth(truth, p.x, p.y, p.z, true);
+      let e = 0;
+      for (let j = 0; j < p.n; ++j) e += (p.kappa[j] - truth.kappa[idx[j]]) ** 2;
+      return Math.sqrt(e / p.n);
+    };
+    let best = Infinity;
+    for (let k = -4; k <= 6; ++k) best = Math.min(best, err(fitProfile(tr, { closed: true, bootstrap: 0, lambda: auto.lambda * Math.pow(10, k / 4), segments: auto.segments })));
+    expect(err(auto) / best).toBeLessThan(1.2); // measured 1.08 (1.73 before the law)
+  });
+
   for (const { curve, n, noise } of cases) {
     it(`${curve.name}: kappa error within 1.5x of the best fixed level of a quarter-decade scan (2 seeds)`, () => {
       const truth = denseTruth(curve, 20 * n);
