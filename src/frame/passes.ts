@@ -266,7 +266,7 @@ export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnos
     // Foot-point projection: Newton on |r(u) - p|^2, steps limited to one knot interval.
     const coef = sel.fit.coef;
     const checkSparse = pass === 0 && !sparse && n <= MAX_SPARSE_POINTS && set.segments === undefined;
-    if (pass === 0 && n > MAX_SPARSE_POINTS && set.segments === undefined) refuseLongSparse(y, closed, n, file);
+    if (pass === 0 && n > MAX_SPARSE_POINTS && set.segments === undefined) refuseLongSparse(y, closed, n, file, name);
     const turns = new Float64Array(checkSparse ? n : 0);
     projectFootPoints(basis, coef, y, u, resid, checkSparse ? turns : null, start.medianStep, closed);
     // Robust weights from the residual norms (Rayleigh median in 3D: 1.1774 sigma; half-normal in
@@ -307,8 +307,11 @@ export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnos
       // of 3 points per turn looks like noise about a straight axis to that fit: a 60-atom
       // polyproline helix came out straight, curvature ~0 for 0.34/A, with 1.2 A of "noise"); or
       // some 16 consecutive points are such a helix on their own (a trace sparse only in part).
-      const helical = helicalWhole(chords, () => concentration(shape.dihedralCos, shape.dihedralSin, 0, shape.dihedralCos.length)) || sparseHelicalWindow(y, shape) >= 0;
+      const whole = helicalWhole(chords, () => concentration(shape.dihedralCos, shape.dihedralSin, 0, shape.dihedralCos.length));
+      const window = whole ? -1 : sparseHelicalWindow(y, shape);
+      const helical = whole || window >= 0;
       if (guard !== null && !helical) throw guard;
+      if (helical) checkMixedSampling(y, closed, window, file, name, say);
       if (helical || (chords > SPARSE_CHORD_TURN && turn > SPARSE_TURN)) {
         sparse = true;
         nseg = Math.min(MAX_SEGMENTS, 4 * n);
@@ -475,11 +478,59 @@ function helicalWhole(chords: number, concentrationOf: () => number): boolean {
  * helix for noise about a straight axis (3000 atoms of a polyproline helix: straight, 1.1 A of
  * "noise", exit 0), and the sparse path stops at MAX_SPARSE_POINTS.
  */
-function refuseLongSparse(y: Float64Array, closed: boolean, n: number, file: string): void {
+function refuseLongSparse(y: Float64Array, closed: boolean, n: number, file: string, name: (i: number) => string): void {
   // Dihedrals only when the chords turn enough (this runs on traces of up to millions of points).
-  const chords = chordTurn(y, closed);
-  if (helicalWhole(chords, () => dihedralConcentration(y))) {
+  const turn = chordTurns(y, closed);
+  const chords = turn.length > 0 ? medianOf(turn) : 0;
+  let dihedrals: ReturnType<typeof chordDihedrals> | null = null;
+  const dihedralsOf = () => (dihedrals ??= chordDihedrals(y));
+  if (helicalWhole(chords, () => { const d = dihedralsOf(); return concentration(d.dihedralCos, d.dihedralSin, 0, d.dihedralCos.length); })) {
     throw new InputError(file, null, "points", `a sparse trace (the chords between points turn by ${chords.toFixed(2)} rad at the median, a few points per turn) of ${n} points: sparse traces are fitted up to ${MAX_SPARSE_POINTS} points; split the file into pieces`);
+  }
+  // A long trace sparse only in part (a sparse helix inside): smoothing flattens that helix. The
+  // dihedrals only when some window's chords turn enough (a smooth dense trace: none).
+  let most = 0, above = 0;
+  const span = HELICAL_WINDOW - 2;
+  for (let k = 0; k < Math.min(turn.length, n - 2); ++k) {
+    if (turn[k] > SPARSE_CHORD_TURN) ++above;
+    if (k >= span && turn[k - span] > SPARSE_CHORD_TURN) --above;
+    most = Math.max(most, above);
+  }
+  const at = 2 * most >= span ? sparseHelicalWindow(y, { turn, ...dihedralsOf() }) : -1;
+  if (at >= 0) {
+    throw new InputError(file, null, "points", `${name(at)} to ${name(at + HELICAL_WINDOW - 1)} are a sparse helix (a few points per turn) inside a trace of ${n} points: smoothing would flatten it, and sparse traces are fitted up to ${MAX_SPARSE_POINTS} points; split the file into pieces`);
+  }
+}
+
+/**
+ * Largest ratio between a sparse helix's step and the 10th percentile of the trace's steps: beyond
+ * it the trace mixes a sparse helix with densely sampled stretches, and one near-interpolating fit
+ * leaves the dense stretches' noise unsmoothed (500 points 1 A apart with 0.05 A of noise either
+ * side of a 20-atom alpha helix: curvature 0.2/A for a true 0.0003/A there, unflagged, exit 0).
+ * Sparse helices alone (alpha, 10-60 atoms, up to 0.3 A of noise) stay under 1.3.
+ */
+export const MIXED_SAMPLING_LIMIT = 2;
+
+/**
+ * Refuses a trace whose sparse helix (the window from `sparseHelicalWindow` at `window`, or the
+ * whole trace when `window` < 0) has a median step more than MIXED_SAMPLING_LIMIT times the 10th
+ * percentile of all the trace's steps.
+ */
+export function checkMixedSampling(y: Float64Array, closed: boolean, window: number, file: string, name: (i: number) => string, say: (d: number) => string): void {
+  const n = y.length / 3, m = closed ? n : n - 1;
+  if (m < 4) return;
+  const step = new Float64Array(m);
+  for (let i = 0; i < m; ++i) {
+    const j = (i + 1) % n;
+    step[i] = Math.hypot(y[3 * j] - y[3 * i], y[3 * j + 1] - y[3 * i + 1], y[3 * j + 2] - y[3 * i + 2]);
+  }
+  const helixStep = window >= 0 ? medianOf(step.slice(window, Math.min(m, window + HELICAL_WINDOW - 1))) : medianOf(step);
+  const sorted = step.slice().sort();
+  const low = sorted[Math.floor(0.1 * (m - 1))];
+  if (helixStep > MIXED_SAMPLING_LIMIT * low) {
+    const where = window >= 0 ? `${name(window)} to ${name(window + HELICAL_WINDOW - 1)} are a sparse helix` : "the trace is a sparse helix at its median step";
+    throw new InputError(file, null, "points",
+      `${where} (a few points per turn, ${say(helixStep)} apart), but a tenth of the trace's steps are ${say(low)} or shorter: one fit cannot near-interpolate the helix and smooth the densely sampled rest; split the file where the sampling changes`);
   }
 }
 
@@ -502,11 +553,19 @@ const HELICAL_WINDOW = 16;
 export function sparseHelicalWindow(y: Float64Array, shape: ChordShape = chordShape(y, false)): number {
   const n = y.length / 3, turns = HELICAL_WINDOW - 2, quads = HELICAL_WINDOW - 3;
   const sorted = new Float64Array(turns);
+  // Windows with at least half their turns above SPARSE_CHORD_TURN (else the median is not), by a
+  // running count; then the dihedrals, which noise fails (1e6 noisy points: 0.95 s -> 0.1 s).
+  let above = 0;
+  for (let k = 0; k < turns - 1 && k < shape.turn.length; ++k) if (shape.turn[k] > SPARSE_CHORD_TURN) ++above;
   for (let i = 0; i + HELICAL_WINDOW <= n; ++i) {
+    if (shape.turn[i + turns - 1] > SPARSE_CHORD_TURN) ++above;
+    if (i > 0 && shape.turn[i - 1] > SPARSE_CHORD_TURN) --above;
+    if (2 * above < turns) continue;
+    // The dihedrals next (no allocation; noise fails here), then the median turn.
+    if (!(concentration(shape.dihedralCos, shape.dihedralSin, i, i + quads) > 0.97)) continue;
     const w = shape.turn.subarray(i, i + turns);
     const t = medianOf(w);
     if (!(t > SPARSE_CHORD_TURN && t < MAX_HELICAL_CHORD_TURN)) continue;
-    if (!(concentration(shape.dihedralCos, shape.dihedralSin, i, i + quads) > 0.97)) continue;
     sorted.set(w);
     sorted.sort();
     // Interquartile range (lower order statistics at 25% and 75%).

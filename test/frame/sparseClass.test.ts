@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { checkSparseGaps, checkSparseLength, chordTurn, dihedralConcentration, SPARSE_GAP_LIMIT, sparseHelicalWindow } from "../../src/frame/passes.js";
+import { checkMixedSampling, checkSparseGaps, checkSparseLength, chordTurn, MIXED_SAMPLING_LIMIT, dihedralConcentration, SPARSE_GAP_LIMIT, sparseHelicalWindow } from "../../src/frame/passes.js";
 import { fitProfile } from "../../src/frame/profile.js";
 import { FLAG_END, type Profile, type Trace } from "../../src/types.js";
 import { normalStream } from "../support/rng.js";
@@ -223,5 +223,37 @@ describe("sparse traces: gaps and loops refused", () => {
     expect(() => checkSparseLength(130, 80, "h.xyz", say)).toThrow(
       "h.xyz: points: the fit of this sparse trace diverged: its length is 1.6x the polyline through the points (80 A); the points are too few or too noisy for the turns of this wire (the curve loops between them)");
     expect(() => checkSparseLength(20, 80, "h.xyz", say)).toThrow(/0\.25x the polyline/);
+  });
+});
+
+describe("sparse helices inside densely sampled traces", () => {
+  // A gentle arc (radius 3000 A) traced every 1 A with 0.05 A of noise, a 20-atom alpha helix
+  // (radius 2.3 A, 100 degrees and 1.5 A per residue; from memory) continuing along it, then the arc
+  // again from the helix's last atom: `lead` points either side. Coordinates in metres, read as A.
+  function mixed(lead: number): Float64Array {
+    const g = normalStream(5), pts: number[] = [], Rh = 2.3, c = 1.5 / ((100 * Math.PI) / 180), Ra = 3000;
+    let x = 0, oy = 0, oz = 0;
+    const arc = (k: number) => { for (let i = 0; i < k; ++i) { x += 1; pts.push(x + 0.05 * g(), (x - 1700) ** 2 / (2 * Ra) + oy + 0.05 * g(), oz + 0.05 * g()); } };
+    arc(lead);
+    const x0 = x, y0 = (x - 1700) ** 2 / (2 * Ra);
+    for (let i = 1; i <= 20; ++i) { const t = (i * 100 * Math.PI) / 180; pts.push(x0 + c * t, y0 + Rh * Math.cos(t) - Rh, Rh * Math.sin(t)); }
+    const t = (20 * 100 * Math.PI) / 180;
+    x = x0 + c * t; oy = y0 + Rh * Math.cos(t) - Rh - (x + 1 - 1700) ** 2 / (2 * Ra); oz = Rh * Math.sin(t);
+    arc(lead);
+    return Float64Array.from(pts, (v) => v * 1e-10);
+  }
+  it("refuses one that mixes 1 A steps with a 3.8 A helix (the dense part's noise came out as curvature 0.2/A for 0.0003/A)", () => {
+    expect(() => fitProfile(trace(mixed(500)), { bootstrap: 0 })).toThrow(
+      /^h\.xyz: points: point 500 to point 515 are a sparse helix \(a few points per turn, 3\.8\d A apart\), but a tenth of the trace's steps are 0\.9\d\d A or shorter: one fit cannot near-interpolate the helix and smooth the densely sampled rest; split the file where the sampling changes$/);
+  });
+  it("refuses a trace of more than 2000 points with a sparse helix inside (smoothing flattened it: curvature 0.005/A for 0.38/A)", () => {
+    expect(() => fitProfile(trace(mixed(1500)), { bootstrap: 0 })).toThrow(
+      "h.xyz: points: point 1500 to point 1515 are a sparse helix (a few points per turn) inside a trace of 3020 points: smoothing would flatten it, and sparse traces are fitted up to 2000 points; split the file into pieces");
+  });
+  it("keeps the uniform-step checks quiet: ratios of sparse helices stay under the limit", () => {
+    const say = (d: number) => `${d}`, name = (i: number) => `point ${i + 1}`;
+    const R = 2.3, dphi = (100 * Math.PI) / 180, c = 1.5 / dphi;
+    for (let seed = 1; seed <= 5; ++seed) expect(() => checkMixedSampling(helixPoints(30, R, c, dphi, 0.3, seed), false, -1, "h.xyz", name, say)).not.toThrow();
+    expect(MIXED_SAMPLING_LIMIT).toBe(2);
   });
 });
