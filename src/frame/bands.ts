@@ -74,12 +74,8 @@ export function fitBands(
   const est = pointEstimates(basis, lv, samples, start.canon);
   if (fit.sparse) {
     // A near-interpolated trace resolves one point spacing, not the spline's knot intervals.
-    const span = basis.nseg * basis.h;
-    const width = medianSpacing(fit.u, closed, span);
-    let lo = Infinity, hi = -Infinity;
-    for (const v of fit.u) { lo = Math.min(lo, v); hi = Math.max(hi, v); }
-    spacingMeans(basis, lv.kappaFit.coef, lv.tauFit === lv.kappaFit ? null : lv.tauFit.coef, lv.planarWithinNoise, samples.u, width, lo, hi, closed, est.kappa, est.tau, L0);
-    diagnostics.push(`sparse trace: curvature and torsion at each sample are means over one point spacing (${describeLength(width * table.length / span * L0, trace.source)}) centred on it, the resolution of a near-interpolated trace`);
+    const width = sparseSpacingMeans(fit, lv, samples, closed, L0, est);
+    diagnostics.push(`sparse trace: curvature and torsion at each sample are means over one point spacing (${describeLength(width * L0, trace.source)}) centred on it, the resolution of a near-interpolated trace`);
   }
   const { s, kappa, tau, r1, kv } = est;
 
@@ -175,6 +171,21 @@ function pointEstimates(basis: SplineBasis, lv: Levels, samples: Samples, canon:
   };
   pointLoop(basis, lv.kappaFit.coef, lv.tauFit === lv.kappaFit ? null : lv.tauFit.coef, lv.planarWithinNoise, samples.u, samples.s, canon.Q, canon.centre, canon.scale, out);
   return out;
+}
+
+/**
+ * A sparse trace's kappa and tau at the samples replaced by their means over one median point
+ * spacing (`spacingMeans`, clipped to the points' parameter range on an open wire); returns that
+ * spacing as a length (canonical units).
+ */
+function sparseSpacingMeans(fit: PassesResult, lv: Levels, samples: Samples, closed: boolean, L0: number, est: PointEstimates): number {
+  const { basis, table } = fit;
+  const span = basis.nseg * basis.h;
+  const width = medianSpacing(fit.u, closed, span);
+  let lo = Infinity, hi = -Infinity;
+  for (const v of fit.u) { lo = Math.min(lo, v); hi = Math.max(hi, v); }
+  spacingMeans(basis, lv.kappaFit.coef, lv.tauFit === lv.kappaFit ? null : lv.tauFit.coef, lv.planarWithinNoise, samples.u, width, lo, hi, closed, est.kappa, est.tau, L0);
+  return (width * table.length) / span;
 }
 
 /** The loop of {@link pointEstimates}; `tauCoef` null: torsion from the curvature fit; `planar`: tau = 0. */

@@ -10,7 +10,7 @@ import { arcAt, arcTable, evalCurve, kappaTau, type ArcTable } from "./curve.js"
 import { checkPass, describeLength, LENGTH_RATIO_LIMIT } from "./fitGuard.js";
 import { InputError } from "../errors.js";
 import { hypot3 } from "./hypot3.js";
-import { medianOf } from "./robustStart.js";
+import { medianOf, stepLengths } from "./robustStart.js";
 import { lambdaForWavelength, makeSmoother, selectSmoothing, wavelengthForLambda, type Selection, type Smoother } from "./smoother.js";
 import type { Start } from "./profile.js";
 import { continuedFit, CONTINUED_MAX_POINTS } from "./endContinuation.js";
@@ -52,18 +52,21 @@ export const MAX_HELICAL_CHORD_TURN = 2.5;
  */
 export const SPARSE_GAP_LIMIT = 3;
 
+/** Lengths of the chords between consecutive points (with the closing chord when closed). */
+function chordSteps(y: Float64Array, closed: boolean): Float64Array {
+  const n = y.length / 3;
+  const step = closed ? new Float64Array(n) : stepLengths(y);
+  if (closed) for (let i = 0; i < n; ++i) { const j = (i + 1) % n; step[i] = hypot3(y[3 * j] - y[3 * i], y[3 * j + 1] - y[3 * i + 1], y[3 * j + 2] - y[3 * i + 2]); }
+  return step;
+}
+
 /**
  * Refuses a sparse trace with a gap: a step more than SPARSE_GAP_LIMIT times the median of the
  * steps around it (4 on each side, wrapping on a closed wire), naming the points on either side.
  */
 export function checkSparseGaps(y: Float64Array, closed: boolean, file: string, name: (i: number) => string, say: (d: number) => string): void {
-  const n = y.length / 3, m = closed ? n : n - 1;
+  const n = y.length / 3, step = chordSteps(y, closed), m = step.length;
   if (m < 3) return;
-  const step = new Float64Array(m);
-  for (let i = 0; i < m; ++i) {
-    const j = (i + 1) % n;
-    step[i] = Math.hypot(y[3 * j] - y[3 * i], y[3 * j + 1] - y[3 * i + 1], y[3 * j + 2] - y[3 * i + 2]);
-  }
   let worst = -1, worstRatio = 0;
   const around: number[] = [];
   for (let i = 0; i < m; ++i) {
@@ -517,13 +520,8 @@ export const MIXED_SAMPLING_LIMIT = 2;
  * percentile of all the trace's steps.
  */
 export function checkMixedSampling(y: Float64Array, closed: boolean, window: number, file: string, name: (i: number) => string, say: (d: number) => string): void {
-  const n = y.length / 3, m = closed ? n : n - 1;
+  const step = chordSteps(y, closed), m = step.length;
   if (m < 4) return;
-  const step = new Float64Array(m);
-  for (let i = 0; i < m; ++i) {
-    const j = (i + 1) % n;
-    step[i] = Math.hypot(y[3 * j] - y[3 * i], y[3 * j + 1] - y[3 * i + 1], y[3 * j + 2] - y[3 * i + 2]);
-  }
   const helixStep = window >= 0 ? medianOf(step.slice(window, Math.min(m, window + HELICAL_WINDOW - 1))) : medianOf(step);
   const sorted = step.slice().sort();
   const low = sorted[Math.floor(0.1 * (m - 1))];
