@@ -11,7 +11,8 @@
  * ratio, and the 95% band coverage of the truth. Prints every case, then the fraction within the
  * targets (1.2x kappa, 1.5x tau), the worst case and the mean coverage. Invented synthetic curves, seeded.
  * Environment: TORSION_C=<c> sets the torsion balancing constant, ADAPTIVE=1 turns on the opt-in
- * adaptive curvature, KAPPA_RULE=discrepancy the old curvature level.
+ * adaptive curvature, KAPPA_RULE=discrepancy the old curvature level, RATIO=<r> the sampling density
+ * ratio (default 3).
  */
 import { fitProfile, type ProfileOptions } from "../src/frame/profile.js";
 import { FLAG_BIAS, FLAG_END, FLAG_TORSION_UNDEFINED } from "../src/types.js";
@@ -67,7 +68,7 @@ for (const curve of families) {
     const truth = denseTruth(curve, Math.max(20000, 20 * N));
     for (const noise of noises) {
       for (let seed = seedFirst; seed <= seedLast; ++seed) {
-        const { xyz } = sampleCurveUneven(curve, N, noise * curve.radius, 100 * seed + 7);
+        const { xyz } = sampleCurveUneven(curve, N, noise * curve.radius, 100 * seed + 7, Number(process.env.RATIO ?? 3));
         const t0 = performance.now();
         let auto: Score;
         try { auto = score(curve, xyz, truth, { bootstrap: 100, seed, ...(process.env.TORSION_C ? { torsionBalance: Number(process.env.TORSION_C) } : {}), ...(process.env.ADAPTIVE === "1" ? { adaptive: true } : {}), ...(process.env.KAPPA_RULE === "discrepancy" ? { curvatureRule: "discrepancy" as const } : {}) }); } catch (e) { console.log(`${curve.name} N=${N} noise=${noise} seed=${seed}: REFUSED ${(e as Error).message}`); continue; }

@@ -599,7 +599,10 @@ export function findOverlap(y: Float64Array, closed: boolean, sigma: number, ste
   if (!win) return null;
   const { within, k } = win;
   const sd = sigma > 0 ? sigma : 0;
-  const far = (a: number, b: number) => indexGap(n, closed, a, b) > 3 * k;
+  // A second pass is far along the trace and the path went away in between: where the sampling is
+  // much denser than the median (30:1), 3k points advance less than the tolerance, and one dense
+  // stretch was taken for two passes (rings, coils, knots sampled 30:1 were refused as overlaps).
+  const far = (a: number, b: number) => indexGap(n, closed, a, b) > 3 * k && pathLeaves(y, closed, a, b, 4 * within, Math.max(1, k >> 1));
   const hash = spatialHash(y, within);
   // Confirmation needs the 2k + 1 points around a candidate on the repeated stretch: visiting every
   // k-th point finds any such stretch of 3k + 1 points or more.
@@ -611,7 +614,9 @@ export function findOverlap(y: Float64Array, closed: boolean, sigma: number, ste
     const spreadLimit = 3 * Math.SQRT2 * sd + 0.3 * step;
     if (c.count >= 2 * k && c.hits >= 0.8 * c.count && c.meanOffset <= meanLimit && c.spread <= spreadLimit) {
       const f = followPass(y, closed, i, m, k, within);
-      if (f.count >= k) return { at: i, other: m, count: f.count, otherEnd: f.last, within };
+      // ... and runs together beyond the tolerance ball: two strands crossing share only that ball
+      // (Viviani's curve sampled 30:1, dense at its double point, was refused as an overlap).
+      if (f.count >= k && wrappedDistance(y, closed, i, i + f.count - 1) > 4 * within) return { at: i, other: m, count: f.count, otherEnd: f.last, within };
     }
   }
   return null;
@@ -722,6 +727,19 @@ function rmsRadius(y: Float64Array): number {
 }
 
 /** Number of steps between indices a and b (the shorter way round on a ring). */
+/**
+ * Whether the trace between points a and b (the shorter way round on a ring) goes farther than
+ * `away` from p_a, looking at every `stride`-th point.
+ */
+function pathLeaves(y: Float64Array, closed: boolean, a: number, b: number, away: number, stride: number): boolean {
+  const n = y.length / 3;
+  let d = b - a;
+  if (closed) { d = ((d % n) + n) % n; if (d > n / 2) d -= n; }
+  const sign = d < 0 ? -1 : 1, len = Math.abs(d);
+  for (let t = stride; t < len; t += stride) if (wrappedDistance(y, closed, a, a + sign * t) > away) return true;
+  return false;
+}
+
 function indexGap(n: number, closed: boolean, a: number, b: number): number {
   const d = Math.abs(a - b);
   return closed ? Math.min(d, n - d) : d;

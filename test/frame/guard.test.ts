@@ -9,7 +9,7 @@ import { detectClosed } from "../../src/frame/detectClosed.js";
 import { fitProfile } from "../../src/frame/profile.js";
 import { grossOutliers, differenceNoise, findOverlap, findRetrace, referenceLength } from "../../src/frame/robustStart.js";
 import { FLAG_BIAS, FLAG_END, FLAG_TORSION_UNDEFINED, type Profile, type Trace } from "../../src/types.js";
-import { bumpCurve, circleCurve, helixCurve, sampleCurve, sampleCurveUneven } from "../support/curves.js";
+import { bumpCurve, circleCurve, helixCurve, sampleCurve, sampleCurveUneven, vivianiCurve } from "../support/curves.js";
 import { mulberry32, normalStream } from "../support/rng.js";
 
 const trace = (xyz: Float64Array, extra: Partial<Trace> = {}): Trace => ({
@@ -170,6 +170,28 @@ describe("robust start", () => {
     const dense = sampleCurve(helixCurve(30, 8, 2), 20000, 0.2, 6).xyz;
     expect(findOverlap(dense, false, 0.2, 0.2 * Math.sqrt(6))).toBeNull();
     expect(findRetrace(dense, false, 0.2, 0.2 * Math.sqrt(6))).toBeNull();
+  });
+
+  it("fits rings, coils and knots sampled 30:1 (a dense stretch advancing less than the tolerance in 3k points is one pass)", () => {
+    // Ring of radius 1 (curvature 1: elementary geometry), 1000 points whose density varies 30:1,
+    // 0.2% and 1% noise: refused as "the same path twice" before the overlap check asked that the
+    // path go away between the two passes.
+    for (const noise of [0.002, 0.01]) {
+      for (const seed of [107, 207]) {
+        const { xyz } = sampleCurveUneven(circleCurve(1), 1000, noise, seed, 30);
+        const p = fitProfile(trace(xyz), { closed: true, bootstrap: 0 });
+        expect(Math.abs(interiorMedian(p, "kappa") - 1)).toBeLessThan(0.01); // measured within 0.1%
+      }
+    }
+    // Viviani's curve (a figure eight on a sphere: two strands cross at its double point), dense at
+    // that point: refused as an overlap until the stretch had to run together beyond the tolerance.
+    const viv = sampleCurveUneven(vivianiCurve(1), 1000, 0.002, 207, 30).xyz;
+    expect(findOverlap(viv, true, 0.002, 0.001)).toBeNull();
+    expect(() => fitProfile(trace(viv), { closed: true, bootstrap: 0 })).not.toThrow();
+    // The loop traced twice is still found (the path goes round the loop between the passes).
+    const loop = sampleCurve(circleCurve(1), 300, 0.002, 3).xyz, twice = new Float64Array(2 * loop.length);
+    twice.set(loop); twice.set(sampleCurve(circleCurve(1), 300, 0.002, 4).xyz, loop.length);
+    expect(findOverlap(twice, false, 0.002, (2 * Math.PI) / 300)).not.toBeNull();
   });
 
   it("measures a robust length that ignores a wild point", () => {
