@@ -163,8 +163,9 @@ export function biasChange(qk: Float64Array, pk: Float64Array, qj: Float64Array,
  * range over 200 draws spans 10x), the level came out a decade low and its curvature error 1.7x
  * the best level's. At the top of the ladder the bias dwarfs that noise. Measured
  * (bench/families.ts, 8 families, N 200 and 1000, noise 0.2% and 1%, seeds 1-18): curvature within
- * 1.2x of the best single level 537/576 against 522/576, worst 1.75x against 2.31x; per set of 6
- * seeds 181, 175, 181 of 192 against 176, 166, 180; slope thresholds 1.2 and 1.8 gave 540 and 534.
+ * 1.2x of the best single level 535/576 against 521/576, worst 1.75x against 2.31x; per set of 6
+ * seeds 181, 174, 180 of 192 against 176, 166, 179; slope thresholds 1.2 and 1.8 gave 538 and 532
+ * (one case at 2.31x), no threshold 536 (the bump and Viviani's curve lost 4 cases on seeds 13-18).
  * Cost O(levels (K b^2 + probes (K b + M))), M scored points.
  */
 export function riskLevel(
