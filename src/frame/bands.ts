@@ -7,8 +7,8 @@ import {
   FLAG_BIAS, FLAG_END, FLAG_FRAME_TRANSPORTED, FLAG_TORSION_NOT_MEASURABLE, FLAG_TORSION_UNDEFINED,
   type Profile, type Trace,
 } from "../types.js";
-import { medianSpacing, spacingMeans } from "./spacingMean.js";
-import { bootstrapBands, kappaTauAt, type BootstrapOutput, type GridBasis } from "./bootstrap.js";
+import { medianSpacing, spacingMeans, windowGrid, windowMeans } from "./spacingMean.js";
+import { bootstrapBands, gridBasis, kappaTauAt, type BootstrapOutput, type GridBasis } from "./bootstrap.js";
 import { hypot3 } from "./hypot3.js";
 import { selectInPlace } from "./robustStart.js";
 import type { SplineBasis } from "./bspline.js";
@@ -18,7 +18,7 @@ import type { Levels } from "./levels.js";
 import { describeLength } from "./fitGuard.js";
 import type { PassesResult } from "./passes.js";
 import type { Samples, Start } from "./profile.js";
-import { solveAt } from "./smoother.js";
+import { solveAt, type SmoothFit } from "./smoother.js";
 
 /** Canonical curvature (1 / chord length) below which a wire counts as straight whatever the noise. */
 const STRAIGHT_KAPPA = 1e-6;
@@ -85,8 +85,16 @@ export function fitBands(
   const grid = lv.grid, g = grid.m;
   const bandK = solveAt(lv.kappaSmoother, lv.kappaFit.lambda / 4);
   const bandT = lv.tauFit === lv.kappaFit ? bandK : solveAt(fit.smoother, lv.tauFit.lambda / 4);
-  const boot = bootstrapBands({ C: lv.C, grid, kappaFit: bandK, tauFit: bandT, normalDims, replicates: Rb, seed: set.seed });
-  const gb = gridBands(grid, boot, Rb, lv.kappaFit.coef, lv.tauFit.coef, bandK.coef, bandT.coef);
+  const shK = new Float64Array(g), shT = new Float64Array(g);
+  let boot: BootstrapOutput;
+  if (fit.sparse) {
+    // Bands of the spacing means the samples report: replicates averaged over the same windows.
+    boot = windowedBootstrap(fit, lv, bandK, bandT, normalDims, Rb, set.seed, closed, shK, shT);
+  } else {
+    boot = bootstrapBands({ C: lv.C, grid, kappaFit: bandK, tauFit: bandT, normalDims, replicates: Rb, seed: set.seed });
+    gridShifts(grid, lv.kappaFit.coef, lv.tauFit.coef, bandK.coef, bandT.coef, shK, shT);
+  }
+  const gb = gridBands(g, boot, Rb, shK, shT);
   const gridPos = locateOnGrid(lv.gridU, sampleU, closed, basis);
   const resolutionM = lv.resolution * L0;
   // A near-interpolated sparse trace carries the spline's end effect over about three sample
@@ -174,6 +182,38 @@ function pointEstimates(basis: SplineBasis, lv: Levels, samples: Samples, canon:
 }
 
 /**
+ * The bootstrap of a sparse trace at its grid points' windows (`windowGrid`): the replicates at every
+ * window's sub-points reduced to their spacing means (`windowMeans`, the curvature-vector variance
+ * likewise), and the band fits' shifts as spacing means (into shK, shT), so the bands are those of
+ * the spacing means the samples report. Before (point-value bands around spacing means) they held
+ * the generating helix at 0.98-1.00 of samples.
+ */
+function windowedBootstrap(
+  fit: PassesResult, lv: Levels, bandK: SmoothFit, bandT: SmoothFit, normalDims: 1 | 2, Rb: number, seed: number, closed: boolean,
+  shK: Float64Array, shT: Float64Array,
+): BootstrapOutput {
+  const { basis } = fit;
+  const span = basis.nseg * basis.h, width = medianSpacing(fit.u, closed, span);
+  let lo = Infinity, hi = -Infinity;
+  for (const v of fit.u) { lo = Math.min(lo, v); hi = Math.max(hi, v); }
+  const g = lv.gridU.length;
+  // 8 sub-points: the band offsets come from the replicates' spread about their own median, which
+  // the quadrature barely moves (the estimate's 24-point means are not compared with them).
+  const win = windowGrid(basis, lv.kappaFit.coef, lv.gridU, width, lo, hi, closed, 8);
+  const raw = bootstrapBands({ C: lv.C, grid: gridBasis(basis, win.at), kappaFit: bandK, tauFit: bandT, normalDims, replicates: Rb, seed });
+  const sepTau = lv.tauFit !== lv.kappaFit;
+  const k0 = new Float64Array(g), t0 = new Float64Array(g), k1 = new Float64Array(g), t1 = new Float64Array(g);
+  spacingMeans(basis, lv.kappaFit.coef, sepTau ? lv.tauFit.coef : null, false, lv.gridU, width, lo, hi, closed, k0, t0);
+  spacingMeans(basis, bandK.coef, bandT === bandK ? null : bandT.coef, false, lv.gridU, width, lo, hi, closed, k1, t1);
+  for (let j = 0; j < g; ++j) { shK[j] = k1[j] - k0[j]; shT[j] = t1[j] - t0[j]; }
+  return {
+    kappa: windowMeans(raw.kappa, win.weight, g, win.count, Rb),
+    tau: windowMeans(raw.tau, win.weight, g, win.count, Rb),
+    curvatureVar: windowMeans(raw.curvatureVar, win.weight, g, win.count, 1),
+  };
+}
+
+/**
  * A sparse trace's kappa and tau at the samples replaced by their means over one median point
  * spacing (`spacingMeans`, clipped to the points' parameter range on an open wire); returns that
  * spacing as a length (canonical units).
@@ -230,12 +270,7 @@ interface GridBands {
  * `bandOffsets` from the replicates, and the bias ratios (the shift over the noise band's
  * half-width); torsion bands need 10 finite replicates.
  */
-function gridBands(
-  grid: GridBasis, boot: BootstrapOutput, Rb: number, kappaCoef: Float64Array, tauCoef: Float64Array, bandKCoef: Float64Array, bandTCoef: Float64Array,
-): GridBands {
-  const g = grid.m;
-  const shK = new Float64Array(g), shT = new Float64Array(g);
-  gridShifts(grid, kappaCoef, tauCoef, bandKCoef, bandTCoef, shK, shT);
+function gridBands(g: number, boot: BootstrapOutput, Rb: number, shK: Float64Array, shT: Float64Array): GridBands {
   const out: GridBands = {
     kLo: new Float64Array(g), kHi: new Float64Array(g), tLo: new Float64Array(g), tHi: new Float64Array(g),
     kBias: new Float64Array(g), tBias: new Float64Array(g),

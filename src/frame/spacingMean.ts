@@ -57,3 +57,48 @@ export function medianSpacing(u: Float64Array, closed: boolean, period: number):
   const pos = gaps.filter((g) => g > 0).sort((x, y) => x - y);
   return pos.length ? pos[pos.length >> 1] : 0;
 }
+
+/**
+ * The sub-points of the windows of `spacingMeans` (`count` per point, point-major) with their
+ * arc-length weights (the speed |r'| of `coef` there): replicates evaluated at them and reduced by
+ * `windowMeans` are the spacing means of the replicates. An empty window: its point, weight 1.
+ */
+export function windowGrid(
+  basis: SplineBasis, coef: Float64Array, u: Float64Array, width: number, lo: number, hi: number, closed: boolean, count = SUBPOINTS,
+): { at: Float64Array; weight: Float64Array; count: number } {
+  const d12 = new Float64Array(12), st = new Float64Array(1), sb = new Float64Array(24);
+  const at = new Float64Array(u.length * count), weight = new Float64Array(u.length * count);
+  for (let j = 0; j < u.length; ++j) {
+    const a = closed ? u[j] - width / 2 : Math.max(lo, u[j] - width / 2);
+    const b = closed ? u[j] + width / 2 : Math.min(hi, u[j] + width / 2);
+    for (let q = 0; q < count; ++q) {
+      const k = j * count + q;
+      if (!(b > a)) { at[k] = u[j]; weight[k] = 1; continue; }
+      at[k] = a + ((q + 0.5) * (b - a)) / count;
+      evalCurve(basis, coef, at[k], 1, d12, st, sb);
+      weight[k] = hypot3(d12[3], d12[4], d12[5]);
+    }
+  }
+  return { at, weight, count };
+}
+
+/**
+ * Weighted means over consecutive blocks of `count` values, row by row: `values` holds `rows` rows
+ * of m x count (point-major within a row); the result rows x m. Non-finite values are left out
+ * (NaN when a block has none).
+ */
+export function windowMeans(values: Float64Array, weight: Float64Array, m: number, count: number, rows: number): Float64Array {
+  const out = new Float64Array(rows * m);
+  for (let r = 0; r < rows; ++r) {
+    const base = r * m * count;
+    for (let j = 0; j < m; ++j) {
+      let s = 0, w = 0;
+      for (let q = 0; q < count; ++q) {
+        const v = values[base + j * count + q];
+        if (Number.isFinite(v)) { s += v * weight[j * count + q]; w += weight[j * count + q]; }
+      }
+      out[r * m + j] = w > 0 ? s / w : NaN;
+    }
+  }
+  return out;
+}
