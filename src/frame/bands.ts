@@ -193,9 +193,7 @@ function windowedBootstrap(
   shK: Float64Array, shT: Float64Array,
 ): BootstrapOutput {
   const { basis } = fit;
-  const span = basis.nseg * basis.h, width = medianSpacing(fit.u, closed, span);
-  let lo = Infinity, hi = -Infinity;
-  for (const v of fit.u) { lo = Math.min(lo, v); hi = Math.max(hi, v); }
+  const { width, lo, hi } = sparseWindow(fit, closed);
   const g = lv.gridU.length;
   // 8 sub-points: the band offsets come from the replicates' spread about their own median, which
   // the quadrature barely moves (the estimate's 24-point means are not compared with them).
@@ -220,12 +218,17 @@ function windowedBootstrap(
  */
 function sparseSpacingMeans(fit: PassesResult, lv: Levels, samples: Samples, closed: boolean, L0: number, est: PointEstimates): number {
   const { basis, table } = fit;
-  const span = basis.nseg * basis.h;
-  const width = medianSpacing(fit.u, closed, span);
+  const { width, lo, hi } = sparseWindow(fit, closed);
+  spacingMeans(basis, lv.kappaFit.coef, lv.tauFit === lv.kappaFit ? null : lv.tauFit.coef, lv.planarWithinNoise, samples.u, width, lo, hi, closed, est.kappa, est.tau, L0);
+  return (width * table.length) / (basis.nseg * basis.h);
+}
+
+/** A sparse trace's window: one median spacing of its points' parameters, within their range. */
+function sparseWindow(fit: PassesResult, closed: boolean): { width: number; lo: number; hi: number } {
+  const width = medianSpacing(fit.u, closed, fit.basis.nseg * fit.basis.h);
   let lo = Infinity, hi = -Infinity;
   for (const v of fit.u) { lo = Math.min(lo, v); hi = Math.max(hi, v); }
-  spacingMeans(basis, lv.kappaFit.coef, lv.tauFit === lv.kappaFit ? null : lv.tauFit.coef, lv.planarWithinNoise, samples.u, width, lo, hi, closed, est.kappa, est.tau, L0);
-  return (width * table.length) / span;
+  return { width, lo, hi };
 }
 
 /** The loop of {@link pointEstimates}; `tauCoef` null: torsion from the curvature fit; `planar`: tau = 0. */
