@@ -6,7 +6,7 @@ import { InputError } from "../errors.js";
 import { PER_METRE, type InputUnit, type Source, type Trace } from "../types.js";
 import { DEFAULT_INPUT_UNIT, type TraceReadOptions } from "./types.js";
 import { orderCloud } from "./cloud/orderCloud.js";
-import { orderStats, outOfOrder } from "./orderCheck.js";
+import { orderStats, outOfOrder, regularTurning } from "./orderCheck.js";
 
 /** Fewest distinct points a trace may have (a quintic fit needs a few more; it says so itself). */
 export const MIN_TRACE_POINTS = 4;
@@ -237,6 +237,10 @@ function checkOrder(
   const stats = orderStats(trace.xyz);
   if (!outOfOrder(stats)) return trace;
   const measured = `polyline ${stats.polylineOverTree.toFixed(0)}x its minimum spanning tree, median step ${stats.stepOverNeighbour.toFixed(0)}x the median nearest-neighbour distance; ordered traces stay below ${stats.limit.toFixed(1)}`;
+  if (regularTurning(trace.xyz)) {
+    const note = `order check: the points lie closer to other turns than to their neighbours in the file (${measured}), but they turn by nearly the same angle at every point (a coarse spiral or coil): kept in file order`;
+    return { ...trace, diagnostics: [note, ...trace.diagnostics] };
+  }
   let why: string;
   try {
     const r = orderCloud(trace.xyz, file, { unit, ...(pixelSize !== undefined ? { pixelSize } : {}), ...(trace.closed !== undefined ? { closed: trace.closed } : {}), dims: trace.dims });
