@@ -257,3 +257,27 @@ describe("sparse helices inside densely sampled traces", () => {
     expect(MIXED_SAMPLING_LIMIT).toBe(2);
   });
 });
+
+describe("coarse traces whose noise estimate is their shape", () => {
+  it("near-interpolates a noise-free coil traced at 8 points per turn (smoothed, curvature +22%, torsion 30x the curvature)", () => {
+    // Coil of radius 20 nm rising 1 nm per turn, 120 points at 45 degrees: helix kappa = R/(R^2+c^2),
+    // tau = c/(R^2+c^2) (do Carmo 1976, sec. 1-5). Its local-cubic "noise", 2.5 nm, was the shape.
+    const R = 20, c = 1 / (2 * Math.PI), xyz = new Float64Array(360);
+    for (let i = 0; i < 120; ++i) { const t = (i * 2 * Math.PI) / 8; xyz.set([R * Math.cos(t) * 1e-9, R * Math.sin(t) * 1e-9, c * t * 1e-9], 3 * i); }
+    const p = fitProfile({ xyz, dims: 3, source: { file: "coil.csv", unit: "nm" }, diagnostics: [] }, { bootstrap: 0 });
+    expect(p.diagnostics.some((d) => /^sparse trace: the smoothing fit ran inside the points by 1\.\d\d of its noise estimate on average/.test(d))).toBe(true);
+    const k0 = R / (R * R + c * c), t0 = c / (R * R + c * c);
+    for (const j of interior(p)) {
+      expect(Math.abs((p.kappa[j] * 1e-9) / k0 - 1)).toBeLessThan(0.01); // measured 0.0%
+      expect(Math.abs((p.tau[j] * 1e-9) / t0 - 1)).toBeLessThan(0.05);
+    }
+  });
+
+  it("leaves noisy dense traces on the smoothing path (their misfit stays near 0)", () => {
+    for (const [N, noise] of [[200, 0.002], [200, 0.01], [1000, 0.01]] as const) {
+      const { xyz } = sampleCurveUneven(helixCurve(1, 0.4, 4), N, noise, 107);
+      const p = fitProfile({ xyz, dims: 3, source: { file: "h.csv", unit: "m" }, diagnostics: [] }, { bootstrap: 0 });
+      expect(p.diagnostics.some((d) => d.startsWith("sparse trace"))).toBe(false);
+    }
+  });
+});
