@@ -726,7 +726,6 @@ function rmsRadius(y: Float64Array): number {
   return Math.sqrt(s2 / n);
 }
 
-/** Number of steps between indices a and b (the shorter way round on a ring). */
 /**
  * Whether the trace between points a and b (the shorter way round on a ring) goes farther than
  * `away` from p_a, looking at every `stride`-th point.
@@ -740,6 +739,7 @@ function pathLeaves(y: Float64Array, closed: boolean, a: number, b: number, away
   return false;
 }
 
+/** Number of steps between indices a and b (the shorter way round on a ring). */
 function indexGap(n: number, closed: boolean, a: number, b: number): number {
   const d = Math.abs(a - b);
   return closed ? Math.min(d, n - d) : d;
