@@ -51,6 +51,12 @@ export const MAX_HELICAL_CHORD_TURN = 2.5;
  * stay within 1.6x of their neighbours'.
  */
 export const SPARSE_GAP_LIMIT = 3;
+/**
+ * The same for the closing chord of a closed sparse trace: the ends of an open 8-atom alpha helix
+ * forced closed are 2.75 steps apart (within the 5 median steps a dense trace's seam may miss) and
+ * were joined by an invented arc, torsion -0.33/A at the ends for 0.14/A, unflagged.
+ */
+export const SPARSE_CLOSING_LIMIT = 2;
 
 /** Lengths of the chords between consecutive points (with the closing chord when closed). */
 function chordSteps(y: Float64Array, closed: boolean): Float64Array {
@@ -62,7 +68,8 @@ function chordSteps(y: Float64Array, closed: boolean): Float64Array {
 
 /**
  * Refuses a sparse trace with a gap: a step more than SPARSE_GAP_LIMIT times the median of the
- * steps around it (4 on each side, wrapping on a closed wire), naming the points on either side.
+ * steps around it (4 on each side, wrapping on a closed wire), naming the points on either side;
+ * on a closed wire, a closing chord more than SPARSE_CLOSING_LIMIT times the steps around it.
  */
 export function checkSparseGaps(y: Float64Array, closed: boolean, file: string, name: (i: number) => string, say: (d: number) => string): void {
   const n = y.length / 3, step = chordSteps(y, closed), m = step.length;
@@ -79,6 +86,10 @@ export function checkSparseGaps(y: Float64Array, closed: boolean, file: string, 
     around.sort((a, b) => a - b);
     const med = around.length % 2 ? around[around.length >> 1] : 0.5 * (around[around.length / 2 - 1] + around[around.length / 2]);
     const r = med > 0 ? step[i] / med : 0;
+    if (closed && i === m - 1 && r > SPARSE_CLOSING_LIMIT) {
+      throw new InputError(file, null, "closed",
+        `the wire was declared closed but its ends are ${say(step[i])} apart, ${r.toFixed(1)}x the steps around them: a sparse trace's closing chord must be a step like the others (near-interpolation would invent the wire between its ends); fit it open (--open), or give a trace whose ends meet`);
+    }
     if (r > worstRatio) { worstRatio = r; worst = i; }
   }
   if (worstRatio > SPARSE_GAP_LIMIT) {

@@ -1,5 +1,5 @@
 import { describe, expect, it } from "vitest";
-import { checkMixedSampling, checkSparseGaps, checkSparseLength, chordTurn, MIXED_SAMPLING_LIMIT, dihedralConcentration, SPARSE_GAP_LIMIT, sparseHelicalWindow } from "../../src/frame/passes.js";
+import { checkMixedSampling, checkSparseGaps, checkSparseLength, chordTurn, MIXED_SAMPLING_LIMIT, dihedralConcentration, SPARSE_CLOSING_LIMIT, SPARSE_GAP_LIMIT, sparseHelicalWindow } from "../../src/frame/passes.js";
 import { fitProfile } from "../../src/frame/profile.js";
 import { FLAG_END, type Profile, type Trace } from "../../src/types.js";
 import { normalStream } from "../support/rng.js";
@@ -210,11 +210,27 @@ describe("sparse traces: gaps and loops refused", () => {
     // Measured worst step over its neighbours' median: 1.38 on the molecule and trust benches.
     const say = (d: number) => `${d.toFixed(2)} A`, name = (i: number) => `point ${i + 1}`;
     for (let seed = 1; seed <= 5; ++seed) expect(() => checkSparseGaps(helixPoints(30, R, c, dphi, 0.3, seed), false, "h.xyz", name, say)).not.toThrow();
-    // A closed 12-gon whose closing side spans 1.6 rad, the others 0.43 (3.7x): that side is named.
+    // A closed 12-gon whose closing side spans 1.6 rad, the others 0.43 (3.4x the chords around it): the closure is refused.
     const ring = new Float64Array(36);
     for (let i = 0; i < 12; ++i) { const t = (i / 11) * (2 * Math.PI - 1.6); ring.set([10 * Math.cos(t), 10 * Math.sin(t), 0], 3 * i); }
-    expect(() => checkSparseGaps(ring, true, "r.xyz", name, say)).toThrow(/between point 12 and point 1, /);
+    expect(() => checkSparseGaps(ring, true, "r.xyz", name, say)).toThrow(/^r\.xyz: closed: the wire was declared closed but its ends are 14\.35 A apart, 3\.4x the steps around them/);
+    // The same ring read from its 6th point on: the wide side is now between points 6 and 7, named.
+    const rolled = new Float64Array(36);
+    for (let i = 0; i < 12; ++i) rolled.set(ring.subarray(3 * ((i + 6) % 12), 3 * ((i + 6) % 12) + 3), 3 * i);
+    expect(() => checkSparseGaps(rolled, true, "r.xyz", name, say)).toThrow(/gap in a sparse trace: 14\.35 A between point 6 and point 7, 3\.4x/);
     expect(SPARSE_GAP_LIMIT).toBe(3);
+  });
+
+  it("refuses --closed on an open 8-atom helix (ends 2.75 steps apart: joined by an invented arc), not on a closed ring of atoms", () => {
+    const xyz = helixPoints(8, R, c, dphi).map((v) => v * 1e-10);
+    expect(() => fitProfile(trace(xyz), { bootstrap: 0, closed: true })).toThrow(
+      /^h\.xyz: closed: the wire was declared closed but its ends are 10\.5 A apart, 2\.7x the steps around them: a sparse trace's closing chord must be a step like the others \(near-interpolation would invent the wire between its ends\); fit it open \(--open\), or give a trace whose ends meet$/);
+    // An 8-point ring of radius 10 (curvature 0.1: elementary geometry), closed: kept and exact.
+    const ring = new Float64Array(24);
+    for (let i = 0; i < 8; ++i) ring.set([10e-10 * Math.cos((i * Math.PI) / 4), 10e-10 * Math.sin((i * Math.PI) / 4), 0], 3 * i);
+    const p = fitProfile(trace(ring), { bootstrap: 0, closed: true });
+    for (let j = 0; j < 8; ++j) expect(p.kappa[j] * 1e-10).toBeCloseTo(0.1, 4);
+    expect(SPARSE_CLOSING_LIMIT).toBe(2);
   });
 
   it("refuses a fit that loops between the points (length over the polyline above 1.6)", () => {
