@@ -4,7 +4,7 @@ import { fitBands } from "./bands.js";
 import { arcAt, uAtArc, type ArcTable } from "./curve.js";
 import { checkClosable, describeLength, GAP_LIMIT } from "./fitGuard.js";
 import { detectClosed } from "./detectClosed.js";
-import { chordTurn, COARSE_CHORD_TURN, MAX_SPARSE_POINTS, NORMAL_MISFIT_LIMIT, normalMisfit, runPasses, type PassesResult } from "./passes.js";
+import { chordTurn, COARSE_CHORD_TURN, MAX_SPARSE_POINTS, NORMAL_MISFIT_LIMIT, normalMisfit, runPasses, zigzags, type PassesResult } from "./passes.js";
 export { segmentCount } from "./passes.js";
 import { differenceNoise, findOverlap, findRetrace, selfWindow, grossOutliers, medianOf, referenceLength, startParameter, stepLengths, toCanonical, type CanonicalTrace } from "./robustStart.js";
 import { chooseLevels, curvatureLevel } from "./levels.js";
@@ -273,7 +273,7 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
     // A coarse trace whose smoothing fit runs inside its points by more than the noise estimate:
     // that "noise" is the shape the few points per turn leave between them; near-interpolate it.
     const misfit = normalMisfit(fit, start.canon.y), chords = chordTurn(start.canon.y, start.closed);
-    if (misfit < NORMAL_MISFIT_LIMIT && chords > COARSE_CHORD_TURN) {
+    if (misfit < NORMAL_MISFIT_LIMIT && chords > COARSE_CHORD_TURN && !zigzags(start.canon.y)) {
       fit = runPasses(trace, start, { ...set, forceSparse: `the smoothing fit ran inside the points by ${(-misfit).toFixed(2)} of its noise estimate on average, which was the shape between points a coarse trace leaves (chords turning by ${chords.toFixed(2)} rad at the median)` }, diagnostics);
     }
   }

@@ -1,7 +1,7 @@
 import { describe, expect, it } from "vitest";
-import { checkMixedSampling, checkSparseGaps, checkSparseLength, chordTurn, MIXED_SAMPLING_LIMIT, dihedralConcentration, SPARSE_CLOSING_LIMIT, SPARSE_GAP_LIMIT, sparseHelicalWindow } from "../../src/frame/passes.js";
+import { checkMixedSampling, checkSparseGaps, checkSparseLength, chordTurn, MIXED_SAMPLING_LIMIT, dihedralConcentration, SPARSE_CLOSING_LIMIT, SPARSE_GAP_LIMIT, sparseHelicalWindow, ZIGZAG_DIHEDRAL_COS, zigzags } from "../../src/frame/passes.js";
 import { fitProfile } from "../../src/frame/profile.js";
-import { FLAG_END, type Profile, type Trace } from "../../src/types.js";
+import { FLAG_END, FLAG_TORSION_UNDEFINED, type Profile, type Trace } from "../../src/types.js";
 import { normalStream } from "../support/rng.js";
 import { helixCurve, sampleCurveUneven } from "../support/curves.js";
 
@@ -295,5 +295,67 @@ describe("coarse traces whose noise estimate is their shape", () => {
       const p = fitProfile({ xyz, dims: 3, source: { file: "h.csv", unit: "m" }, diagnostics: [] }, { bootstrap: 0 });
       expect(p.diagnostics.some((d) => d.startsWith("sparse trace"))).toBe(false);
     }
+  });
+});
+
+/**
+ * Pixel chain of the curve f on [t0, t1]: f rounded to whole pixels at fine parameter steps,
+ * repeats dropped; `four` inserts the corner pixel of every diagonal move (4-connected chain, as a
+ * skeletonised micrograph gives). Invented test data.
+ */
+function pixelChain(f: (t: number) => [number, number], t0: number, t1: number, four: boolean, scale = 1): Float64Array {
+  const pts: number[][] = [];
+  for (let i = 0; i <= 40000; ++i) {
+    const [x, y] = f(t0 + ((t1 - t0) * i) / 40000).map((v) => Math.round(v * scale) / scale);
+    const q = pts[pts.length - 1];
+    if (q && q[0] === x && q[1] === y) continue;
+    if (four && q && q[0] !== x && q[1] !== y) pts.push([x, q[1]]);
+    pts.push([x, y]);
+  }
+  return Float64Array.from(pts.flatMap(([x, y]) => [x * 1e-9, y * 1e-9, 0]));
+}
+
+describe("pixel and voxel chains are dense traces, not sparse ones", () => {
+  const px = (xyz: Float64Array, dims: 2 | 3): Trace => ({ xyz, dims, source: { file: "skeleton.csv", unit: "nm" }, diagnostics: [] });
+
+  it("zigzags: a 4-connected chain's turns reverse (mean dihedral cosine -1); helices and rings twist one way", () => {
+    expect(zigzags(pixelChain((t) => [150 * Math.cos(t), 150 * Math.sin(t)], 0, 1.5 * Math.PI, true))).toBe(true);
+    // Ideal helices with textbook geometries (from memory, as bench/molecules.ts): radius A, rise A, degrees per point.
+    for (const [R, rise, deg] of [[2.3, 1.5, 100], [1.9, 2.0, 120], [2.8, 1.15, 87], [1.6, 3.1, -120]]) {
+      const dphi = (deg * Math.PI) / 180;
+      expect(zigzags(helixPoints(20, R, rise / dphi, dphi))).toBe(false);
+    }
+    expect(zigzags(helixPoints(12, 1, 0, (2 * Math.PI) / 8))).toBe(false); // a planar octagon: dihedral 0
+    expect(ZIGZAG_DIHEDRAL_COS).toBe(-0.7);
+  });
+
+  it("smooths a 4-connected pixel arc of radius 150 px (near-interpolated: curvature 2/px for 0.0067/px, 1.34x its length, exit 0)", () => {
+    // Circle: kappa = 1/R (textbook). Pixel size 1 nm.
+    const R = 150, xyz = pixelChain((t) => [R * Math.cos(t), R * Math.sin(t)], 0, 1.5 * Math.PI, true);
+    for (const dims of [2, 3] as const) {
+      const p = fitProfile(px(xyz, dims), { bootstrap: 0 });
+      expect(isSparse(p)).toBe(false);
+      expect(Math.abs(p.length / (1.5 * Math.PI * R * 1e-9) - 1)).toBeLessThan(0.01); // measured +0.1%
+      let worst = 0;
+      for (const j of interior(p)) worst = Math.max(worst, Math.abs((p.kappa[j] * 1e-9 * R) - 1));
+      expect(worst).toBeLessThan(0.03); // measured 0.34% (2-D), 0.28% (3-D)
+    }
+  });
+
+  it("reads a digitised straight line (4-connected, slope 2/5) as straight: curvature near 0, torsion undefined", () => {
+    const xyz = pixelChain((t) => [t, 0.4 * t], 0, 200, true);
+    const p = fitProfile(px(xyz, 2), { bootstrap: 0 });
+    expect(isSparse(p)).toBe(false);
+    for (let j = 0; j < p.n; ++j) {
+      expect(p.kappa[j] * 1e-9 * 200).toBeLessThan(0.05); // measured 0.001: a radius of curvature of 1000 lengths of the line
+      expect(p.flags[j] & FLAG_TORSION_UNDEFINED).toBe(FLAG_TORSION_UNDEFINED);
+    }
+  });
+
+  it("does not take a dense arc rounded to 0.1 px (8000 points, lattice steps) for a sparse helix inside a long trace", () => {
+    const R = 150, xyz = pixelChain((t) => [R * Math.cos(t), R * Math.sin(t)], 0, 1.5 * Math.PI, false, 10);
+    expect(xyz.length / 3).toBeGreaterThan(2000);
+    const p = fitProfile(px(xyz, 2), { bootstrap: 0 });
+    for (const j of interior(p)) expect(Math.abs(p.kappa[j] * 1e-9 * R - 1)).toBeLessThan(0.03); // measured 0.12% at worst
   });
 });
