@@ -12,7 +12,9 @@ export function describeLength(metres: number, source: Source): string {
   const [value, unit] = source.unit === "px"
     ? [metres / (source.pixelSize ?? 1), "px"]
     : [metres * PER_METRE[source.unit], source.unit];
-  return `${Number(value.toPrecision(3))} ${unit}`;
+  const v = Number(value.toPrecision(3));
+  // Exponent form from a million on (1e17 nm, not 100000000000000000 nm).
+  return `${Math.abs(v) >= 1e6 ? v.toExponential(2).replace(/\.?0+e/, "e") : v} ${unit}`;
 }
 
 /**

@@ -127,6 +127,13 @@ export function robustStart(trace: Trace, options: ProfileOptions, diagnostics: 
   // The step lengths of all points serve the outlier screen and, when it drops none, the gap check.
   const allSteps = stepLengths(all.y);
   const allMedianStep = medianOf(allSteps);
+  // Doubles keep about 16 digits: far enough from the origin their rounding exceeds the steps
+  // between points (a 100 nm helix at x = 1e17 nm, steps 3 nm, rounded to 15 nm: curvature -12%,
+  // bands holding the truth at half the samples, exit 0).
+  const maxAbs = largestMagnitude(trace.xyz);
+  if (Number.EPSILON * maxAbs > allMedianStep * all.scale) {
+    throw new InputError(file, null, "points", `coordinates reach ${describeLength(maxAbs, trace.source)} from the origin, where numbers carry about 16 digits and are rounded by up to ${describeLength(0.5 * Number.EPSILON * maxAbs, trace.source)}, more than half the median step between points (${describeLength(allMedianStep * all.scale, trace.source)}): subtract an offset (the first point, say) from every point`);
+  }
   const keepMask = grossOutliers(all.y, declaredClosed === true, allMedianStep);
   const { kept, dropped } = splitKept(keepMask);
   if (kept.length < 6) throw new InputError(file, null, "points", `need at least 6 points for a quintic fit after leaving out ${dropped.length} gross outliers, got ${kept.length}`);
@@ -173,10 +180,12 @@ export function robustStart(trace: Trace, options: ProfileOptions, diagnostics: 
     throw new InputError(file, null, "points",
       `the trace runs along the same path twice: ${a} to ${b} and ${c} to ${d} lie within ${describeLength(again.within * canon.scale, trace.source)} of each other with no offset between them; a wire cannot pass through itself (and turns of a coil closer than the noise cannot be told apart): remove the repeated rows or split the file there`);
   }
-  // Noise floor: coordinates carry finitely many digits (1e-9 of the largest, below any text file);
-  // a mesh centre line carries the tessellation's ripple, a fraction of the radius spread.
-  const maxAbs = largestMagnitude(trace.xyz);
-  let floor = (1e-9 * maxAbs) / canon.scale;
+  // Noise floor: coordinates carry finitely many digits (1e-9 of the wire's extent about its centre,
+  // below any text file, plus the rounding of the largest coordinate to a double, rms at most a quarter of its epsilon,
+  // stop); a mesh centre line carries the tessellation's ripple, a fraction of the radius spread.
+  // Not 1e-9 of the largest coordinate: far from the origin that floor exceeded the noise (a 20 nm
+  // helix with 0.1 nm of noise at x = 1e10 nm: noise 10 nm, length -41%, exit 0).
+  let floor = 1e-9 * largestMagnitude(y) + (0.25 * Number.EPSILON * maxAbs) / canon.scale;
   if (trace.radiusSpread && trace.radiusSpread.length > 0) floor = Math.max(floor, (0.25 * medianOf(trace.radiusSpread)) / canon.scale);
   return {
     canon, kept, dropped, closed, u, span, referenceLength: referenceLength(y, closed), medianStep,

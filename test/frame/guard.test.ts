@@ -202,6 +202,17 @@ describe("robust start", () => {
 });
 
 describe("never a silent wrong answer", () => {
+  it("refuses coordinates so far from the origin that doubles round them by more than half a step", () => {
+    // 1e8 m: a double's spacing there is 2^-26 m = 14.9 nm (IEEE 754 binary64), over the 2 nm steps;
+    // the 780 nm helix came out with curvature -12% and bands holding it at half the samples, exit 0.
+    const far = clean.map((v, i) => (i % 3 === 0 ? v + 1e8 : v));
+    expect(() => fitProfile(trace(far), { bootstrap: 0 })).toThrow(
+      "w.csv: points: coordinates reach 1e+17 nm from the origin, where numbers carry about 16 digits and are rounded by up to 11.1 nm, more than half the median step between points (2.19 nm): subtract an offset (the first point, say) from every point");
+    // 1e6 m (1e15 nm) still fits: rounded by 0.11 nm.
+    const near = clean.map((v, i) => (i % 3 === 0 ? v + 1e6 : v));
+    expect(interiorMedian(fitProfile(trace(near), { bootstrap: 0 }), "kappa") / k0).toBeCloseTo(1, 2);
+  });
+
   it("fits a helix with one stray point 100 nm to 5 um off like its clean twin, and names the row", () => {
     const ref = fitProfile(trace(clean), { bootstrap: 0 });
     for (const off of [100e-9, 1000e-9, 5000e-9]) {

@@ -121,6 +121,21 @@ describe("fitProfile: invariances (property tests, fixed seeds)", () => {
     }
   });
 
+  it("is unchanged by a translation far from the origin (1e4, 1e6 and 1e7 times the wire's size)", () => {
+    // The noise floor was 1e-9 of the largest coordinate: at 1e7 sizes (a 20 nm helix at 1e10 nm)
+    // it took 10 nm for 0.1 nm of noise, the length came out 41% short, exit 0.
+    for (const off of [1e-2, 1, 1e1]) {
+      const moved = xyz.map((v, i) => (i % 3 === 0 ? v + off : v));
+      const p = fitProfile(trace(moved), { bootstrap: 0 });
+      expect(Math.abs(p.sigma / base.sigma - 1)).toBeLessThan(1e-3); // measured < 1e-6
+      expect(Math.abs(p.length / base.length - 1)).toBeLessThan(1e-4);
+      for (let j = 0; j < p.n; ++j) {
+        expect(Math.abs(p.kappa[j] - base.kappa[j]) * R).toBeLessThan(1e-4);
+        expect(Math.abs(p.tau[j] - base.tau[j]) * R).toBeLessThan(1e-3);
+      }
+    }
+  });
+
   it("scaling the curve by 1000 divides kappa and tau by 1000", () => {
     const p = fitProfile(trace(xyz.map((v) => v * 1000)), { bootstrap: 0 });
     for (let j = 0; j < p.n; ++j) {
