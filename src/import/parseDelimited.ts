@@ -82,15 +82,33 @@ function readHeader(fields: readonly string[], file: string, line: number): Head
     columns[axis] = c;
   }
   for (const axis of [0, 1] as const) {
-    if (columns[axis] < 0) {
-      const names = fields.map(unquote).join(", ");
-      throw new InputError(file, line, "header", `no column named "${AXES[axis]}" (columns: ${names})`);
-    }
+    if (columns[axis] < 0) throw new InputError(file, line, "header", missingAxisProblem(fields.map(unquote), AXES[axis]));
   }
   const header: { line: number; width: number; columns: [number, number, number]; ignored: string[]; unit?: InputUnit } =
     { line, width: fields.length, columns, ignored };
   if (unit !== undefined) header.unit = unit;
   return header;
+}
+
+/**
+ * Why the header has no column for `axis`, saying what it most likely meant: a column named after
+ * the axis with a unit suffix that is not a unit (`x_mm`), or a header that is one column holding
+ * another separator (`x;y;z`); else the columns it has.
+ */
+function missingAxisProblem(names: readonly string[], axis: string): string {
+  for (const name of names) {
+    const m = /^([xyz])[_/](.+)$/i.exec(name);
+    if (m && m[1].toLowerCase() === axis) {
+      return `no column named "${axis}": column "${name}" has the unknown unit ${JSON.stringify(m[2])} (expected one of ${INPUT_UNITS.join(", ")})`;
+    }
+  }
+  if (names.length === 1) {
+    const sep = [";", "|", ":"].find((c) => names[0].includes(c));
+    if (sep !== undefined) {
+      return `no column named "${axis}": the header is one column, ${JSON.stringify(names[0])}; "${sep}" does not separate fields (use commas, tabs or spaces)`;
+    }
+  }
+  return `no column named "${axis}" (columns: ${names.join(", ")})`;
 }
 
 function isHeader(fields: readonly string[]): boolean {

@@ -132,6 +132,18 @@ describe("parseDelimited(text, file, options)", () => {
     );
   });
 
+  it("names the likely cause when x is missing: a unit suffix that is not a unit, a separator that is not one", () => {
+    // Both had been refused as 'no column named "x"', naming neither the unit nor the separator.
+    expect(errorOf(() => parseDelimited("x_mm,y_mm,z_mm\n0,0,0\n", "h.csv"))).toBe(
+      'h.csv:1: header: no column named "x": column "x_mm" has the unknown unit "mm" (expected one of m, um, nm, A, px)',
+    );
+    expect(errorOf(() => parseDelimited("x;y;z\n0;0;0\n", "h.csv"))).toBe(
+      'h.csv:1: header: no column named "x": the header is one column, "x;y;z"; ";" does not separate fields (use commas, tabs or spaces)',
+    );
+    // Other suffixed columns beside the axes are still ignored (x_err next to x).
+    expect(parseDelimited("x,y,x_err\n0,0,1\n1,0,1\n2,1,1\n3,3,1\n", "h.csv").xyz.length).toBe(12);
+  });
+
   it("reports a truncated last line as a wrong count or a bad number", () => {
     expect(errorOf(() => parseDelimited("0,0,0\n1,0,0\n1,1,0\n0,1", "t.csv"))).toBe("t.csv:4: point: expected 3 values, got 2");
     expect(errorOf(() => parseDelimited("0,0,0\n1,0,0\n1,1,0\n0,1,1e-", "t.csv"))).toBe('t.csv:4: z: not a finite number: "1e-"');
