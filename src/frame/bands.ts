@@ -12,9 +12,9 @@ import { bootstrapBands, gridBasis, kappaTauAt, type BootstrapOutput, type GridB
 import { hypot3 } from "./hypot3.js";
 import { selectInPlace } from "./robustStart.js";
 import type { SplineBasis } from "./bspline.js";
-import { evalCurve, kappaTau } from "./curve.js";
+import { arcAt, evalCurve, kappaTau, type ArcTable } from "./curve.js";
 import { frames } from "./frames.js";
-import type { Levels } from "./levels.js";
+import { inKinkZone, type Levels } from "./levels.js";
 import { describeLength } from "./fitGuard.js";
 import type { PassesResult } from "./passes.js";
 import type { Samples, Start } from "./profile.js";
@@ -108,6 +108,8 @@ export function fitBands(
     closed, endZone, lengthM: length * L0,
   });
   const { kappaLo, kappaHi, tauLo, tauHi, straightCount } = bands;
+  // At a kink the fit bridges its points and the resolution length beyond them: biased there.
+  if (lv.kinkZones.length > 0) flagKinkZones(flags, table, sampleU, lv.kinkZones, closed, lv.resolution);
   const resolvedMask = torsionMask(flags);
   const fr = frames(r1, kv, resolvedMask, closed);
   markTransported(fr.transported, flags);
@@ -465,6 +467,13 @@ function countSet(mask: Uint8Array): number {
 }
 
 /** Samples flagged biased and not at an end. */
+/** Sets FLAG_BIAS on samples in a kink's bridged stretch or within `margin` (arc length) of it. */
+function flagKinkZones(flags: Uint8Array, table: ArcTable, sampleU: Float64Array, zones: Float64Array, closed: boolean, margin: number): void {
+  for (let j = 0; j < flags.length; ++j) {
+    if (inKinkZone(arcAt(table, sampleU[j], closed), zones, margin, closed, table.length)) flags[j] |= FLAG_BIAS;
+  }
+}
+
 function countBiased(flags: Uint8Array): number {
   let c = 0;
   for (let j = 0; j < flags.length; ++j) if (flags[j] & FLAG_BIAS && !(flags[j] & FLAG_END)) ++c;

@@ -5,6 +5,8 @@
 import { InputError } from "../errors.js";
 import type { Trace } from "../types.js";
 import { gridBasis, rhsNoiseFactor, type GridBasis } from "./bootstrap.js";
+import { KINK_BRIDGE_WINDOWS } from "./passes.js";
+import type { Kink } from "./kinks.js";
 import type { SplineBasis } from "./bspline.js";
 import { arcAt, evalCurve, kappaTau } from "./curve.js";
 import { describeLength } from "./fitGuard.js";
@@ -34,6 +36,8 @@ export interface Levels {
   readonly gridS: Float64Array;
   /** The smoother of the curvature fit (its penalty varies along the wire when adaptive). */
   readonly kappaSmoother: Smoother;
+  /** Stretches the fit bridges at kinks (`kinkZones`: triples of arc length, reach back, reach on). */
+  readonly kinkZones: Float64Array;
 }
 
 /** Outcome of the curvature level rule. */
@@ -60,7 +64,7 @@ export interface CurvatureLevel {
  */
 export function curvatureLevel(
   trace: Trace, start: Start, fit: PassesResult, seed: number,
-  options: { down?: number; up?: number } = {},
+  options: { down?: number; up?: number; kinks?: readonly Kink[] } = {},
 ): CurvatureLevel {
   const { basis, smoother, sel, table, u, w } = fit;
   const down = options.down ?? 1, up = options.up ?? 2;
@@ -72,9 +76,10 @@ export function curvatureLevel(
   const count = Math.min(600, Math.max(64, Math.ceil((10 * length) / resolution)));
   const gridU = uniformGrid(basis, count, closed);
   const interior = new Uint8Array(gridU.length);
+  const zones = kinkZones(fit, options.kinks ?? [], closed);
   for (let j = 0; j < gridU.length; ++j) {
     const sj = arcAt(table, gridU[j], closed);
-    interior[j] = closed || (sj > resolution && sj < length - resolution) ? 1 : 0;
+    interior[j] = (closed || (sj > resolution && sj < length - resolution)) && !inKinkZone(sj, zones, KINK_ZONE * resolution, closed, length) ? 1 : 0;
   }
   const pilot = solveAt(smoother, sel.fit.lambda * Math.pow(10, -down));
   const r = riskLevel(smoother, pilot, C, gridBasis(basis, gridU), interior, seed ^ 0x3c6ef372, { quantity: 0, maxDecades: down + up });
@@ -140,6 +145,7 @@ function interpolate(x: Float64Array, v: Float64Array, t: number): number {
 export function chooseLevels(
   trace: Trace, start: Start, fit: PassesResult, samples: Samples,
   set: { readonly lambda?: number; readonly seed: number; readonly torsionBalance: number; readonly adaptive: boolean}, diagnostics: string[],
+  kinks: readonly Kink[] = [],
 ): Levels {
   const { basis, smoother, sel, table, u, w } = fit;
   const closed = start.closed;
@@ -161,6 +167,7 @@ export function chooseLevels(
   const grid = gridBasis(basis, gridU);
   const gridS = new Float64Array(grid.m);
   for (let j = 0; j < grid.m; ++j) gridS[j] = arcAt(table, gridU[j], closed);
+  const zones = kinkZones(fit, kinks, closed);
   const planarWithinNoise = trace.dims === 3 && !trace.planarProjection && outOfPlaneVariance(y, w) <= sel.sigma * sel.sigma * (1 + 4 * Math.sqrt(2 / n));
   if (planarWithinNoise) diagnostics.push("planar within the noise (out-of-plane spread not above the noise): torsion reported as 0 with its noise band");
   let tauFit = kappaFit, tauFactor = 1;
@@ -170,7 +177,7 @@ export function chooseLevels(
     const at: number[] = [];
     for (let j = 0; j < grid.m; j += stride) at.push(j);
     const sub = stride === 1 ? grid : gridBasis(basis, Float64Array.from(at, (j) => gridU[j]));
-    const interior = Uint8Array.from(at, (j) => (closed || (gridS[j] > resolution && gridS[j] < length - resolution) ? 1 : 0));
+    const interior = Uint8Array.from(at, (j) => ((closed || (gridS[j] > resolution && gridS[j] < length - resolution)) && !inKinkZone(gridS[j], zones, KINK_ZONE * resolution, closed, length) ? 1 : 0));
     const b = balancedLevel(smoother, kappaFit, C, sub, interior, set.seed, { c: set.torsionBalance });
     tauFit = b.fit;
     tauFactor = b.factorOfPilot;
@@ -199,7 +206,45 @@ export function chooseLevels(
       diagnostics.push(`curvature: spatially adaptive smoothing, from ${Math.pow(10, f[0]).toPrecision(2)}x to ${Math.pow(10, f[f.length - 1]).toPrecision(2)}x the discrepancy level along the wire (median ${Math.pow(10, f[f.length >> 1]).toPrecision(2)}x)`);
     }
   }
-  return { kappaFit: kappaOut, kappaSmoother, tauFit, tauFactor, planarWithinNoise, resolution, C, grid, gridU, gridS };
+  return { kappaFit: kappaOut, kappaSmoother, tauFit, tauFactor, planarWithinNoise, resolution, C, grid, gridU, gridS, kinkZones: zones };
+}
+
+/**
+ * Half-width of the stretch around a kink left out of the level rules' scores, in resolution
+ * lengths of the fit they start from (the ladders reach two decades above it, 1.8x its resolution).
+ */
+export const KINK_ZONE = 2.5;
+
+/**
+ * The stretch the fit bridges at each kink (KINK_BRIDGE_WINDOWS windows either side, left out of the
+ * passes): triples (arc length of the kink's foot point, arc length back to the first bridged point,
+ * arc length on to the last), from the domain start.
+ */
+function kinkZones(fit: PassesResult, kinks: readonly Kink[], closed: boolean): Float64Array {
+  const n = fit.u.length, length = fit.table.length, out = new Float64Array(3 * kinks.length);
+  const arc = (i: number) => arcAt(fit.table, fit.u[closed ? ((i % n) + n) % n : Math.min(n - 1, Math.max(0, i))], closed);
+  kinks.forEach((k, z) => {
+    const c = arc(k.at);
+    const b = KINK_BRIDGE_WINDOWS * k.window;
+    const back = c - arc(k.at - b), on = arc(k.at + b) - c;
+    out[3 * z] = c;
+    out[3 * z + 1] = closed ? back - Math.floor(back / length) * length : Math.max(0, back);
+    out[3 * z + 2] = closed ? on - Math.floor(on / length) * length : Math.max(0, on);
+  });
+  return out;
+}
+
+/**
+ * Whether arc length s lies in a kink's bridged stretch widened by `margin` either side (signed
+ * offsets taken the short way round a ring of `length`).
+ */
+export function inKinkZone(s: number, zones: Float64Array, margin: number, closed: boolean, length: number): boolean {
+  for (let z = 0; z < zones.length; z += 3) {
+    let d = s - zones[z];
+    if (closed) d -= Math.round(d / length) * length;
+    if (d >= -zones[z + 1] - margin && d <= zones[z + 2] + margin) return true;
+  }
+  return false;
 }
 
 /** Total turning angle of the fitted curve, the integral of kappa ds (200-point midpoint rule). */

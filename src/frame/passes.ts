@@ -13,6 +13,7 @@ import { hypot3 } from "./hypot3.js";
 import { medianOf, stepLengths } from "./robustStart.js";
 import { lambdaForWavelength, makeSmoother, selectSmoothing, wavelengthForLambda, type Selection, type Smoother } from "./smoother.js";
 import type { Start } from "./profile.js";
+import type { Kink } from "./kinks.js";
 import { continuedFit, CONTINUED_MAX_POINTS } from "./endContinuation.js";
 
 const MAX_SEGMENTS = 5_000;
@@ -180,6 +181,36 @@ function projectFootPoints(
   }
 }
 
+/**
+ * Points left out of the fit either side of a kink: the doubled window over which `findKinks` saw
+ * the turn (2 x its window). Measured on an arc of radius 300 nm (2 nm steps, 0.2 nm of noise) with a 30
+ * (60) degree kink, median curvature error beyond 80 nm of the kink: 32% (55%) with no point left
+ * out, 12% (14%) with 8 either side, 7% (10%) with 16, 4% (2%) with 32; widening the bridge to one
+ * resolution length after each pass over-smoothed a kinked helix (resolution 252 nm for a 126 nm
+ * pitch, bands holding the truth at a third of the samples) and cut a noisy corner's length by 9%.
+ */
+export const KINK_BRIDGE_WINDOWS = 2;
+
+/** Points within KINK_BRIDGE_WINDOWS windows of a kink (wrapping when closed): 1, else 0; null when there is no kink. */
+function kinkMask(n: number, kinks: readonly Kink[], closed: boolean): Uint8Array | null {
+  if (kinks.length === 0) return null;
+  const mask = new Uint8Array(n);
+  for (const k of kinks) {
+    const b = KINK_BRIDGE_WINDOWS * k.window;
+    for (let d = -b; d <= b; ++d) {
+      const i = k.at + d;
+      if (i >= 0 && i < n) mask[i] = 1;
+      else if (closed) mask[((i % n) + n) % n] = 1;
+    }
+  }
+  return mask;
+}
+
+/** w[i] = 0 where mask[i] is set. */
+function zeroMasked(w: Float64Array, mask: Uint8Array | null): void {
+  if (mask) for (let i = 0; i < w.length; ++i) if (mask[i]) w[i] = 0;
+}
+
 /** w[i] = robustWeight(resid[i], sc) (one loop per function: see projectFootPoints). */
 function robustWeights(resid: Float64Array, sc: number, w: Float64Array): void {
   for (let i = 0; i < resid.length; ++i) w[i] = robustWeight(resid[i], sc);
@@ -253,7 +284,11 @@ export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnos
   const name = (i: number) => (trace.rows ? `row ${trace.rows[start.kept[i]]}` : `point ${start.kept[i] + 1}`);
   const u = resume ? resume.u.slice() : start.u.slice();
   let span = resume ? resume.span : start.span;
+  // Points near a kink (`findKinks`) keep weight 0: the fit bridges the kink smoothly instead of
+  // lowering the level of the whole wire to follow it.
+  const atKink = kinkMask(n, start.kinks, closed);
   const w = resume ? resume.w.slice() : new Float64Array(n).fill(1);
+  if (!resume) zeroMasked(w, atKink);
   const fullSegments = segmentCount(n, closed);
   let nseg = set.segments ?? Math.min(fullSegments, INITIAL_SEGMENTS_CAP);
   let basis: SplineBasis = makeBasis(0, span, nseg, closed);
@@ -306,6 +341,7 @@ export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnos
       u[0] = 0; u[n - 1] = span;
     }
     const wl = wavelengthForLambda(sel.fit.lambda, sm.normal.wSum / (basis.nseg * basis.h), basis.h);
+    zeroMasked(w, atKink);
     // The first fit of a sparse helix may be straight (a 60-atom pi helix: length 0.29x the
     // polyline), which the guard takes for a divergence: then the trace is sparse if its points
     // twist like a helix (not on the first fit's turn: wild or interleaved points keep the guard's word).

@@ -4,6 +4,7 @@ import { fitBands } from "./bands.js";
 import { arcAt, uAtArc, type ArcTable } from "./curve.js";
 import { checkClosable, describeLength, GAP_LIMIT } from "./fitGuard.js";
 import { detectClosed } from "./detectClosed.js";
+import { findKinks, type Kink } from "./kinks.js";
 import { chordTurn, COARSE_CHORD_TURN, MAX_SPARSE_POINTS, NORMAL_MISFIT_LIMIT, normalMisfit, runPasses, zigzags, type PassesResult } from "./passes.js";
 export { segmentCount } from "./passes.js";
 import { differenceNoise, findOverlap, findRetrace, selfWindow, grossOutliers, medianOf, referenceLength, startParameter, stepLengths, toCanonical, type CanonicalTrace } from "./robustStart.js";
@@ -104,6 +105,8 @@ export interface Start {
   readonly sigmaDiff: number;
   /** Shortest wavelength the fit may resolve (canonical units; 0: no limit): 4 facets of a mesh. */
   readonly minWavelength: number;
+  /** Kinks of the kept points (`findKinks`; indices into the kept points). */
+  readonly kinks: readonly Kink[];
 }
 
 /** Human name of an input point (its line or row), for messages. */
@@ -190,6 +193,7 @@ export function robustStart(trace: Trace, options: ProfileOptions, diagnostics: 
   return {
     canon, kept, dropped, closed, u, span, referenceLength: referenceLength(y, closed), medianStep,
     sigmaFloor: floor, sigmaDiff, minWavelength: trace.facetLength ? (4 * trace.facetLength) / canon.scale : 0,
+    kinks: findKinks(y, u, closed, span),
   };
 }
 
@@ -286,13 +290,21 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
       fit = runPasses(trace, start, { ...set, forceSparse: `the smoothing fit ran inside the points by ${(-misfit).toFixed(2)} of its noise estimate on average, which was the shape between points a coarse trace leaves (chords turning by ${chords.toFixed(2)} rad at the median)` }, diagnostics);
     }
   }
+  // Kinks (a turn by a finite angle within a few points): their points are left out of the fit
+  // (the passes) and their stretches out of the level rules' scores: no level resolves them, and
+  // kept they set the level of the whole wire.
+  const kinks = fit.sparse ? [] : start.kinks;
+  if (kinks.length > 0) {
+    const named = kinks.slice(0, 8).map((k) => `${rowName(trace, start.kept[k.at])} (${((k.angle * 180) / Math.PI).toFixed(0)} degrees)`).join(", ");
+    diagnostics.push(`kink${kinks.length === 1 ? "" : "s"}: the wire turns by a finite angle within a few points at ${named}${kinks.length > 8 ? ` and ${kinks.length - 8} more` : ""}, sharper than any smoothing level resolves: the smoothing levels are chosen without the wire near ${kinks.length === 1 ? "it" : "them"}, and the curvature there is spread over the resolution length (flag 16)`);
+  }
   if (set.curvatureRule === "risk" && set.lambda === undefined && !fit.sparse && fit.sel.sigmaFrom === "gcv" && !(trace.facetLength && trace.facetLength > 0)) {
     // The curvature level of least estimated error, then foot points, weights and arc length at
     // that level (one more pass from where the passes ended, the noise kept): a fit is best at its
     // level when its parameters come from that level. Only for noise estimated from the data: the
     // rule models white noise, and a mesh centre line's tessellation ripple or a noise floor is not
     // (a capped straight tube then showed torsion at 12 of 94 samples).
-    const lv = curvatureLevel(trace, start, fit, set.seed);
+    const lv = curvatureLevel(trace, start, fit, set.seed, { kinks });
     if (Math.abs(lv.decades) > 1e-9) {
       const refit = runPasses(trace, start, { passes: 1, lambda: lv.lambda, segments: fit.basis.nseg }, diagnostics, { u: fit.u, w: fit.w, span: fit.table.length, sigma: fit.sel.sigma });
       fit = { ...refit, sel: { ...refit.sel, sigmaFrom: fit.sel.sigmaFrom, rule: fit.sel.rule } };
@@ -300,7 +312,7 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
     }
   }
   const samples = sampleAt(trace, start, fit, set);
-  const levels = chooseLevels(trace, start, fit, samples, set, diagnostics);
+  const levels = chooseLevels(trace, start, fit, samples, set, diagnostics, kinks);
   if (fit.sel.sigmaFrom === "unknown" && set.replicates > 0) {
     diagnostics.push(`noise not estimable: on a sparse trace (${fit.u.length} points, a few per turn) the shape cannot be told from the noise; no bands (give the coordinate error to get them)`);
     return fitBands(trace, start, fit, levels, samples, { ...set, replicates: 0 }, diagnostics);

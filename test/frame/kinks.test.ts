@@ -1,0 +1,124 @@
+/**
+ * Kinks: a turn by a finite angle within a few points. Reference values: a circle's curvature 1/R
+ * and a helix's kappa = R/(R^2+c^2), tau = c/(R^2+c^2) (do Carmo 1976, sec. 1-5), which a rigid
+ * motion of one side of the kink leaves unchanged; the kink's angle is that of the construction.
+ * Wires invented for the tests, noise seeded.
+ */
+import { describe, expect, it } from "vitest";
+import { findKinks, KINK_MIN_ANGLE, KINK_NOISE_RATIO, KINK_WINDOW } from "../../src/frame/kinks.js";
+import { fitProfile, robustStart } from "../../src/frame/profile.js";
+import { FLAG_BIAS, FLAG_END, type Profile, type Trace } from "../../src/types.js";
+import { bendCurve, bumpCurve, circleCurve, conicalHelixCurve, helixCurve, rigidMotion, sampleCurveUneven, trefoilCurve, vivianiCurve, wavyCoilCurve } from "../support/curves.js";
+import { normalStream } from "../support/rng.js";
+
+const nm = 1e-9;
+const trace = (xyz: Float64Array): Trace => ({ xyz, dims: 3, source: { file: "k.csv", unit: "nm" }, diagnostics: [] });
+const kinksOf = (xyz: Float64Array, closed?: boolean) => {
+  const st = robustStart(trace(xyz), closed === undefined ? {} : { closed }, []);
+  return st.kinks;
+};
+
+/** A planar arc of radius 300 nm, 300 points 2 nm apart, turning by `kinkDeg` more at point 151. */
+function kinkedArc(kinkDeg: number, noise: number, seed: number): Float64Array {
+  const g = normalStream(seed), xyz = new Float64Array(900);
+  let x = 0, y = 0, th = 0;
+  for (let i = 0; i < 300; ++i) {
+    xyz.set([(x + noise * g()) * nm, (y + noise * g()) * nm, 0], 3 * i);
+    if (i === 150) th += (kinkDeg * Math.PI) / 180;
+    th += 2 / 300;
+    x += 2 * Math.cos(th); y += 2 * Math.sin(th);
+  }
+  return xyz;
+}
+
+/**
+ * A helix (R 100 nm, c 20 nm) of 600 points 3.2 nm apart, 3 turns, whose second half is the continuation
+ * turned by `deg` about the z axis through the joint (point 300), where the tangent is nearly along
+ * x: the tangent jumps by about `deg`, a kink in space.
+ */
+function kinkedHelix(deg: number, noise: number, seed: number): Float64Array {
+  const g = normalStream(seed), xyz = new Float64Array(1800);
+  const R = 100, c = 20, dt = (6 * Math.PI) / 599, a = (deg * Math.PI) / 180;
+  const at = (t: number) => [R * Math.cos(t), R * Math.sin(t), c * t];
+  const joint = at(299 * dt);
+  for (let i = 0; i < 600; ++i) {
+    let p = at(i * dt);
+    if (i > 299) {
+      const dx = p[0] - joint[0], dy = p[1] - joint[1];
+      p = [joint[0] + dx * Math.cos(a) - dy * Math.sin(a), joint[1] + dx * Math.sin(a) + dy * Math.cos(a), p[2]];
+    }
+    xyz.set(p.map((v) => (v + noise * g()) * nm), 3 * i);
+  }
+  return xyz;
+}
+
+/** Median of |f(j)| over the samples whose input row is more than `away` rows from `row` (f NaN: left out). */
+function medianAway(p: Profile, row: number, away: number, f: (j: number) => number): number {
+  const v: number[] = [];
+  for (let j = 0; j < p.n; ++j) if (Math.abs((p.inputRow?.[j] ?? NaN) - row) > away && !Number.isNaN(f(j))) v.push(Math.abs(f(j)));
+  v.sort((a, b) => a - b);
+  return v[v.length >> 1];
+}
+
+describe("findKinks", () => {
+  it("finds a 30 degree kink on a noisy arc at its point, with its angle, and none without it", () => {
+    const k = kinksOf(kinkedArc(30, 0.2, 15));
+    expect(k).toHaveLength(1);
+    expect(Math.abs(k[0].at - 150)).toBeLessThanOrEqual(1);
+    expect(Math.abs((k[0].angle * 180) / Math.PI - 30)).toBeLessThan(6); // measured 26.3 (the arc's own turn over the window is in the noise)
+    expect(kinksOf(kinkedArc(0, 0.2, 15))).toEqual([]);
+    expect([KINK_WINDOW, KINK_MIN_ANGLE, KINK_NOISE_RATIO]).toEqual([8, 0.17, 6]);
+  });
+
+  it("is unchanged by a rigid motion and follows the points when their order is reversed", () => {
+    const xyz = kinkedHelix(90, 0.5, 16);
+    const base = kinksOf(xyz).map((k) => k.at);
+    expect(base).toEqual([299]);
+    const rnd = normalStream(5);
+    const moved = rigidMotion(xyz, [rnd(), rnd(), rnd(), rnd()], [rnd() * 1e-6, rnd() * 1e-6, rnd() * 1e-6]);
+    expect(kinksOf(moved).map((k) => k.at)).toEqual(base);
+    const rev = new Float64Array(xyz.length);
+    for (let i = 0; i < 600; ++i) rev.set(xyz.subarray(3 * (599 - i), 3 * (600 - i)), 3 * i);
+    expect(kinksOf(rev).map((k) => 599 - k.at)).toEqual(base);
+  });
+
+  it("finds the four corners of a closed square, the one where the trace starts too (the windows wrap)", () => {
+    // A square of side 100 nm traced from a corner, 2 nm steps, 0.1 nm of noise (invented).
+    const g = normalStream(3), xyz = new Float64Array(600);
+    const corners = [[0, 0], [100, 0], [100, 100], [0, 100]];
+    for (let i = 0; i < 200; ++i) {
+      const side = Math.floor(i / 50), f = (i % 50) / 50, [ax, ay] = corners[side], [bx, by] = corners[(side + 1) % 4];
+      xyz.set([(ax + f * (bx - ax) + 0.1 * g()) * nm, (ay + f * (by - ay) + 0.1 * g()) * nm, 0], 3 * i);
+    }
+    const at = kinksOf(xyz, true).map((k) => k.at).sort((a, b) => a - b);
+    expect(at).toEqual([0, 50, 100, 150]);
+  });
+
+  it("finds none on eight smooth families at 0-3% noise (uneven sampling), and none on short traces", () => {
+    const families = [helixCurve(1, 0.4, 4), circleCurve(1), trefoilCurve(1), vivianiCurve(1), conicalHelixCurve(1, 3), bumpCurve(10, 0.6, 1), bendCurve(4, 0.5), wavyCoilCurve(1, 4)];
+    for (const c of families) for (const noise of [0, 0.01, 0.03]) {
+      const { xyz } = sampleCurveUneven(c, 600, noise * c.radius, 11);
+      expect(kinksOf(xyz, c.closed)).toEqual([]);
+    }
+    expect(findKinks(new Float64Array(3 * 40), Float64Array.from({ length: 40 }, (_, i) => i), false, 39)).toEqual([]);
+  });
+});
+
+describe("a kinked wire is fitted without the kink setting its level", () => {
+  it("keeps an arc's curvature away from a 30 degree kink (the kink had set the level of the whole wire: 29% off)", () => {
+    const p = fitProfile(trace(kinkedArc(30, 0.2, 15)), { bootstrap: 50, seed: 1 });
+    expect(p.diagnostics.some((d) => d.startsWith("kink: the wire turns by a finite angle within a few points at point 151 (25 degrees)"))).toBe(true);
+    // Circle: kappa = 1/R with R = 300 nm. Beyond 40 points (80 nm) of the kink.
+    expect(medianAway(p, 151, 40, (j) => p.kappa[j] * nm * 300 - 1)).toBeLessThan(0.1); // measured 0.032; 0.29 before
+    // The bridged stretch is flagged biased.
+    for (let j = 0; j < p.n; ++j) if (Math.abs((p.inputRow?.[j] ?? 0) - 151) <= 16) expect(p.flags[j] & FLAG_BIAS).toBe(FLAG_BIAS);
+  });
+
+  it("keeps a helix's curvature and torsion away from a 90 degree kink in space", () => {
+    const p = fitProfile(trace(kinkedHelix(90, 0.5, 16)), { bootstrap: 50, seed: 1 });
+    expect(p.diagnostics.some((d) => d.startsWith("kink: the wire turns by a finite angle within a few points at point 300 (86 degrees)"))).toBe(true);
+    const R = 100, c = 20, k0 = R / (R * R + c * c), t0 = c / (R * R + c * c);
+    expect(medianAway(p, 300, 40, (j) => (p.flags[j] & FLAG_END ? NaN : p.kappa[j] * nm / k0 - 1))).toBeLessThan(0.03); // measured 0.006; 0.077 before
+    expect(medianAway(p, 300, 40, (j) => (p.flags[j] & FLAG_END ? NaN : p.tau[j] * nm / t0 - 1))).toBeLessThan(0.07); // measured 0.039; 0.098 before
+  });
+});
