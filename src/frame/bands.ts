@@ -132,7 +132,7 @@ export function fitBands(
   const rowOf = (i: number) => (trace.rows ? trace.rows[i] : i + 1);
   const inputRow = inputRows(samples.traceIndex, trace.rows);
   const downweighted = downweightedPoints(fit.w, start.kept);
-  if (downweighted.length > 0) diagnostics.push(`robust fit: ${downweighted.length} point(s) downweighted as outliers (first at ${trace.rows ? "row" : "point"} ${rowOf(downweighted[0])})`);
+  if (downweighted.length > 0) diagnostics.push(`robust fit: ${downweighted.length} point(s) downweighted as outliers${lv.kinkZones.length > 0 ? " or left out at kinks" : ""} (first at ${trace.rows ? "row" : "point"} ${rowOf(downweighted[0])})`);
   const outliers = [...start.dropped, ...downweighted].sort((a, b) => a - b);
 
   const profile: Profile = {

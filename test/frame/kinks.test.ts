@@ -110,6 +110,7 @@ describe("a kinked wire is fitted without the kink setting its level", () => {
     expect(p.diagnostics.some((d) => d.startsWith("kink: the wire turns by a finite angle within a few points at point 151 (25 degrees)"))).toBe(true);
     // Circle: kappa = 1/R with R = 300 nm. Beyond 40 points (80 nm) of the kink.
     expect(medianAway(p, 151, 40, (j) => p.kappa[j] * nm * 300 - 1)).toBeLessThan(0.1); // measured 0.032; 0.29 before
+    expect(p.diagnostics.some((d) => /^robust fit: \d+ point\(s\) downweighted as outliers or left out at kinks \(first at point 1[34]\d\)$/.test(d))).toBe(true);
     // The bridged stretch is flagged biased.
     for (let j = 0; j < p.n; ++j) if (Math.abs((p.inputRow?.[j] ?? 0) - 151) <= 16) expect(p.flags[j] & FLAG_BIAS).toBe(FLAG_BIAS);
   });
