@@ -108,7 +108,7 @@ export function fitBands(
     closed, endZone, lengthM: length * L0,
   });
   const { kappaLo, kappaHi, tauLo, tauHi, straightCount } = bands;
-  // At a kink the fit bridges its points and the resolution length beyond them: biased there.
+  // Around a kink the fit bends at its hinge: biased there and one resolution length beyond.
   if (lv.kinkZones.length > 0) flagKinkZones(flags, table, sampleU, lv.kinkZones, closed, lv.resolution);
   const resolvedMask = torsionMask(flags);
   const fr = frames(r1, kv, resolvedMask, closed);
@@ -132,7 +132,7 @@ export function fitBands(
   const rowOf = (i: number) => (trace.rows ? trace.rows[i] : i + 1);
   const inputRow = inputRows(samples.traceIndex, trace.rows);
   const downweighted = downweightedPoints(fit.w, start.kept);
-  if (downweighted.length > 0) diagnostics.push(`robust fit: ${downweighted.length} point(s) downweighted as outliers${lv.kinkZones.length > 0 ? " or left out at kinks" : ""} (first at ${trace.rows ? "row" : "point"} ${rowOf(downweighted[0])})`);
+  if (downweighted.length > 0) diagnostics.push(`robust fit: ${downweighted.length} point(s) downweighted as outliers (first at ${trace.rows ? "row" : "point"} ${rowOf(downweighted[0])})`);
   const outliers = [...start.dropped, ...downweighted].sort((a, b) => a - b);
 
   const profile: Profile = {
@@ -467,7 +467,7 @@ function countSet(mask: Uint8Array): number {
 }
 
 /** Samples flagged biased and not at an end. */
-/** Sets FLAG_BIAS on samples in a kink's bridged stretch or within `margin` (arc length) of it. */
+/** Sets FLAG_BIAS on samples in a kink's stretch (`kinkZones`) or within `margin` (arc length) of it. */
 function flagKinkZones(flags: Uint8Array, table: ArcTable, sampleU: Float64Array, zones: Float64Array, closed: boolean, margin: number): void {
   for (let j = 0; j < flags.length; ++j) {
     if (inKinkZone(arcAt(table, sampleU[j], closed), zones, margin, closed, table.length)) flags[j] |= FLAG_BIAS;

@@ -48,6 +48,11 @@ export interface Kink {
   readonly angle: number;
   /** Points on each side of the tangent fits that found it. */
   readonly window: number;
+  /**
+   * Chord over arc (parameter) length between the points two windows either side: about
+   * cos(angle / 2) at a kink, near 0 where the wire turns back along itself (a hairpin).
+   */
+  readonly opening: number;
 }
 
 /**
@@ -84,7 +89,7 @@ export function findKinks(y: Float64Array, u: Float64Array, closed: boolean, spa
     if (!(t > KINK_MIN_ANGLE && t2 * windowSpan(u, closed, span, best, 2 * m) > KINK_NOISE_RATIO * med2)) continue;
     const r = t2 / t;
     if (r < 0.7 || r > 1.25) continue;
-    out.push({ at: best, angle: t, window: m });
+    out.push({ at: best, angle: t, window: m, opening: opening(y, u, closed, span, best, 2 * m) });
   }
   return out;
 }
@@ -136,6 +141,15 @@ function sideTangent(y: Float64Array, u: Float64Array, closed: boolean, span: nu
   const sgn = det > 0 ? 1 : -1;
   out[0] = (sgn * bx) / len; out[1] = (sgn * by) / len; out[2] = (sgn * bz) / len;
   return true;
+}
+
+/** Chord over parameter length between points i - d and i + d (wrapping when closed; clamped at open ends). */
+function opening(y: Float64Array, u: Float64Array, closed: boolean, span: number, i: number, d: number): number {
+  const n = u.length;
+  const a = closed ? (((i - d) % n) + n) % n : Math.max(0, i - d), b = closed ? (i + d) % n : Math.min(n - 1, i + d);
+  const chord = hypot3(y[3 * b] - y[3 * a], y[3 * b + 1] - y[3 * a + 1], y[3 * b + 2] - y[3 * a + 2]);
+  const arc = closed ? ((u[b] - u[a]) % span + span) % span : u[b] - u[a];
+  return arc > 0 ? chord / arc : 0;
 }
 
 /** Median of a[i] times the parameter length of its window, over every stride-th i where a[i] is finite (0 when none). */

@@ -5,7 +5,6 @@
 import { InputError } from "../errors.js";
 import type { Trace } from "../types.js";
 import { gridBasis, rhsNoiseFactor, type GridBasis } from "./bootstrap.js";
-import { KINK_BRIDGE_WINDOWS } from "./passes.js";
 import type { Kink } from "./kinks.js";
 import type { SplineBasis } from "./bspline.js";
 import { arcAt, evalCurve, kappaTau } from "./curve.js";
@@ -36,7 +35,7 @@ export interface Levels {
   readonly gridS: Float64Array;
   /** The smoother of the curvature fit (its penalty varies along the wire when adaptive). */
   readonly kappaSmoother: Smoother;
-  /** Stretches the fit bridges at kinks (`kinkZones`: triples of arc length, reach back, reach on). */
+  /** Stretches around kinks (`kinkZones`: triples of arc length, reach back, reach on). */
   readonly kinkZones: Float64Array;
 }
 
@@ -215,17 +214,20 @@ export function chooseLevels(
  */
 export const KINK_ZONE = 2.5;
 
+/** Windows (`Kink.window` points) either side of a kink that its zone spans: the doubled window the detector saw the turn over. */
+export const KINK_ZONE_WINDOWS = 2;
+
 /**
- * The stretch the fit bridges at each kink (KINK_BRIDGE_WINDOWS windows either side, left out of the
- * passes): triples (arc length of the kink's foot point, arc length back to the first bridged point,
- * arc length on to the last), from the domain start.
+ * The stretch around each kink (KINK_ZONE_WINDOWS windows of points either side, where the fit's
+ * hinge lets it bend): triples (arc length of the kink's foot point, arc length back to the first
+ * point of the stretch, arc length on to the last), from the domain start.
  */
 function kinkZones(fit: PassesResult, kinks: readonly Kink[], closed: boolean): Float64Array {
   const n = fit.u.length, length = fit.table.length, out = new Float64Array(3 * kinks.length);
   const arc = (i: number) => arcAt(fit.table, fit.u[closed ? ((i % n) + n) % n : Math.min(n - 1, Math.max(0, i))], closed);
   kinks.forEach((k, z) => {
     const c = arc(k.at);
-    const b = KINK_BRIDGE_WINDOWS * k.window;
+    const b = KINK_ZONE_WINDOWS * k.window;
     const back = c - arc(k.at - b), on = arc(k.at + b) - c;
     out[3 * z] = c;
     out[3 * z + 1] = closed ? back - Math.floor(back / length) * length : Math.max(0, back);
@@ -235,7 +237,7 @@ function kinkZones(fit: PassesResult, kinks: readonly Kink[], closed: boolean): 
 }
 
 /**
- * Whether arc length s lies in a kink's bridged stretch widened by `margin` either side (signed
+ * Whether arc length s lies in a kink's stretch widened by `margin` either side (signed
  * offsets taken the short way round a ring of `length`).
  */
 export function inKinkZone(s: number, zones: Float64Array, margin: number, closed: boolean, length: number): boolean {

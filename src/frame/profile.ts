@@ -281,6 +281,27 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
   const diagnostics: string[] = [...trace.diagnostics];
   if (set.coordinateError !== undefined) diagnostics.push(`noise: the coordinate error given (${describeLength(set.coordinateError, trace.source)} per coordinate) is the noise level; it is not estimated`);
   const start = robustStart(trace, options, diagnostics);
+  if (start.kinks.length === 0) return fitFrom(trace, start, set, diagnostics);
+  // Kinks: a hinge in the fit and their stretches out of the level rules (`fitFrom`). Where that
+  // fit fails its checks (a short kinked arc's level ran away: "resolves nothing"), the wire is
+  // fitted as a smooth one, as before kinks were sought, and the diagnostic says so.
+  try {
+    return fitFrom(trace, start, set, [...diagnostics]);
+  } catch (err) {
+    if (!(err instanceof InputError)) throw err;
+    diagnostics.push(`kinks: found at ${kinkNames(trace, start)}, but the fit with them failed its checks (${err.message.replace(/^[^:]*: [^:]*: /, "")}); fitted as a smooth wire: the kinks set its smoothing level`);
+    return fitFrom(trace, { ...start, kinks: [] }, set, diagnostics);
+  }
+}
+
+/** "row 151 (26 degrees), ..." for the kinks of `start` (at most 8 named). */
+function kinkNames(trace: Trace, start: Start): string {
+  const k = start.kinks;
+  return `${k.slice(0, 8).map((q) => `${rowName(trace, start.kept[q.at])} (${((q.angle * 180) / Math.PI).toFixed(0)} degrees)`).join(", ")}${k.length > 8 ? ` and ${k.length - 8} more` : ""}`;
+}
+
+/** Stages 3-5 of `fitProfile` from its robust start. */
+function fitFrom(trace: Trace, start: Start, set: Settings, diagnostics: string[]): Profile {
   let fit = runPasses(trace, start, set, diagnostics);
   if (!fit.sparse && set.lambda === undefined && set.segments === undefined && set.coordinateError === undefined && fit.u.length <= MAX_SPARSE_POINTS) {
     // A coarse trace whose smoothing fit runs inside its points by more than the noise estimate:
@@ -290,13 +311,12 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
       fit = runPasses(trace, start, { ...set, forceSparse: `the smoothing fit ran inside the points by ${(-misfit).toFixed(2)} of its noise estimate on average, which was the shape between points a coarse trace leaves (chords turning by ${chords.toFixed(2)} rad at the median)` }, diagnostics);
     }
   }
-  // Kinks (a turn by a finite angle within a few points): their points are left out of the fit
-  // (the passes) and their stretches out of the level rules' scores: no level resolves them, and
-  // kept they set the level of the whole wire.
+  // Kinks (a turn by a finite angle within a few points): the passes lift the smoothness penalty
+  // there (a hinge) and the level rules leave their stretches out of their scores: no level
+  // resolves a kink, and scored it would set the level of the whole wire.
   const kinks = fit.sparse ? [] : start.kinks;
   if (kinks.length > 0) {
-    const named = kinks.slice(0, 8).map((k) => `${rowName(trace, start.kept[k.at])} (${((k.angle * 180) / Math.PI).toFixed(0)} degrees)`).join(", ");
-    diagnostics.push(`kink${kinks.length === 1 ? "" : "s"}: the wire turns by a finite angle within a few points at ${named}${kinks.length > 8 ? ` and ${kinks.length - 8} more` : ""}, sharper than any smoothing level resolves: the smoothing levels are chosen without the wire near ${kinks.length === 1 ? "it" : "them"}, and the curvature there is spread over the resolution length (flag 16)`);
+    diagnostics.push(`kink${kinks.length === 1 ? "" : "s"}: the wire turns by a finite angle within a few points at ${kinkNames(trace, start)}, sharper than any smoothing level resolves: the fit bends there freely and the smoothing levels are chosen without the wire near ${kinks.length === 1 ? "it" : "them"}; the curvature there is flagged biased (16)`);
   }
   if (set.curvatureRule === "risk" && set.lambda === undefined && !fit.sparse && fit.sel.sigmaFrom === "gcv" && !(trace.facetLength && trace.facetLength > 0)) {
     // The curvature level of least estimated error, then foot points, weights and arc length at
