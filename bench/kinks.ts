@@ -13,52 +13,15 @@
  */
 import { fitProfile } from "../src/frame/profile.js";
 import { FLAG_END, type Profile } from "../src/types.js";
-import { normalStream } from "../test/support/rng.js";
+import { kinkedArc, kinkedHelix } from "../test/support/kinkedWires.js";
 
 const nm = 1e-9;
 const seedArg = (process.argv[2] ?? "1-6").split("-").map(Number);
 const seeds = Array.from({ length: (seedArg[1] ?? seedArg[0]) - seedArg[0] + 1 }, (_, i) => seedArg[0] + i);
 
-function arc(kinkDeg: number, noise: number, seed: number): Float64Array {
-  const g = normalStream(seed), xyz = new Float64Array(1800);
-  let x = 0, y = 0, th = 0;
-  for (let i = 0; i < 600; ++i) {
-    xyz.set([(x + noise * g()) * nm, (y + noise * g()) * nm, 0], 3 * i);
-    if (i === 300) th += (kinkDeg * Math.PI) / 180;
-    th += 2 / 500;
-    x += 2 * Math.cos(th); y += 2 * Math.sin(th);
-  }
-  return xyz;
-}
-
-/** The shorter, tighter arc: radius 300 nm, 300 points 2 nm apart, the kink at point 151. */
-function shortArc(kinkDeg: number, noise: number, seed: number): Float64Array {
-  const g = normalStream(seed), xyz = new Float64Array(900);
-  let x = 0, y = 0, th = 0;
-  for (let i = 0; i < 300; ++i) {
-    xyz.set([(x + noise * g()) * nm, (y + noise * g()) * nm, 0], 3 * i);
-    if (i === 150) th += (kinkDeg * Math.PI) / 180;
-    th += 2 / 300;
-    x += 2 * Math.cos(th); y += 2 * Math.sin(th);
-  }
-  return xyz;
-}
-
-function helix(kinkDeg: number, noise: number, seed: number): Float64Array {
-  const g = normalStream(seed), xyz = new Float64Array(1800);
-  const R = 100, c = 20, dt = (6 * Math.PI) / 599, a = (kinkDeg * Math.PI) / 180;
-  const at = (t: number) => [R * Math.cos(t), R * Math.sin(t), c * t];
-  const joint = at(299 * dt);
-  for (let i = 0; i < 600; ++i) {
-    let p = at(i * dt);
-    if (i > 299) {
-      const dx = p[0] - joint[0], dy = p[1] - joint[1];
-      p = [joint[0] + dx * Math.cos(a) - dy * Math.sin(a), joint[1] + dx * Math.sin(a) + dy * Math.cos(a), p[2]];
-    }
-    xyz.set(p.map((v) => (v + noise * g()) * nm), 3 * i);
-  }
-  return xyz;
-}
+const arc = (kinkDeg: number, noise: number, seed: number) => kinkedArc(500, 600, 300, kinkDeg, noise, seed);
+const shortArc = (kinkDeg: number, noise: number, seed: number) => kinkedArc(300, 300, 150, kinkDeg, noise, seed);
+const helix = kinkedHelix;
 
 /** Input rows more than 40 rows from `row` outside the end zones of p. */
 function farRows(p: Profile, row: number): Set<number> {

@@ -10,6 +10,7 @@ import { KINK_HINGE_MIN_OPENING } from "../../src/frame/passes.js";
 import { fitProfile, robustStart } from "../../src/frame/profile.js";
 import { FLAG_BIAS, FLAG_END, type Profile, type Trace } from "../../src/types.js";
 import { bendCurve, bumpCurve, circleCurve, conicalHelixCurve, helixCurve, rigidMotion, sampleCurveUneven, trefoilCurve, vivianiCurve, wavyCoilCurve } from "../support/curves.js";
+import { kinkedArc, kinkedHelix } from "../support/kinkedWires.js";
 import { normalStream } from "../support/rng.js";
 
 const nm = 1e-9;
@@ -19,39 +20,8 @@ const kinksOf = (xyz: Float64Array, closed?: boolean) => {
   return st.kinks;
 };
 
-/** A planar arc of radius 300 nm, 300 points 2 nm apart, turning by `kinkDeg` more at point 151. */
-function kinkedArc(kinkDeg: number, noise: number, seed: number): Float64Array {
-  const g = normalStream(seed), xyz = new Float64Array(900);
-  let x = 0, y = 0, th = 0;
-  for (let i = 0; i < 300; ++i) {
-    xyz.set([(x + noise * g()) * nm, (y + noise * g()) * nm, 0], 3 * i);
-    if (i === 150) th += (kinkDeg * Math.PI) / 180;
-    th += 2 / 300;
-    x += 2 * Math.cos(th); y += 2 * Math.sin(th);
-  }
-  return xyz;
-}
-
-/**
- * A helix (R 100 nm, c 20 nm) of 600 points 3.2 nm apart, 3 turns, whose second half is the continuation
- * turned by `deg` about the z axis through the joint (point 300), where the tangent is nearly along
- * x: the tangent jumps by about `deg`, a kink in space.
- */
-function kinkedHelix(deg: number, noise: number, seed: number): Float64Array {
-  const g = normalStream(seed), xyz = new Float64Array(1800);
-  const R = 100, c = 20, dt = (6 * Math.PI) / 599, a = (deg * Math.PI) / 180;
-  const at = (t: number) => [R * Math.cos(t), R * Math.sin(t), c * t];
-  const joint = at(299 * dt);
-  for (let i = 0; i < 600; ++i) {
-    let p = at(i * dt);
-    if (i > 299) {
-      const dx = p[0] - joint[0], dy = p[1] - joint[1];
-      p = [joint[0] + dx * Math.cos(a) - dy * Math.sin(a), joint[1] + dx * Math.sin(a) + dy * Math.cos(a), p[2]];
-    }
-    xyz.set(p.map((v) => (v + noise * g()) * nm), 3 * i);
-  }
-  return xyz;
-}
+/** The arc of radius 300 nm, 300 points 2 nm apart, with its kink after point 151. */
+const kinkedArc300 = (kinkDeg: number, noise: number, seed: number) => kinkedArc(300, 300, 150, kinkDeg, noise, seed);
 
 /** Median of |f(j)| over the samples whose input row is more than `away` rows from `row` (f NaN: left out). */
 function medianAway(p: Profile, row: number, away: number, f: (j: number) => number): number {
@@ -63,11 +33,11 @@ function medianAway(p: Profile, row: number, away: number, f: (j: number) => num
 
 describe("findKinks", () => {
   it("finds a 30 degree kink on a noisy arc at its point, with its angle, and none without it", () => {
-    const k = kinksOf(kinkedArc(30, 0.2, 15));
+    const k = kinksOf(kinkedArc300(30, 0.2, 15));
     expect(k).toHaveLength(1);
     expect(Math.abs(k[0].at - 150)).toBeLessThanOrEqual(1);
     expect(Math.abs((k[0].angle * 180) / Math.PI - 30)).toBeLessThan(6); // measured 26.3 (the arc's own turn over the window is in the noise)
-    expect(kinksOf(kinkedArc(0, 0.2, 15))).toEqual([]);
+    expect(kinksOf(kinkedArc300(0, 0.2, 15))).toEqual([]);
     expect([KINK_WINDOW, KINK_MIN_ANGLE, KINK_NOISE_RATIO]).toEqual([8, 0.17, 6]);
   });
 
@@ -108,7 +78,7 @@ describe("findKinks", () => {
 describe("a kinked wire is fitted without the kink setting its level", () => {
   it("keeps an arc's curvature away from a 30 degree kink (the kink had set the level of the whole wire: 29% off)", () => {
     // The fit gets a hinge at the kink: no smoothness penalty over 3 knot intervals either side.
-    const p = fitProfile(trace(kinkedArc(30, 0.2, 15)), { bootstrap: 50, seed: 1 });
+    const p = fitProfile(trace(kinkedArc300(30, 0.2, 15)), { bootstrap: 50, seed: 1 });
     expect(p.diagnostics.some((d) => d.startsWith("kink: the wire turns by a finite angle within a few points at point 151 (25 degrees)"))).toBe(true);
     // Circle: kappa = 1/R with R = 300 nm. Beyond 40 points (80 nm) of the kink.
     expect(medianAway(p, 151, 40, (j) => p.kappa[j] * nm * 300 - 1)).toBeLessThan(0.1); // measured 0.032; 0.29 before
@@ -155,7 +125,7 @@ describe("a kinked wire is fitted without the kink setting its level", () => {
   it("falls back to the smooth fit, saying so, where the fit with a hinge fails its checks", () => {
     // A short arc (radius 300 nm, 300 points 2 nm apart) with a 20 degree kink at 0.4 nm of noise:
     // with the hinge its level ran away ("resolves nothing"); it had been refused.
-    const p = fitProfile(trace(kinkedArc(20, 0.4, 3)), { bootstrap: 0, seed: 3 });
+    const p = fitProfile(trace(kinkedArc300(20, 0.4, 3)), { bootstrap: 0, seed: 3 });
     expect(p.diagnostics.some((d) => /^kinks: found at point 151 \(\d+ degrees\), but the fit with them failed its checks \(the fit resolves nothing: .*\); fitted as a smooth wire: the kinks set its smoothing level$/.test(d))).toBe(true);
   });
 
