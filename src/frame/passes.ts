@@ -185,8 +185,8 @@ function projectFootPoints(
 /**
  * Knot intervals either side of a kink over which the smoothness penalty is lifted (a hinge): the
  * spline may bend there as sharply as its basis allows, following the points, and the level is set
- * by the rest of the wire. Measured (`npx tsx bench/kinks.ts 1-3`: an arc and a helix with kinks of
- * 20-135 degrees at 0.05-0.3 steps of noise, 96 cases): curvature and torsion beyond 40 points of
+ * by the rest of the wire. Measured (`npx tsx bench/kinks.ts 1-3`, its arc of radius 500 nm and its
+ * helix, kinks of 20-135 degrees at 0.05-0.3 steps of noise, 96 cases): curvature and torsion beyond 40 points of
  * a kink within 1.5x of the unkinked twin's error or 2% in all 62 cases where the kink was found
  * (the worst 2.9% for the arc, 4.1% torsion for the helix) with 3 intervals; with 2 intervals 49
  * of 96, 4: 65, 5: 55. Leaving the 16 points either side out of the fit instead (a bridge the
@@ -534,7 +534,7 @@ function concentration(c: Float64Array, s: Float64Array, i0: number, i1: number)
  * digitised arc or line: every turn 90 degrees, the next one back, dihedral 180 degrees, cosine -1).
  * Such a trace is dense, its lattice steps are noise: near-interpolated as a sparse trace, a
  * 4-connected arc of radius 150 px came out with curvature 2/px for 0.0067/px and 1.34x its length,
- * exit 0; smoothed, within 0.1%. Helices of a few points per turn twist one way: alpha 50 degrees
+ * exit 0; smoothed, within 0.34%. Helices of a few points per turn twist one way: alpha 50 degrees
  * (cosine 0.64), 3-10 84 (0.11), pi 30 (0.86), polyproline II -105 (-0.25) (ideal helices with the
  * textbook geometries of bench/molecules.ts); a sparse planar ring, 0 (cosine 1). A helix of two
  * points per turn cannot be told from a zigzag.
