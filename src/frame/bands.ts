@@ -466,7 +466,6 @@ function countSet(mask: Uint8Array): number {
   return c;
 }
 
-/** Samples flagged biased and not at an end. */
 /** Sets FLAG_BIAS on samples in a kink's stretch (`kinkZones`) or within `margin` (arc length) of it. */
 function flagKinkZones(flags: Uint8Array, table: ArcTable, sampleU: Float64Array, zones: Float64Array, closed: boolean, margin: number): void {
   for (let j = 0; j < flags.length; ++j) {
@@ -474,6 +473,7 @@ function flagKinkZones(flags: Uint8Array, table: ArcTable, sampleU: Float64Array
   }
 }
 
+/** Samples flagged biased and not at an end. */
 function countBiased(flags: Uint8Array): number {
   let c = 0;
   for (let j = 0; j < flags.length; ++j) if (flags[j] & FLAG_BIAS && !(flags[j] & FLAG_END)) ++c;

@@ -183,9 +183,10 @@ export function robustStart(trace: Trace, options: ProfileOptions, diagnostics: 
     throw new InputError(file, null, "points",
       `the trace runs along the same path twice: ${a} to ${b} and ${c} to ${d} lie within ${describeLength(again.within * canon.scale, trace.source)} of each other with no offset between them; a wire cannot pass through itself (and turns of a coil closer than the noise cannot be told apart): remove the repeated rows or split the file there`);
   }
-  // Noise floor: coordinates carry finitely many digits (1e-9 of the wire's extent about its centre,
-  // below any text file, plus the rounding of the largest coordinate to a double, rms at most a quarter of its epsilon,
-  // stop); a mesh centre line carries the tessellation's ripple, a fraction of the radius spread.
+  // Noise floor: coordinates carry finitely many digits: 1e-9 of the wire's extent about its centre
+  // (below any text file) plus the rounding of the largest coordinate to a double (its rms at most a
+  // quarter of the double's epsilon times that coordinate); a mesh centre line carries the
+  // tessellation's ripple, a fraction of the radius spread.
   // Not 1e-9 of the largest coordinate: far from the origin that floor exceeded the noise (a 20 nm
   // helix with 0.1 nm of noise at x = 1e10 nm: noise 10 nm, length -41%, exit 0).
   let floor = 1e-9 * largestMagnitude(y) + (0.25 * Number.EPSILON * maxAbs) / canon.scale;
@@ -285,16 +286,17 @@ export function fitProfile(trace: Trace, options: ProfileOptions = {}): Profile 
   // Kinks: a hinge in the fit and their stretches out of the level rules (`fitFrom`). Where that
   // fit fails its checks (a short kinked arc's level ran away: "resolves nothing"), the wire is
   // fitted as a smooth one, as before kinks were sought, and the diagnostic says so.
+  // The passes without hinges, kept for that fallback. Their length is the check of the fit with
+  // hinges: a hinge lets the fit keep a corner, so the fit with them is the longer one; shorter,
+  // the hinges freed too much of the wire (kinks close together, a polygon's sides) and it wandered.
+  const smoothStart = { ...start, kinks: [] }, smoothDiagnostics: string[] = [];
+  const smooth = runPasses(trace, smoothStart, set, smoothDiagnostics);
   try {
-    // The length of the passes without hinges: a hinge lets the fit keep a corner, so the fit with
-    // them is the longer one; shorter, the hinges freed too much of the wire (kinks close together,
-    // a polygon's sides) and the fit wandered.
-    const smooth = runPasses(trace, { ...start, kinks: [] }, set, []);
-    return fitFrom(trace, start, set, [...diagnostics], smooth.sparse ? undefined : smooth.table.length);
+    return fitFrom(trace, start, set, [...diagnostics], smooth.sparse ? {} : { smoothLength: smooth.table.length });
   } catch (err) {
     if (!(err instanceof InputError)) throw err;
-    diagnostics.push(`kinks: found at ${kinkNames(trace, start)}, but the fit with them failed its checks (${err.message.replace(/^[^:]*: [^:]*: /, "")}); fitted as a smooth wire: the kinks set its smoothing level`);
-    return fitFrom(trace, { ...start, kinks: [] }, set, diagnostics);
+    diagnostics.push(`kinks: found at ${kinkNames(trace, start)}, but the fit with them failed its checks (${err.message.replace(/^[^:]*: [^:]*: /, "")}); fitted as a smooth wire: the kinks set its smoothing level`, ...smoothDiagnostics);
+    return fitFrom(trace, smoothStart, set, diagnostics, { passes: smooth });
   }
 }
 
@@ -313,9 +315,14 @@ function kinkNames(trace: Trace, start: Start): string {
  */
 export const KINK_LENGTH_RATIO = 0.97;
 
-/** Stages 3-5 of `fitProfile` from its robust start (`smoothLength`: the length of the passes without hinges). */
-function fitFrom(trace: Trace, start: Start, set: Settings, diagnostics: string[], smoothLength?: number): Profile {
-  let fit = runPasses(trace, start, set, diagnostics);
+/**
+ * Stages 3-5 of `fitProfile` from its robust start. `smoothLength`: the length of the passes
+ * without hinges, which those with hinges must reach (KINK_LENGTH_RATIO); `passes`: passes already
+ * run on `start` (their diagnostics already said).
+ */
+function fitFrom(trace: Trace, start: Start, set: Settings, diagnostics: string[], given: { smoothLength?: number; passes?: PassesResult } = {}): Profile {
+  const smoothLength = given.smoothLength;
+  let fit = given.passes ?? runPasses(trace, start, set, diagnostics);
   if (smoothLength !== undefined && !fit.sparse && fit.table.length < KINK_LENGTH_RATIO * smoothLength) {
     throw new InputError(trace.source.file, null, "points", `with hinges at them the fit is ${(100 * (1 - fit.table.length / smoothLength)).toFixed(1)}% shorter than without`);
   }
