@@ -113,9 +113,30 @@ export interface Profile {
   readonly source: Source;
   readonly planarProjection: boolean;
   readonly diagnostics: readonly string[];
+  /**
+   * Kinks the fit was hinged at (a turn by a finite angle within a few points, found in the points
+   * before the fit: `src/frame/kinks.ts`), in order of s; absent when none.
+   */
+  readonly kinks?: readonly ProfileKink[];
   /** Optional bootstrap samples, replicate-major: kappaSamples[r * n + i]. Kept when asked for. */
   readonly kappaSamples?: Float64Array;
   readonly tauSamples?: Float64Array;
+}
+
+/** A kink of a profile. */
+export interface ProfileKink {
+  /** Arc length of the kink's point from the profile's start (m). */
+  readonly s: number;
+  /** Angle between the wire's tangents before and after it (rad). */
+  readonly angle: number;
+  /** Input row of the kink's point (Trace.rows, else 1-based trace position). */
+  readonly inputRow: number;
+  /**
+   * The stretch where the fit bends freely (the points two detection windows either side), as arc
+   * lengths (m); on a ring s0 may be below 0 or s1 beyond the length.
+   */
+  readonly s0: number;
+  readonly s1: number;
 }
 
 export type SegmentKind = "straight" | "arc" | "helix" | "irregular";

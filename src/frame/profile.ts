@@ -1,5 +1,5 @@
 import { ParameterError, InputError } from "../errors.js";
-import type { Profile, Trace } from "../types.js";
+import type { Profile, ProfileKink, Trace } from "../types.js";
 import { fitBands } from "./bands.js";
 import { arcAt, uAtArc, type ArcTable } from "./curve.js";
 import { checkClosable, describeLength, GAP_LIMIT } from "./fitGuard.js";
@@ -8,7 +8,7 @@ import { findKinks, type Kink } from "./kinks.js";
 import { chordTurn, COARSE_CHORD_TURN, MAX_SPARSE_POINTS, NORMAL_MISFIT_LIMIT, normalMisfit, runPasses, zigzags, type PassesResult } from "./passes.js";
 export { segmentCount } from "./passes.js";
 import { differenceNoise, findOverlap, findRetrace, selfWindow, grossOutliers, medianOf, referenceLength, startParameter, stepLengths, toCanonical, type CanonicalTrace } from "./robustStart.js";
-import { chooseLevels, curvatureLevel } from "./levels.js";
+import { chooseLevels, curvatureLevel, KINK_ZONE_WINDOWS } from "./levels.js";
 
 /** Options of `fitProfile`; lengths in metres. */
 export interface ProfileOptions {
@@ -362,7 +362,31 @@ function fitFrom(trace: Trace, start: Start, set: Settings, diagnostics: string[
     diagnostics.push(`noise not estimable: on a sparse trace (${fit.u.length} points, a few per turn) the shape cannot be told from the noise; no bands (give the coordinate error to get them)`);
     return fitBands(trace, start, fit, levels, samples, { ...set, replicates: 0 }, diagnostics);
   }
-  return fitBands(trace, start, fit, levels, samples, set, diagnostics);
+  const profile = fitBands(trace, start, fit, levels, samples, set, diagnostics);
+  return kinks.length > 0 ? { ...profile, kinks: profileKinks(trace, start, fit, samples, kinks) } : profile;
+}
+
+/** The hinged kinks on the profile's arc length (from its start, wrapped on a ring), in order of s. */
+function profileKinks(trace: Trace, start: Start, fit: PassesResult, samples: Samples, kinks: readonly Kink[]): ProfileKink[] {
+  const { table } = fit, length = table.length, L0 = start.canon.scale;
+  const origin = arcAt(table, samples.u[0], start.closed) - samples.s[0];
+  const n = fit.u.length, reach = (k: Kink) => KINK_ZONE_WINDOWS * k.window;
+  return kinks.map((k) => {
+    let s = arcAt(table, fit.u[k.at], start.closed) - origin;
+    if (start.closed) s = ((s % length) + length) % length;
+    else s = Math.min(Math.max(s, 0), length);
+    // The zone: the arc length over the points `reach` either side (clamped at open ends).
+    const span = (j: number) => {
+      const jj = start.closed ? ((j % n) + n) % n : Math.min(Math.max(j, 0), n - 1);
+      let d = arcAt(table, fit.u[jj], start.closed) - arcAt(table, fit.u[k.at], start.closed);
+      if (start.closed) d = j < k.at ? -(((-d) % length) + length) % length : ((d % length) + length) % length;
+      return d;
+    };
+    const i = start.kept[k.at];
+    const s0 = start.closed ? s + span(k.at - reach(k)) : Math.max(0, s + span(k.at - reach(k)));
+    const s1 = start.closed ? s + span(k.at + reach(k)) : Math.min(length, s + span(k.at + reach(k)));
+    return { s: s * L0, angle: k.angle, inputRow: trace.rows ? trace.rows[i] : i + 1, s0: s0 * L0, s1: s1 * L0 };
+  }).sort((a, b) => a.s - b.s);
 }
 
 /** Where the profile is sampled: sorted foot points of the kept points, or a uniform step. */

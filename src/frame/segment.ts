@@ -1,5 +1,5 @@
 import { quantile } from "d3-array";
-import { FLAG_END, FLAG_TORSION_NOT_MEASURABLE, FLAG_TORSION_UNDEFINED, type Feature, type Profile, type Segment, type SegmentKind, type StretchShape, type Trace } from "../types.js";
+import { FLAG_END, FLAG_TORSION_NOT_MEASURABLE, FLAG_TORSION_UNDEFINED, type Feature, type Profile, type ProfileKink, type Segment, type SegmentKind, type StretchShape, type Trace } from "../types.js";
 import { curvaturePeaks, findFeatures, type CurvaturePeak } from "./features.js";
 import { checkFit, fitCircle, fitHelix, fitLine, type FitCheck, type PrimitiveFit } from "./primitives.js";
 
@@ -130,15 +130,22 @@ export function segmentWire(profile: Profile, options: SegmentOptions = {}): { s
   const kv = Float64Array.from(kappa, (x) => (Number.isFinite(x) ? x : 0));
   const defined = Uint8Array.from({ length: n }, (_, i) => (Number.isFinite(tau[i]) && !(flags[i] & (FLAG_TORSION_UNDEFINED | FLAG_TORSION_NOT_MEASURABLE)) ? 1 : 0));
   const tv = Float64Array.from(tau, (t, i) => (defined[i] ? t : 0));
-  const sigmaK = noiseSd(kv, Uint8Array.from(kappa, (k, i) => (Number.isFinite(k) && !(flags[i] & FLAG_END) ? 1 : 0)), res, ds, kv);
+  // Samples near a kink found in the points (the fit is hinged there: its curvature is the hinge's
+  // shape, not the wire's) count like end samples: barely in the stretch means, not in their
+  // spread, and each kink is a change point (an arc of radius 200 nm with a 60 degree kink had been
+  // cut into arc, a 180 nm "irregular" stretch around the kink, and arc).
+  const kinks = profile.kinks ?? [];
+  const zone = kinkZoneMask(s, kinks, profile.length, profile.closed);
+  const edge = (i: number) => (flags[i] & FLAG_END) !== 0 || zone[i] === 1;
+  const sigmaK = noiseSd(kv, Uint8Array.from(kappa, (k, i) => (Number.isFinite(k) && !edge(i) ? 1 : 0)), res, ds, kv);
   const resT = profile.lambdaTorsion > 0 && profile.lambda > 0 ? res * Math.max(1, (profile.lambdaTorsion / profile.lambda) ** (1 / 6)) : res;
-  const sigmaT = noiseSd(tv, Uint8Array.from(defined, (d, i) => (d && !(flags[i] & FLAG_END) ? 1 : 0)), resT, ds, kv);
+  const sigmaT = noiseSd(tv, Uint8Array.from(defined, (d, i) => (d && !edge(i) ? 1 : 0)), resT, ds, kv);
   // End samples (flag 4) carry the fit's end bias, not the wire's shape: at 1% of the weight they
   // cannot open a stretch of their own but still give an all-end stretch its mean. At full weight
   // the near-interpolated ends of sparse helices (curvature +11%, +6% at the third and fourth
   // points) cut ideal 20-60-atom helices into 3-7 stretches.
-  const wk = Float64Array.from(kappa, (k, i) => (Number.isFinite(k) ? (flags[i] & FLAG_END ? END_WEIGHT : 1) / (sigmaK * sigmaK) : 0));
-  const wt = Float64Array.from(defined, (d, i) => (d ? (flags[i] & FLAG_END ? END_WEIGHT : 1) / (sigmaT * sigmaT) : 0));
+  const wk = Float64Array.from(kappa, (k, i) => (Number.isFinite(k) ? (edge(i) ? END_WEIGHT : 1) / (sigmaK * sigmaK) : 0));
+  const wt = Float64Array.from(defined, (d, i) => (d ? (edge(i) ? END_WEIGHT : 1) / (sigmaT * sigmaT) : 0));
   const prefix = (w: Float64Array, x: Float64Array) => {
     const a = new Float64Array(n + 1), b = new Float64Array(n + 1), c = new Float64Array(n + 1);
     for (let i = 0; i < n; ++i) {
@@ -225,9 +232,14 @@ export function segmentWire(profile: Profile, options: SegmentOptions = {}): { s
     const km = mean(kv, 0, n), rv = Math.sqrt(spread(kv, 0, n)) / km;
     if (cost(0, n) <= cut + (bounds.length - 1) * beta || rv <= (options.irregularRelative ?? 0.1)) bounds = [0, n];
   }
+  // each kink is a change point, and no other lies in its zone
+  const kinkAt = kinkIndices(s, kinks, profile.closed);
+  if (kinkAt.length > 0) bounds = [...new Set([...bounds.filter((b) => b === 0 || b === n || zone[b] === 0), ...kinkAt])].sort((a, b) => a - b);
+  const isKinkBound = (b: number) => kinkAt.includes(b);
   // local bends become stretches of their own
-  // (not within one resolution length of an open end, where the fit's curvature is biased)
-  const peaks = curvaturePeaks(s, kv, bounds, sigmaK, res, options.bendSigmas ?? 6, options.bendMinAngle ?? (5 * Math.PI) / 180).filter((p) => !(flags[p.ipeak] & FLAG_END));
+  // (not within one resolution length of an open end, where the fit's curvature is biased, nor
+  // at a kink: a feature, not a stretch)
+  const peaks = curvaturePeaks(s, kv, bounds, sigmaK, res, options.bendSigmas ?? 6, options.bendMinAngle ?? (5 * Math.PI) / 180).filter((p) => !edge(p.ipeak));
   if (peaks.length > 0) {
     bounds = splitAtPeaks(bounds, peaks, minSamples);
     const peakAt = (k: number) => peaks.some((p) => bounds[k] <= p.ipeak && p.ipeak < bounds[k + 1]);
@@ -235,14 +247,14 @@ export function segmentWire(profile: Profile, options: SegmentOptions = {}): { s
     // shoulders reach about one resolution length out) joins its other neighbour
     for (let k = 0; k + 1 < bounds.length; ++k) {
       if (peakAt(k) || s[Math.min(n - 1, bounds[k + 1] - 1)] - s[bounds[k]] + ds >= 2 * minLen) continue;
-      if (k > 0 && peakAt(k - 1) && k + 2 < bounds.length && !peakAt(k + 1)) { bounds.splice(k + 1, 1); --k; }
-      else if (k + 2 < bounds.length && peakAt(k + 1) && k > 0 && !peakAt(k - 1)) { bounds.splice(k, 1); --k; }
+      if (k > 0 && peakAt(k - 1) && k + 2 < bounds.length && !peakAt(k + 1) && !isKinkBound(bounds[k + 1])) { bounds.splice(k + 1, 1); --k; }
+      else if (k + 2 < bounds.length && peakAt(k + 1) && k > 0 && !peakAt(k - 1) && !isKinkBound(bounds[k])) { bounds.splice(k, 1); --k; }
     }
     // and neighbours that are not bends are joined again by the criterion of the fit
     for (;;) {
       let best = -1, bestRise = beta;
       for (let k = 0; k + 2 < bounds.length; ++k) {
-        if (peakAt(k) || peakAt(k + 1)) continue;
+        if (peakAt(k) || peakAt(k + 1) || isKinkBound(bounds[k + 1])) continue;
         const rise = cost(bounds[k], bounds[k + 2]) - cost(bounds[k], bounds[k + 1]) - cost(bounds[k + 1], bounds[k + 2]);
         if (rise < bestRise) { best = k; bestRise = rise; }
       }
@@ -280,8 +292,8 @@ export function segmentWire(profile: Profile, options: SegmentOptions = {}): { s
     // the stretch): counted whenever they were most of it, they made a clean 20-point DNA-like helix
     // (8 non-end samples) "irregular" in 4 draws of 6.
     let j0 = i0, j1 = i1;
-    while (j0 < j1 && flags[j0] & FLAG_END) ++j0;
-    while (j1 > j0 && flags[j1 - 1] & FLAG_END) --j1;
+    while (j0 < j1 && edge(j0)) ++j0;
+    while (j1 > j0 && edge(j1 - 1)) --j1;
     if (j1 - j0 < Math.min(5, 0.5 * (i1 - i0))) { j0 = i0; j1 = i1; }
     const rmsK = Math.sqrt(spread(kv, j0, j1)), rmsT = Math.sqrt(spreadWhere(tv, wt, j0, j1));
     const darboux = Math.hypot(km, Number.isFinite(tm) ? tm : 0);
@@ -299,12 +311,13 @@ export function segmentWire(profile: Profile, options: SegmentOptions = {}): { s
     for (let i = i0; i < i1; ++i) {
       const h = 0.5 * (profile.kappaHi[i] - profile.kappaLo[i]);
       if (!Number.isFinite(h)) { okB = false; break; }
+      if (i < j0 || i >= j1) continue;
       hkB += h;
       if (defined[i]) { const q = 0.5 * (profile.tauHi[i] - profile.tauLo[i]); if (Number.isFinite(q)) { htB += q; ctB++; } }
     }
     if (reps === 0 && okB) {
       const sq = Math.sqrt(nSeg);
-      hkB /= i1 - i0;
+      hkB /= j1 - j0;
       kLo = Math.max(0, km - hkB / sq); kHi = km + hkB / sq;
       if (ctB > 0 && wT > 0) { htB /= ctB; tLo = tm - htB / sq; tHi = tm + htB / sq; }
     }
@@ -312,7 +325,7 @@ export function segmentWire(profile: Profile, options: SegmentOptions = {}): { s
       const km_r: number[] = [], tm_r: number[] = [];
       for (let r = 0; r < reps; ++r) {
         let a = 0, b = 0, c = 0, d = 0;
-        for (let i = i0; i < i1; ++i) {
+        for (let i = j0; i < j1; ++i) {
           const kr = profile.kappaSamples![r * n + i];
           if (Number.isFinite(kr)) { a += kr; b += 1; }
           const tr = profile.tauSamples !== undefined ? profile.tauSamples[r * n + i] : NaN;
@@ -392,6 +405,29 @@ function noiseSd(x: Float64Array, use: Uint8Array, corr: number, ds: number, kv:
 }
 
 /** Insert the edges of each peak into the stretch bounds; a leftover shorter than minSamples joins the peak. */
+/** 1 for the samples within a kink's zone (its s0..s1; on a ring also one length either way), else 0. */
+function kinkZoneMask(s: Float64Array, kinks: readonly ProfileKink[], length: number, closed: boolean): Uint8Array {
+  const n = s.length, out = new Uint8Array(n);
+  for (const k of kinks) {
+    for (let i = 0; i < n; ++i) {
+      const shifts = closed ? [0, -length, length] : [0];
+      if (shifts.some((d) => s[i] + d >= k.s0 && s[i] + d <= k.s1)) out[i] = 1;
+    }
+  }
+  return out;
+}
+
+/** Sample index of each kink (the first sample at or beyond its s; not the ends), ascending. */
+function kinkIndices(s: Float64Array, kinks: readonly ProfileKink[], _closed: boolean): number[] {
+  const n = s.length, out: number[] = [];
+  for (const k of kinks) {
+    let i = 0;
+    while (i < n && s[i] < k.s) ++i;
+    if (i > 0 && i < n) out.push(i);
+  }
+  return [...new Set(out)].sort((a, b) => a - b);
+}
+
 function splitAtPeaks(bounds: number[], peaks: readonly CurvaturePeak[], minSamples: number): number[] {
   const set = new Set(bounds);
   for (const p of peaks) {

@@ -8,6 +8,7 @@ import { describe, expect, it } from "vitest";
 import { findKinks, KINK_MIN_ANGLE, KINK_NOISE_RATIO, KINK_WINDOW } from "../../src/frame/kinks.js";
 import { KINK_HINGE_MIN_OPENING } from "../../src/frame/passes.js";
 import { fitProfile, robustStart } from "../../src/frame/profile.js";
+import { samplePoints, segmentWire } from "../../src/frame/segment.js";
 import { FLAG_BIAS, FLAG_END, type Profile, type Trace } from "../../src/types.js";
 import { bendCurve, bumpCurve, circleCurve, conicalHelixCurve, helixCurve, rigidMotion, sampleCurveUneven, trefoilCurve, vivianiCurve, wavyCoilCurve } from "../support/curves.js";
 import { kinkedArc, kinkedHelix } from "../support/kinkedWires.js";
@@ -102,6 +103,25 @@ describe("a kinked wire is fitted without the kink setting its level", () => {
     const p = fitProfile(trace(kinkedArc(500, 600, 300, 20, 0.2, 1)), { bootstrap: 0, seed: 1 });
     // Circle: kappa = 1/R with R = 500 nm, beyond 40 points of the kink, outside the end zones.
     expect(medianAway(p, 301, 40, (j) => (p.flags[j] & FLAG_END ? NaN : p.kappa[j] * nm * 500 - 1))).toBeLessThan(0.02); // measured 0.003; 0.226 before
+  });
+
+  it("names a kink found in the points as a feature, with the angle measured on the points", () => {
+    // Arc of radius 200 nm, 2 nm steps, a 60 degree kink after row 301, 0.2 nm of noise. The fit's
+    // curvature peak there (the hinge's shape) had been named a bend turning 104 degrees.
+    const tr = trace(kinkedArc(200, 600, 300, 60, 0.2, 1));
+    const p = fitProfile(tr, { bootstrap: 0 });
+    expect(p.kinks?.map((k) => k.inputRow)).toEqual([301]);
+    const { features } = segmentWire(p, { points: samplePoints(tr, p)! });
+    const turns = features.filter((f) => f.kind === "bend" || f.kind === "kink");
+    expect(turns.map((f) => f.kind)).toEqual(["kink"]);
+    expect(Math.abs((turns[0].turningAngle! * 180) / Math.PI - 60)).toBeLessThan(8); // measured 56.4; seeds 2-6: 58-65
+    expect(Math.abs(turns[0].s / nm - 600)).toBeLessThan(4); // 300 steps of 2 nm; measured 600.1
+    expect(turns[0].lowerBound).toBe(true);
+    // Two arcs of radius 200 nm meeting at the kink (a 180 nm "irregular" stretch around it before).
+    const { segments } = segmentWire(p, { points: samplePoints(tr, p)! });
+    expect(segments.map((g) => g.kind)).toEqual(["arc", "arc"]);
+    expect(Math.abs(segments[1].s0 - turns[0].s)).toBeLessThan(3 * nm);
+    for (const g of segments) expect(Math.abs(g.kappa * nm * 200 - 1)).toBeLessThan(0.01); // measured < 0.1%
   });
 
   it("keeps the knots close enough to follow a tight bend taken for a kink (its points had been dropped as outliers)", () => {
