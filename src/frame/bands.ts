@@ -110,6 +110,7 @@ export function fitBands(
   const { kappaLo, kappaHi, tauLo, tauHi, straightCount } = bands;
   // Around a kink the fit bends at its hinge: biased there and one resolution length beyond.
   if (lv.kinkZones.length > 0) flagKinkZones(flags, table, sampleU, lv.kinkZones, closed, lv.resolution);
+  if (lv.unresolved) flagAll(flags, FLAG_BIAS);
   const resolvedMask = torsionMask(flags);
   const fr = frames(r1, kv, resolvedMask, closed);
   markTransported(fr.transported, flags);
@@ -464,6 +465,11 @@ function countSet(mask: Uint8Array): number {
   let c = 0;
   for (let j = 0; j < mask.length; ++j) c += mask[j];
   return c;
+}
+
+/** flags[i] |= bit for every sample. */
+function flagAll(flags: Uint8Array, bit: number): void {
+  for (let i = 0; i < flags.length; ++i) flags[i] |= bit;
 }
 
 /** Sets FLAG_BIAS on samples in a kink's stretch (`kinkZones`) or within `margin` (arc length) of it. */
