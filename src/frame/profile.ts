@@ -405,7 +405,10 @@ function sampleAt(trace: Trace, start: Start, fit: PassesResult, set: Settings):
   const closed = start.closed;
   if (set.step !== undefined) {
     const step = set.step / start.canon.scale;
-    const count = closed ? Math.max(1, Math.floor(length / step - 1e-9) + 1) : Math.floor(length / step + 1e-9) + 1;
+    // An open wire ends with a sample at its end (the last interval may be shorter than the step):
+    // without it a 198 nm helix resampled every 20 nm ended at 180 nm in every output.
+    const whole = Math.floor(length / step + 1e-9) + 1;
+    const count = closed ? Math.max(1, Math.floor(length / step - 1e-9) + 1) : whole + (length - (whole - 1) * step > 1e-9 * step ? 1 : 0);
     if (count < 6) {
       const most = (length * start.canon.scale) / (closed ? 6 : 5);
       throw new ParameterError("profile", "step", `${describeLength(set.step, trace.source)} gives ${count} sample${count === 1 ? "" : "s"} along a wire ${describeLength(length * start.canon.scale, trace.source)} long; use at most ${describeLength(most, trace.source)} (6 samples or more)`);

@@ -13,16 +13,16 @@ const arc = write(join(root, "arc.csv"), arcCsv(71, 80)); // radius 60 nm over 1
 const material = write(join(root, "m.json"), TEST_MATERIAL);
 
 describe("--step longer than the wire", () => {
-  it("profile refuses it, naming --step, the samples it gives and the longest step that works", async () => {
+  it("profile refuses it, naming --step, the samples it gives (the start, every step, the end) and the longest step that works", async () => {
     const r = await run(["profile", arc, "--step", "1um", "--out", join(root, "s.csv"), "--bootstrap", "0"]);
     expect(r.code).toBe(1);
-    expect(r.stderr).toMatch(/^twistline: profile: --step: 1000 nm gives 1 sample along a wire 18\d(\.\d+)? nm long; use at most 3\d(\.\d+)? nm \(6 samples or more\)\n$/);
+    expect(r.stderr).toMatch(/^twistline: profile: --step: 1000 nm gives 2 samples along a wire 18\d(\.\d+)? nm long; use at most 3\d(\.\d+)? nm \(6 samples or more\)\n$/);
   });
 
   it("analyze refuses it too, and writes nothing", async () => {
     const r = await run(["analyze", arc, "--step", "100nm", "--out", join(root, "step-out"), "--bootstrap", "0"]);
     expect(r.code).toBe(1);
-    expect(r.stderr).toMatch(/^twistline: analyze: --step: 100 nm gives 2 samples along a wire/);
+    expect(r.stderr).toMatch(/^twistline: analyze: --step: 100 nm gives 3 samples along a wire/);
   });
 });
 

@@ -103,6 +103,22 @@ describe("fitProfile: closed forms", () => {
   });
 });
 
+describe("fitProfile: resampled at a fixed step", () => {
+  it("samples an open wire every step from its start and at its end (the end had been left out)", () => {
+    // Helix of radius 10 nm, 4 nm rise per radian, 2 turns: kappa = R/(R^2+c^2) (do Carmo 1976, sec. 1-5).
+    const { xyz } = sampleCurve(helixCurve(10e-9, 4e-9, 2), 300, 0.001 * 10e-9, 3);
+    const p = fitProfile(trace(xyz), { bootstrap: 0, step: 20e-9 });
+    const n = p.n;
+    expect(p.s[0]).toBe(0);
+    expect(p.s[n - 1]).toBeCloseTo(p.length, 15);
+    for (let j = 1; j < n - 1; ++j) expect(p.s[j] - p.s[j - 1]).toBeCloseTo(20e-9, 15);
+    expect(p.s[n - 1] - p.s[n - 2]).toBeLessThanOrEqual(20e-9 * (1 + 1e-9));
+    expect(n).toBe(Math.floor(p.length / 20e-9) + 2); // 135.3 nm: 0, 20, ..., 120 and the end
+    const k0 = 10 / (100 + 16) / 1e-9;
+    expect(Math.abs(p.kappa[n >> 1] / k0 - 1)).toBeLessThan(0.01);
+  });
+});
+
 describe("fitProfile: invariances (property tests, fixed seeds)", () => {
   const R = 1e-6, c = 0.3e-6;
   const { xyz } = sampleCurve(helixCurve(R, c, 2), 300, 0.005 * R, 9);
