@@ -39,7 +39,7 @@ export function csvField(text: string): string {
 export function summaryToCsv(rows: readonly SummaryRow[]): string {
   const lines = [
     `# ${TOOL_NAME} ${TOOL_VERSION}: batch summary, one row per wire`,
-    "# note: model estimates, not measurements; bands (_lo, _hi) are 95% bootstrap intervals of the statistic",
+    "# note: model estimates, not measurements; bands (_lo, _hi) are 95% bootstrap intervals of the statistic, centred on the estimate (each contains it)",
     "# units: lengths (length, resolution, metastable_length, periodic_length) in the row's unit; kappa and tau in 1/unit; deepest_pin_kT in k_B T; seconds of wall time",
     "# kappa_mean, tau_mean, tau_abs_mean: arc-length weighted means (tau_abs_mean of |torsion|, not |tau_mean|); kappa_max: maximum curvature; tau_max_abs: maximum |torsion| (undefined torsion skipped)",
     "# stretches_*: stretches of each kind; pinning_sites, deepest_pin_kT, metastable_length, periodic_length: empty without a material",

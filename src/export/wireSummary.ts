@@ -57,16 +57,30 @@ function stats(x: ArrayLike<number>, off: number, w: Float64Array, abs: boolean)
   return [b > 0 ? a / b : NaN, m === -Infinity ? NaN : m];
 }
 
-function banded(value: number, reps: number[]): Banded {
+/**
+ * The 95% band of a whole-wire statistic from its values over the replicates, centred on the
+ * estimate as the per-sample bands are (src/frame/bands.ts, bandOffsets): the replicates' 2.5% and
+ * 97.5% quantiles taken relative to their own median and added to `value`. A maximum or a mean of
+ * |tau| over noisy replicates sits above the estimate's (noise only adds to a maximum or a
+ * magnitude), and a planar wire's torsion is 0 while its replicates carry the noise: raw replicate
+ * quantiles then miss the estimate (a ring's kappa_max 0.0200131 with band [0.0200157, 0.0200478]).
+ * Centred this way the band always contains the estimate (the median lies between the quantiles).
+ * `nonNegative`: a statistic that cannot be negative (kappa, |tau|) has its lower end floored at 0.
+ * No band (NaN) with fewer than 2 finite replicates or a non-finite estimate.
+ */
+function banded(value: number, reps: number[], nonNegative: boolean): Banded {
   const finite = reps.filter(Number.isFinite);
-  if (finite.length < 2) return { value, lo: NaN, hi: NaN };
-  return { value, lo: quantile(finite, 0.025) ?? NaN, hi: quantile(finite, 0.975) ?? NaN };
+  if (finite.length < 2 || !Number.isFinite(value)) return { value, lo: NaN, hi: NaN };
+  const med = quantile(finite, 0.5)!, q1 = quantile(finite, 0.025)!, q2 = quantile(finite, 0.975)!;
+  const lo = value + Math.min(0, q1 - med), hi = value + Math.max(0, q2 - med);
+  return { value, lo: nonNegative ? Math.max(0, lo) : lo, hi };
 }
 
 /**
  * The numbers of one wire for a batch summary: arc-length weighted mean and maximum of kappa, mean
  * torsion, mean |tau| and maximum |tau| (undefined torsion skipped), each with a 95% interval from the same
- * statistic over the bootstrap replicates (2.5% and 97.5% quantiles, R-7 as d3-array's quantile),
+ * statistic over the bootstrap replicates (2.5% and 97.5% quantiles about their median, R-7 as d3-array's
+ * quantile, added to the estimate: {@link banded}),
  * stretch counts by kind, pinning sites, the deepest site in k_B T, the metastable and periodic
  * lengths, and the warnings (model warnings, export warnings, fit diagnostics).
  * Cost O(n R) for R replicates.
@@ -101,11 +115,11 @@ export function wireSummary(a: Analysis, doc: ModelDocument): WireSummary {
     length: p.length * k,
     closed: p.closed,
     resolution: p.resolution * k,
-    kappaMean: scale(banded(km, rk), 1 / k),
-    kappaMax: scale(banded(kx, rkx), 1 / k),
-    tauMean: scale(banded(tm, rt), 1 / k),
-    tauAbsMean: scale(banded(ta, rta), 1 / k),
-    tauMaxAbs: scale(banded(tx, rtx), 1 / k),
+    kappaMean: scale(banded(km, rk, true), 1 / k),
+    kappaMax: scale(banded(kx, rkx, true), 1 / k),
+    tauMean: scale(banded(tm, rt, false), 1 / k),
+    tauAbsMean: scale(banded(ta, rta, true), 1 / k),
+    tauMaxAbs: scale(banded(tx, rtx, true), 1 / k),
     stretches: { straight: count("straight"), arc: count("arc"), helix: count("helix"), irregular: count("irregular") },
     pinningSites: hasModel ? doc.pinning.length : null,
     deepestPinKT: hasModel ? doc.pinning[0]?.depthKT ?? null : null,

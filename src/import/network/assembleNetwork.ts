@@ -50,7 +50,7 @@ export interface AssembleOptions {
  * skeleton's estimate as a weak prior; when the fit moves the junction by more than 3 scales, or
  * fewer than two axes are known, the estimate is kept and a note says so), measures the angles
  * between the end tangents, marks each branch's samples within `zoneRadii` scales of a junction at
- * its ends, and counts the cycles (cycle rank). Pure.
+ * its ends, and counts the cycles (cycle rank over the pieces of the graph built: {@link graphPieces}). Pure.
  */
 export function assembleNetwork(raw: readonly RawBranch[], rawJunctions: readonly RawJunction[], options: AssembleOptions): WireNetwork {
   const zoneRadii = options.zoneRadii ?? 2;
@@ -134,6 +134,14 @@ export function assembleNetwork(raw: readonly RawBranch[], rawJunctions: readonl
       shift: Math.hypot(position[0] - prior[0], position[1] - prior[1], position[2] - prior[2]),
     };
   });
+  // The cycle rank counts the connected pieces of the graph built here (junctions, ends and rings
+  // joined by branches), not the input's: two wires welded at one vertex are one piece of the mesh
+  // but two unjoined branches (rank 2 - 4 + 1 = -1 had been reported).
+  const components = new Set(raw.map((b) => b.component)).size;
+  const pieces = graphPieces(order.map((bi, k) => ({ ...fromTo[k], closed: raw[bi].closed })), junctionId.size, ends.length);
+  if (pieces > components) {
+    notes.push(`${pieces} unjoined parts of the network in ${components} connected ${components === 1 ? "piece" : "pieces"} of the input: wires that touch without a junction are kept apart`);
+  }
   // branches, with their junction zones
   const branches: NetworkBranch[] = order.map((bi, k) => {
     const b = raw[bi];
@@ -190,7 +198,32 @@ export function assembleNetwork(raw: readonly RawBranch[], rawJunctions: readonl
     };
   });
   const rings = branches.filter((b) => b.closed && b.from === null).length;
-  const components = new Set(raw.map((b) => b.component)).size;
-  const cycles = cycleRank(branches.length, junctions.length + ends.length + rings, components);
+  const cycles = cycleRank(branches.length, junctions.length + ends.length + rings, pieces);
   return { source: options.source, junctions, ends, branches, cycles, components, diagnostics: notes };
+}
+
+/**
+ * Connected pieces of the network's graph: vertices are the junctions, the free ends and each ring
+ * with no junction (one vertex, as in the cycle rank), edges the branches. Union-find, O(branches).
+ */
+export function graphPieces(branches: readonly Pick<NetworkBranch, "from" | "to" | "closed">[], junctions: number, ends: number): number {
+  const parent: number[] = [];
+  const add = (): number => (parent.push(parent.length), parent.length - 1);
+  const find = (v: number): number => {
+    while (parent[v] !== v) v = parent[v] = parent[parent[v]];
+    return v;
+  };
+  for (let i = 0; i < junctions + ends; i++) add();
+  const vertex = (t: NetworkNode | null): number | null => (t === null ? null : t.kind === "junction" ? t.id - 1 : junctions + t.id - 1);
+  for (const b of branches) {
+    const u = vertex(b.from), w = vertex(b.to);
+    if (u === null && w === null) {
+      if (b.closed) add(); // a ring with no junction: its own vertex and piece
+      continue;
+    }
+    if (u !== null && w !== null) parent[find(u)] = find(w);
+  }
+  let pieces = 0;
+  for (let v = 0; v < parent.length; v++) if (find(v) === v) pieces++;
+  return pieces;
 }

@@ -10,7 +10,11 @@ export interface WireNetwork {
   readonly junctions: readonly NetworkJunction[];
   readonly ends: readonly NetworkEnd[];
   readonly branches: readonly NetworkBranch[];
-  /** Independent cycles: cycle rank branches - (junctions + ends) + components (a ring counts itself as one vertex). */
+  /**
+   * Independent cycles: cycle rank branches - (junctions + ends) + pieces of the network graph (a ring
+   * counts itself as one vertex); pieces, not `components`: wires that touch without a junction share
+   * an input component but not a piece. Never negative.
+   */
   readonly cycles: number;
   /** Connected pieces of the input that held wires. */
   readonly components: number;
