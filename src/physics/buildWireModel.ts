@@ -7,8 +7,8 @@ import { interactions } from "./interactions.js";
 import { symEigen3 } from "./linalg.js";
 import { magnonGaps } from "./magnonGaps.js";
 import type { PeriodicOptions } from "./periodicState.js";
-import { firstOrderPinning, mergeLandscapes, pinningLandscape, pinningScan, type PinningOptions } from "./pinning.js";
-import { pinningSummary } from "./pinningSummary.js";
+import { firstOrderPinning, flatReference, mergeLandscapes, pinningLandscape, pinningScan, type PinningOptions } from "./pinning.js";
+import { pinningSummary, WALL_RESOLUTION } from "./pinningSummary.js";
 import { MU0, sampleValidity, validityLines } from "./sampleValidity.js";
 import { reducedSystem } from "./reducedSystem.js";
 import { relaxWire, wireChain } from "./relaxWire.js";
@@ -213,7 +213,16 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
   // pinning landscape
   let landscape: PinningLandscape | null = null;
   let pinning: PinningSite[] = [], pinningMinor: PinningSite[] = [], barriers: PinningSite[] = [];
-  if (options.pinning !== false) {
+  // a wall of width l needs the continuum model (l above the lattice spacing) and a chain that
+  // resolves it (spacing below WALL_RESOLUTION l); otherwise the landscape is a discretisation
+  // artefact (a straight wire gave "sites" of 0.7 K l S at spacing 5 l): no landscape, say why
+  const hSorted = Float64Array.from(chain.h).sort();
+  const hMedian = hSorted.length > 0 ? hSorted[hSorted.length >> 1] : 0;
+  let pinningSkipped: string | null = null;
+  if (material.latticeSpacing !== null && l < material.latticeSpacing) pinningSkipped = `magnetic length ${(l * 1e9).toPrecision(3)} nm below the lattice spacing ${(material.latticeSpacing * 1e9).toPrecision(3)} nm: a wall is not a continuum texture, no pinning landscape`;
+  else if (hMedian > WALL_RESOLUTION) pinningSkipped = `profile samples ${hMedian.toPrecision(3)} magnetic lengths apart (median; > ${WALL_RESOLUTION}) cannot resolve a wall of width l: no pinning landscape (sample the profile finer than l/2 = ${((l / 2) * 1e9).toPrecision(3)} nm)`;
+  if (pinningSkipped !== null && options.pinning !== false) warnings.push(pinningSkipped);
+  if (options.pinning !== false && pinningSkipped === null) {
     if (models.some((m) => m.state === "periodic")) warnings.push("a stretch has a periodic ground state: the wall landscape there is taken on the relaxed texture and is indicative only");
     if (textureState === "onion" || textureState === "multidomain") warnings.push(`the ring's ground state (${textureState}) already holds walls: the landscape of one more wall on it is indicative only`);
     let scan = pinningScan(chain, sRed, relaxed.local, inter.kappaReduced, system.order, { ...(options.pinning ?? {}), keepWalls: true });
@@ -226,9 +235,10 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
     if (replicates === null) warnings.push("no bootstrap replicates kept with the profile: pinning depths have no 95% interval");
     const ms = material.saturationMagnetisation;
     const depinning = system.order === "ferro" && ms !== null && material.anisotropy !== null ? { anisotropy: material.anisotropy, saturationMagnetisation: ms } : null;
+    const reference = flatReference(chain, sRed, inter.kappaReduced, system.order, options.pinning || {});
     const summarise = () => pinningSummary({
       scan, h: chain.h, q: system.q, replicates, kappaReduced: inter.kappaReduced, tauReduced: tauRelax, sReduced: sRed, validity,
-      l, energyUnit, kT, depinning,
+      l, energyUnit, kT, depinning, reference,
     });
     let summary = summarise();
     if (depinning !== null && summary.sites.length > 0) {

@@ -226,3 +226,27 @@ describe("mirror-image AFM wires with a curvature dip (PHYSICS.md section 5, cor
     expect(sa.depthReducedHi!).toBeGreaterThanOrEqual(sa.depthReduced);
   });
 });
+
+describe("no pinning landscape where a wall cannot be resolved", () => {
+  // Truth: a straight wire has no curvature pinning (PHYSICS.md section 5). A chain coarser than
+  // l/2 or l below the lattice spacing turned its discretisation into "sites" (0.7 K l S deep at
+  // spacing 5 l); common practice: a continuum wall needs cells finer than its width and l above
+  // the lattice spacing.
+  const line = makeProfile({ n: 41, length: 200e-9, kappa: () => 0, tau: () => 0 }); // spacing 5 nm
+  it("profile samples 5 l apart: warning, no landscape, no sites", () => {
+    const m = buildWireModel(line, segment(line), parseMaterial({ order: "ferro", magneticLength: 1e-9 }, "fm.json"));
+    expect(m.landscape).toBeNull();
+    expect(m.pinning.length + m.pinningMinor.length).toBe(0);
+    expect(m.warnings.some((w) => /cannot resolve a wall/.test(w))).toBe(true);
+  });
+  it("magnetic length below the lattice spacing: warning, no landscape", () => {
+    const m = buildWireModel(line, segment(line), parseMaterial({ order: "ferro", magneticLength: 20e-9, latticeSpacing: 25e-9 }, "fm.json"));
+    expect(m.landscape).toBeNull();
+    expect(m.warnings.some((w) => /below the lattice spacing/.test(w))).toBe(true);
+  });
+  it("a resolved straight wire (spacing l/4) has no relevant site", () => {
+    const m = buildWireModel(line, segment(line), parseMaterial({ order: "ferro", magneticLength: 20e-9 }, "fm.json"));
+    expect(m.landscape).not.toBeNull();
+    expect(m.pinning.length).toBe(0);
+  });
+});
