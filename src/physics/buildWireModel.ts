@@ -11,6 +11,7 @@ import { firstOrderPinning, flatReference, mergeLandscapes, pinningLandscape, pi
 import { pinningSummary, WALL_RESOLUTION } from "./pinningSummary.js";
 import { MU0, sampleValidity, validityLines } from "./sampleValidity.js";
 import { reducedSystem } from "./reducedSystem.js";
+import { relaxChain } from "./relaxChain.js";
 import { relaxWire, wireChain } from "./relaxWire.js";
 import { ringState, ringWalls } from "./ringState.js";
 import { textureStarts } from "./textureStarts.js";
@@ -171,13 +172,27 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
   if (!relaxed.converged) warnings.push("texture relaxation stopped before convergence");
   const nameOf = (name: string, local: Float64Array): TextureState => {
     if (ferroRing) {
+      // the vortex is m = +-T all round (PHYSICS.md section 3); a wall-free texture that leaves the
+      // tangent (m = B: the local homogeneous state for kappa l > 1, e = 0) is not a vortex
       const walls = ringWalls(local);
-      return walls === 0 ? "vortex" : walls === 2 ? "onion" : "multidomain";
+      let minT = Infinity;
+      for (let i = 0; i < local.length / 3; ++i) minT = Math.min(minT, Math.abs(local[3 * i]));
+      return walls === 0 ? (minT >= 0.5 ? "vortex" : "local-uniform") : walls === 2 ? "onion" : "multidomain";
     }
     return name === "periodic" ? "periodic" : name === "lab-uniform" ? "lab-uniform" : name === "homogeneous" ? "homogeneous" : "local-uniform";
   };
   const textureState = nameOf(relaxed.name, relaxed.local);
-  const alternatives: TextureAlternative[] = relaxed.alternatives.map((x) => ({
+  // closed FM wire: an alternative is listed only if it is a local minimum. A symmetric start can
+  // stop on a stationary point that is not one (m = B on a ring: tilting it in the plane by a toward
+  // a lab-fixed direction changes e by -a^2 cos^2(phi) on average < 0, own derivation from the ring
+  // energy of PHYSICS.md section 3; likewise the vortex above kappa l = 1): perturb and relax again.
+  const isMinimum = (x: { local: Float64Array; energy: number }): boolean => {
+    const rnd = mulberry32(7);
+    const v = Float64Array.from(x.local, (c) => c + 0.02 * (rnd() - 0.5));
+    const r = relaxChain(chain, v, { maxIterations: 3000 });
+    return !(r.energy < x.energy - 1e-4 * Math.max(1, Math.abs(x.energy)));
+  };
+  const alternatives: TextureAlternative[] = relaxed.alternatives.filter((x) => !ferroRing || isMinimum(x)).map((x) => ({
     state: nameOf(x.name, x.local),
     energyReduced: x.energy,
     energyJ: energyUnit !== null ? x.energy * energyUnit : null,
@@ -192,10 +207,13 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
   if (ring?.caution) warnings.push(ring.caution);
   if (ferroRing && ring !== null) {
     // every stretch of a closed FM wire carries the ring's state; the vortex is metastable when the
-    // onion wins and the vortex is still among the relaxed local minima
+    // onion wins, the vortex is linearly stable (PHYSICS.md sections 3 and 4: FM at tau = 0 the
+    // homogeneous m = T is unstable above kappa l = 1, the same closed-form criterion as the
+    // probabilities) and it is still among the relaxed local minima
     const ringLabel: GroundState = textureState === "vortex" ? "vortex" : "onion";
     const vortexAlt = alternatives.some((x) => x.state === "vortex");
-    const stability: Stability = ringLabel === "vortex" ? "stable" : vortexAlt ? "metastable" : "unstable";
+    const linearlyUnstable = ringLabels !== null && ringLabels.stability === "unstable";
+    const stability: Stability = ringLabel === "vortex" ? "stable" : vortexAlt && !linearlyUnstable ? "metastable" : "unstable";
     if (textureState === "multidomain") warnings.push("closed FM wire: the lowest texture found has more than two walls (labelled onion)");
     if (ring.nearCircular && ring.closedForm !== null && ring.closedForm.state !== ringLabel) {
       warnings.push(`closed FM wire: the relaxed texture is the ${ringLabel} but the circle of the same length (kappa l = ${ring.kappaCircleReduced.toPrecision(3)}) prefers the ${ring.closedForm.state}`);
