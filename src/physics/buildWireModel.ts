@@ -7,10 +7,11 @@ import { interactions } from "./interactions.js";
 import { symEigen3 } from "./linalg.js";
 import { magnonGaps } from "./magnonGaps.js";
 import type { PeriodicOptions } from "./periodicState.js";
-import { firstOrderPinning, mergeLandscapes, pinningLandscape, pinningScan, type PinningOptions } from "./pinning.js";
-import { pinningSummary } from "./pinningSummary.js";
+import { firstOrderPinning, flatReference, mergeLandscapes, pinningLandscape, pinningScan, type PinningOptions } from "./pinning.js";
+import { pinningSummary, WALL_RESOLUTION } from "./pinningSummary.js";
 import { MU0, sampleValidity, validityLines } from "./sampleValidity.js";
 import { reducedSystem } from "./reducedSystem.js";
+import { relaxChain } from "./relaxChain.js";
 import { relaxWire, wireChain } from "./relaxWire.js";
 import { ringState, ringWalls } from "./ringState.js";
 import { textureStarts } from "./textureStarts.js";
@@ -171,13 +172,27 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
   if (!relaxed.converged) warnings.push("texture relaxation stopped before convergence");
   const nameOf = (name: string, local: Float64Array): TextureState => {
     if (ferroRing) {
+      // the vortex is m = +-T all round (PHYSICS.md section 3); a wall-free texture that leaves the
+      // tangent (m = B: the local homogeneous state for kappa l > 1, e = 0) is not a vortex
       const walls = ringWalls(local);
-      return walls === 0 ? "vortex" : walls === 2 ? "onion" : "multidomain";
+      let minT = Infinity;
+      for (let i = 0; i < local.length / 3; ++i) minT = Math.min(minT, Math.abs(local[3 * i]));
+      return walls === 0 ? (minT >= 0.5 ? "vortex" : "local-uniform") : walls === 2 ? "onion" : "multidomain";
     }
     return name === "periodic" ? "periodic" : name === "lab-uniform" ? "lab-uniform" : name === "homogeneous" ? "homogeneous" : "local-uniform";
   };
   const textureState = nameOf(relaxed.name, relaxed.local);
-  const alternatives: TextureAlternative[] = relaxed.alternatives.map((x) => ({
+  // closed FM wire: an alternative is listed only if it is a local minimum. A symmetric start can
+  // stop on a stationary point that is not one (m = B on a ring: tilting it in the plane by a toward
+  // a lab-fixed direction changes e by -a^2 cos^2(phi) on average < 0, own derivation from the ring
+  // energy of PHYSICS.md section 3; likewise the vortex above kappa l = 1): perturb and relax again.
+  const isMinimum = (x: { local: Float64Array; energy: number }): boolean => {
+    const rnd = mulberry32(7);
+    const v = Float64Array.from(x.local, (c) => c + 0.02 * (rnd() - 0.5));
+    const r = relaxChain(chain, v, { maxIterations: 3000 });
+    return !(r.energy < x.energy - 1e-4 * Math.max(1, Math.abs(x.energy)));
+  };
+  const alternatives: TextureAlternative[] = relaxed.alternatives.filter((x) => !ferroRing || isMinimum(x)).map((x) => ({
     state: nameOf(x.name, x.local),
     energyReduced: x.energy,
     energyJ: energyUnit !== null ? x.energy * energyUnit : null,
@@ -192,10 +207,13 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
   if (ring?.caution) warnings.push(ring.caution);
   if (ferroRing && ring !== null) {
     // every stretch of a closed FM wire carries the ring's state; the vortex is metastable when the
-    // onion wins and the vortex is still among the relaxed local minima
+    // onion wins, the vortex is linearly stable (PHYSICS.md sections 3 and 4: FM at tau = 0 the
+    // homogeneous m = T is unstable above kappa l = 1, the same closed-form criterion as the
+    // probabilities) and it is still among the relaxed local minima
     const ringLabel: GroundState = textureState === "vortex" ? "vortex" : "onion";
     const vortexAlt = alternatives.some((x) => x.state === "vortex");
-    const stability: Stability = ringLabel === "vortex" ? "stable" : vortexAlt ? "metastable" : "unstable";
+    const linearlyUnstable = ringLabels !== null && ringLabels.stability === "unstable";
+    const stability: Stability = ringLabel === "vortex" ? "stable" : vortexAlt && !linearlyUnstable ? "metastable" : "unstable";
     if (textureState === "multidomain") warnings.push("closed FM wire: the lowest texture found has more than two walls (labelled onion)");
     if (ring.nearCircular && ring.closedForm !== null && ring.closedForm.state !== ringLabel) {
       warnings.push(`closed FM wire: the relaxed texture is the ${ringLabel} but the circle of the same length (kappa l = ${ring.kappaCircleReduced.toPrecision(3)}) prefers the ${ring.closedForm.state}`);
@@ -213,7 +231,16 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
   // pinning landscape
   let landscape: PinningLandscape | null = null;
   let pinning: PinningSite[] = [], pinningMinor: PinningSite[] = [], barriers: PinningSite[] = [];
-  if (options.pinning !== false) {
+  // a wall of width l needs the continuum model (l above the lattice spacing) and a chain that
+  // resolves it (spacing below WALL_RESOLUTION l); otherwise the landscape is a discretisation
+  // artefact (a straight wire gave "sites" of 0.7 K l S at spacing 5 l): no landscape, say why
+  const hSorted = Float64Array.from(chain.h).sort();
+  const hMedian = hSorted.length > 0 ? hSorted[hSorted.length >> 1] : 0;
+  let pinningSkipped: string | null = null;
+  if (material.latticeSpacing !== null && l < material.latticeSpacing) pinningSkipped = `magnetic length ${(l * 1e9).toPrecision(3)} nm below the lattice spacing ${(material.latticeSpacing * 1e9).toPrecision(3)} nm: a wall is not a continuum texture, no pinning landscape`;
+  else if (hMedian > WALL_RESOLUTION) pinningSkipped = `profile samples ${hMedian.toPrecision(3)} magnetic lengths apart (median; > ${WALL_RESOLUTION}) cannot resolve a wall of width l: no pinning landscape (sample the profile finer than l/2 = ${((l / 2) * 1e9).toPrecision(3)} nm)`;
+  if (pinningSkipped !== null && options.pinning !== false) warnings.push(pinningSkipped);
+  if (options.pinning !== false && pinningSkipped === null) {
     if (models.some((m) => m.state === "periodic")) warnings.push("a stretch has a periodic ground state: the wall landscape there is taken on the relaxed texture and is indicative only");
     if (textureState === "onion" || textureState === "multidomain") warnings.push(`the ring's ground state (${textureState}) already holds walls: the landscape of one more wall on it is indicative only`);
     let scan = pinningScan(chain, sRed, relaxed.local, inter.kappaReduced, system.order, { ...(options.pinning ?? {}), keepWalls: true });
@@ -226,9 +253,10 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
     if (replicates === null) warnings.push("no bootstrap replicates kept with the profile: pinning depths have no 95% interval");
     const ms = material.saturationMagnetisation;
     const depinning = system.order === "ferro" && ms !== null && material.anisotropy !== null ? { anisotropy: material.anisotropy, saturationMagnetisation: ms } : null;
+    const reference = flatReference(chain, sRed, inter.kappaReduced, system.order, options.pinning || {});
     const summarise = () => pinningSummary({
       scan, h: chain.h, q: system.q, replicates, kappaReduced: inter.kappaReduced, tauReduced: tauRelax, sReduced: sRed, validity,
-      l, energyUnit, kT, depinning,
+      l, energyUnit, kT, depinning, reference,
     });
     let summary = summarise();
     if (depinning !== null && summary.sites.length > 0) {

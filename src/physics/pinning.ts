@@ -1,4 +1,4 @@
-import { chainEnergy, normalise, type Chain } from "./chain.js";
+import { chainEnergy, makeChain, normalise, type Chain } from "./chain.js";
 import { bondRotation } from "./linalg.js";
 import { relaxChain } from "./relaxChain.js";
 import type { MagneticOrder } from "./types.js";
@@ -463,5 +463,56 @@ export function mergeLandscapes(parts: readonly WallLandscape[]): WallLandscape 
     sense: Int8Array.from(pick((x) => x.part.sense[x.k])),
     walls: parts.every((p) => p.walls !== null) ? pick((x) => x.part.walls![x.k]) : null,
     iterations: parts.reduce((acc, p) => acc + p.iterations, 0),
+  };
+}
+
+/**
+ * Wall energies on a reference chain whose continuum landscape is flat, for the discretisation
+ * error of a landscape (`pinningSummary`'s `reference`): the same bond lengths and closure as
+ * `chain`, no field or lab-fixed terms, FM straight (kappa = tau = 0, background T: a straight wire
+ * has no curvature pinning, PHYSICS.md section 5), AFM planar with the constant curvature of the
+ * first grid point (background B, the exact ground state of a planar curve, PHYSICS.md section 3;
+ * a straight AFM wall is not localised). Whatever U varies by on it is the chain's artefact
+ * (uneven spacing, a wall not resolved). The returned function takes chain node indices (-1 gives
+ * NaN). Reduced energies. Cost: one window relaxation per grid point (FM results
+ * are memoised per node).
+ */
+export function flatReference(
+  chain: Chain,
+  s: Float64Array,
+  kappaReduced: ArrayLike<number>,
+  order: MagneticOrder,
+  options: PinningOptions = {},
+): (nodes: readonly number[]) => Float64Array {
+  const n = chain.n;
+  const closure = chain.closure === "open" ? "open" : "periodic";
+  const zeros = new Float64Array(n);
+  const fmChain = order === "ferro" ? makeChain(zeros, zeros, chain.h, chain.q, closure) : null;
+  const memo = new Map<number, number>();
+  const { nodes: _n, keepWalls: _k, from: _f, to: _t, ...rest } = options;
+  return (grid) => {
+    const out = new Float64Array(grid.length).fill(NaN);
+    const want = [...new Set(grid.filter((g) => g >= 0))].sort((a, b) => a - b);
+    if (want.length === 0) return out;
+    let byNode: Map<number, number>;
+    if (fmChain !== null) {
+      const todo = want.filter((i) => !memo.has(i));
+      if (todo.length > 0) {
+        const bg = new Float64Array(3 * n);
+        for (let i = 0; i < n; ++i) bg[3 * i] = 1;
+        const r = pinningLandscape(fmChain, s, bg, zeros, order, { ...rest, nodes: todo });
+        todo.forEach((i, k) => memo.set(i, r.energy[k]));
+      }
+      byNode = memo;
+    } else {
+      const k0 = kappaReduced[grid[0]];
+      const kc = new Float64Array(n).fill(k0);
+      const bg = new Float64Array(3 * n);
+      for (let i = 0; i < n; ++i) bg[3 * i + 2] = 1;
+      const r = pinningLandscape(makeChain(kc, zeros, chain.h, chain.q, closure), s, bg, kc, order, { ...rest, nodes: want });
+      byNode = new Map(want.map((i, k) => [i, r.energy[k]]));
+    }
+    grid.forEach((g, k) => { if (g >= 0) out[k] = byNode.get(g) ?? NaN; });
+    return out;
   };
 }

@@ -157,6 +157,24 @@ describe("closed FM rings: vortex or onion on the whole wire (PHYSICS.md section
     expect(m.segments[0].homogeneousStability).toBe(label === "vortex" ? "stable" : "metastable");
     expect(m.segments[0].period).toBeNull();
   });
+  it("kappa l = 1.6: onion, the vortex unstable (not metastable), no wall-free alternative at e = 0 listed as a vortex", () => {
+    // PHYSICS.md section 3: the vortex m = T (e = kappa^2 - 1) is metastable only for kappa < 1;
+    // section 4: FM at tau = 0 the homogeneous state is unstable above kappa = 1. m = B (e = 0) is a
+    // stationary point of the ring but not a minimum (own derivation: an in-plane tilt toward a
+    // lab-fixed direction lowers e by a^2/2 on average), so it is not listed as a metastable texture.
+    const k = 1.6, p = ring(k);
+    const m = buildWireModel(p, segment(p), fmMat, { pinning: false });
+    const g = m.segments[0];
+    expect(m.texture.state).toBe("onion");
+    expect(g.state).toBe("onion");
+    expect(g.homogeneousStability).toBe("unstable");
+    expect(g.probabilities.unstable).toBe(1);
+    expect(g.flags.some((f) => f.startsWith("metastable"))).toBe(false);
+    expect(m.texture.alternatives.some((x) => x.state === "vortex")).toBe(false);
+    // whatever is listed is a relaxed texture above the onion (closed form -0.5116 per l at kappa 1.6, within 1%)
+    expect(Math.abs(m.texture.energyReduced / (ferroRingEnergies(k).onion * (2 * Math.PI) / k) - 1)).toBeLessThan(0.01);
+    for (const x of m.texture.alternatives) expect(Math.abs(x.energyReduced)).toBeGreaterThan(1e-6);
+  });
   it("an elliptical closed FM wire (several stretches) is still labelled vortex or onion, with a caution", () => {
     // ellipse-like curvature profile: kappa(s) = k0 (1 + 0.3 cos(2 * 2 pi s / L)), invented geometry
     const k0 = 0.9, L = (2 * Math.PI * lf) / k0;
@@ -224,5 +242,29 @@ describe("mirror-image AFM wires with a curvature dip (PHYSICS.md section 5, cor
     expect(Math.abs(sa.depthReduced / sb.depthReduced - 1)).toBeLessThan(0.05); // target 5%; measured 0 (0.22703 both)
     expect(sa.depthReducedLo!).toBeLessThanOrEqual(sa.depthReduced);
     expect(sa.depthReducedHi!).toBeGreaterThanOrEqual(sa.depthReduced);
+  });
+});
+
+describe("no pinning landscape where a wall cannot be resolved", () => {
+  // Truth: a straight wire has no curvature pinning (PHYSICS.md section 5). A chain coarser than
+  // l/2 or l below the lattice spacing turned its discretisation into "sites" (0.7 K l S deep at
+  // spacing 5 l); common practice: a continuum wall needs cells finer than its width and l above
+  // the lattice spacing.
+  const line = makeProfile({ n: 41, length: 200e-9, kappa: () => 0, tau: () => 0 }); // spacing 5 nm
+  it("profile samples 5 l apart: warning, no landscape, no sites", () => {
+    const m = buildWireModel(line, segment(line), parseMaterial({ order: "ferro", magneticLength: 1e-9 }, "fm.json"));
+    expect(m.landscape).toBeNull();
+    expect(m.pinning.length + m.pinningMinor.length).toBe(0);
+    expect(m.warnings.some((w) => /cannot resolve a wall/.test(w))).toBe(true);
+  });
+  it("magnetic length below the lattice spacing: warning, no landscape", () => {
+    const m = buildWireModel(line, segment(line), parseMaterial({ order: "ferro", magneticLength: 20e-9, latticeSpacing: 25e-9 }, "fm.json"));
+    expect(m.landscape).toBeNull();
+    expect(m.warnings.some((w) => /below the lattice spacing/.test(w))).toBe(true);
+  });
+  it("a resolved straight wire (spacing l/4) has no relevant site", () => {
+    const m = buildWireModel(line, segment(line), parseMaterial({ order: "ferro", magneticLength: 20e-9 }, "fm.json"));
+    expect(m.landscape).not.toBeNull();
+    expect(m.pinning.length).toBe(0);
   });
 });

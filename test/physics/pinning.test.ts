@@ -1,7 +1,8 @@
 import { describe, expect, it } from "vitest";
 import { makeChain } from "../../src/physics/chain.js";
 import { firstOrderPinning, pinningLandscape, pinningScan, pinningSites, plainSystem, relaxWire, wallEnergyWith } from "../../src/physics/index.js";
-import { depinningField } from "../../src/physics/pinningSummary.js";
+import { flatReference } from "../../src/physics/pinning.js";
+import { depinningField, pinningSummary, WALL_RESOLUTION } from "../../src/physics/pinningSummary.js";
 
 /** A planar wire (tau = 0) with kappa = kb + k0 exp(-(s - c)^2 / w^2), reduced units, spacing h. */
 function bumpWire(order: "ferro" | "antiferro", kb: number, k0: number, w: number, L: number, h = 0.05, c = 0, tau = 0) {
@@ -186,5 +187,50 @@ describe("depinning field from the slope of a landscape", () => {
     expect(Math.abs(d.towardPlus / ((maxSlope * K) / (2 * mu0 * Ms)) - 1)).toBeLessThan(0.01); // measured 0.04% (grid 0.05)
     expect(d.towardMinus).toBeCloseTo(d.towardPlus, 3); // symmetric bump
     expect(d.fieldTesla).toBeCloseTo(mu0 * d.field, 15);
+  });
+});
+
+describe("a straight wire has no relevant pinning site, whatever the chain (discretisation artefacts)", () => {
+  // Truth: a straight FM wire has no curvature, so no curvature-induced wall pinning (PHYSICS.md
+  // section 5: U(q) = 4 - 2 (kappa * sech)(q) is flat for kappa = 0; Yershov, Kravchuk, Sheka,
+  // Gaididei, PRB 92, 104412 (2015)). Uneven bond lengths make the discrete landscape wiggle.
+  const straight = (h: number, jitter: number) => {
+    const L = Math.max(30, 40 * h), n = Math.round(L / h) + 1;
+    let seed = 7;
+    const rnd = () => ((seed = (seed * 16807) % 2147483647) / 2147483647); // Park-Miller
+    const hh = Float64Array.from({ length: n - 1 }, () => h * (1 + jitter * (2 * rnd() - 1)));
+    const s = new Float64Array(n);
+    for (let i = 1; i < n; ++i) s[i] = s[i - 1] + hh[i - 1];
+    const k = new Float64Array(n), t = new Float64Array(n);
+    const sys = plainSystem("ferro");
+    const chain = makeChain(k, t, hh, sys.q, "open");
+    const bg = new Float64Array(3 * n);
+    for (let i = 0; i < n; ++i) bg[3 * i] = 1;
+    const scan = pinningScan(chain, s, bg, k, "ferro", { keepWalls: true });
+    const input = { scan, h: hh, q: sys.q, replicates: null, kappaReduced: k, tauReduced: t, sReduced: s, validity: new Uint8Array(n), l: 1e-9, energyUnit: null, kT: 1, depinning: null };
+    return { input, reference: flatReference(chain, s, k, "ferro") };
+  };
+  it.each([[0.25, 0.3], [2, 0.3], [5, 0.3]])("spacing %s l, jitter +-%s: the wells of the landscape are all listed as not relevant", (h, jitter) => {
+    const { input, reference } = straight(h, jitter);
+    // the artefact exists: the landscape has wells (0.03-0.13 deep at h = 2 l, measured)
+    const wells = pinningSites(input.scan.q, input.scan.energy);
+    expect(wells.length).toBeGreaterThan(0);
+    const after = pinningSummary({ ...input, reference });
+    expect(after.sites.length).toBe(0);
+    expect(after.minor.length).toBe(wells.length);
+    for (const x of after.minor) expect(x.note).toMatch(h > WALL_RESOLUTION ? /not resolved/ : /discretisation error/);
+    // on a resolved chain the reference is what keeps them out: without it (and without
+    // replicates or an energy unit to judge by) the wells counted as sites
+    if (h <= WALL_RESOLUTION) expect(pinningSummary(input).sites.length).toBe(wells.length);
+  });
+  it("a curvature bump on a resolved chain stays a relevant site (the reference error is far below its depth)", () => {
+    // PHYSICS.md section 5 check (w 1, k0 0.2): depth 0.59947
+    const b = bumpWire("ferro", 0, 0.2, 1, 40, 0.1);
+    const scan = pinningScan(b.chain, b.s, b.bg.local, b.k, "ferro", { keepWalls: true });
+    const n = b.s.length;
+    const input = { scan, h: b.chain.h, q: b.chain.q, replicates: null, kappaReduced: b.k, tauReduced: new Float64Array(n), sReduced: b.s, validity: new Uint8Array(n), l: 1e-9, energyUnit: null, kT: 1, depinning: null };
+    const out = pinningSummary({ ...input, reference: flatReference(b.chain, b.s, b.k, "ferro") });
+    expect(out.sites.length).toBe(1);
+    expect(Math.abs(out.sites[0].depthReduced / 0.59947 - 1)).toBeLessThan(0.01); // h = 0.1: measured within 0.1%
   });
 });
