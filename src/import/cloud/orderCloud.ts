@@ -15,8 +15,8 @@ import { GAP_LIMIT } from "../../frame/fitGuard.js";
  * 17:161, with the recipe of NUMERICS.md section 5 step 1):
  * 0. Exact repeats of a point are merged into its first copy (a note says how many).
  * 1. k nearest neighbours (k-d tree); points whose 5th-neighbour distance is over `outlierFactor`
- *    times the median of their neighbours' 5th-neighbour distances are isolated gross outliers
- *    (local, so a stretch sampled more sparsely stays). A run of 10 or more such points, or of a
+ *    times the median, and over as many times the lower quartile of their neighbours' 5th-neighbour
+ *    distances, are isolated gross outliers (local, so a stretch sampled more sparsely stays). A run of 10 or more such points, or of a
  *    small piece in step 2, that is elongated (a line, not a clump) is refused, naming its ends.
  * 2. Euclidean minimum spanning tree of the kNN graph (Kruskal). Pieces with under 5% of the points
  *    are outliers; if a larger second piece remains after doubling k up to 40, the cloud is not one
@@ -102,16 +102,18 @@ function orderDistinct(xyz: Readonly<Float64Array>, file: string, options: Cloud
     dq[i] = Math.sqrt(knnD2[i * k + q]);
     d1[i] = Math.sqrt(knnD2[i * k]);
   }
-  const medD1 = median(d1);
-  // Judged against the point's own neighbourhood (the median of its neighbours' 5th-neighbour
-  // distances), so a stretch sampled more sparsely than the rest is not taken for outliers.
+  const medDq = median(dq), medD1 = median(d1);
+  // Judged against the whole cloud and against the point's own neighbourhood (the lower quartile
+  // of its neighbours' 5th-neighbour distances), so a stretch sampled more sparsely than the rest
+  // is not taken for outliers, while a stray with a few other strays among its neighbours is.
   let isolated = 0;
   const local = new Float64Array(k);
   for (let i = 0; i < n; i++) {
+    if (!(dq[i] > factor * medDq && medDq > 0)) continue;
     let c = 0;
     for (let j = 0; j < k; j++) if (Number.isFinite(knnD2[i * k + j])) local[c++] = dq[knnIds[i * k + j]];
-    const med = median(local.subarray(0, c));
-    if (dq[i] > factor * med && med > 0) {
+    const near = local.subarray(0, c).sort()[Math.floor((c - 1) / 4)];
+    if (dq[i] > factor * near && near > 0) {
       outlier[i] = 1;
       isolated++;
     }
@@ -489,8 +491,8 @@ const DENSITY_RATIO = 2.5;
  * along the wire has such gaps in its sparse stretch without missing any of the wire: this names
  * the cause. When the widest gap between consecutive ordered points exceeds 0.6 GAP_LIMIT median
  * gaps and the median gap around it (31 gaps) is over 2.5 times the median of the whole cloud,
- * the cloud is refused naming where its sparse stretch starts and ends (blocks of 31 gaps whose
- * median is that sparse). A gap in an evenly sampled cloud is left to the fit's own message.
+ * the cloud is refused naming where its sparse stretch starts and ends (where the median of 31
+ * gaps falls to the geometric mean of the two medians). A gap in an evenly sampled cloud is left to the fit's own message.
  */
 function densityCheck(
   xyz: Readonly<Float64Array>, order: Uint32Array, s: Float64Array, closed: boolean, length: number, file: string,
@@ -518,10 +520,12 @@ function densityCheck(
   };
   const here = localMedian(widest);
   if (here < DENSITY_RATIO * med) return;
-  // the sparse stretch: walk both ways while the local median stays sparse
+  // the sparse stretch: walk both ways while the local median stays nearer (geometric mean) its
+  // value at the widest gap than the whole cloud's median
+  const edge = Math.sqrt(here * med);
   let lo = widest, hi = widest;
-  for (let steps = 0; steps < g && (closed || lo > 0) && localMedian(lo - 1) >= DENSITY_RATIO * med; steps++) lo--;
-  for (let steps = 0; steps < g && (closed || hi < g - 1) && localMedian(hi + 1) >= DENSITY_RATIO * med; steps++) hi++;
+  for (let steps = 0; steps < g && (closed || lo > 0) && localMedian(lo - 1) >= edge; steps++) lo--;
+  for (let steps = 0; steps < g && (closed || hi < g - 1) && localMedian(hi + 1) >= edge; steps++) hi++;
   const at = (t: number) => {
     const i = order[((t % m) + m) % m];
     return fmtP(xyz[3 * i], xyz[3 * i + 1], xyz[3 * i + 2]);
