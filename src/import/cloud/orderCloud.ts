@@ -182,7 +182,6 @@ function orderDistinct(xyz: Readonly<Float64Array>, file: string, options: Cloud
   const sideBranches: SideBranch[] = r.branches
     .filter((b) => b.maxRho > thr && b.members.length > Math.max(3, 0.005 * n))
     .map((b) => ({ x: r.pathXyz[3 * b.attach], y: r.pathXyz[3 * b.attach + 1], z: r.pathXyz[3 * b.attach + 2], extent: b.maxRho, points: b.members.length }));
-  densityCheck(xyz, r.order, r.s, r.closed, r.length, file, fmtP, fmtL);
   const outlierIndices: number[] = [];
   for (let i = 0; i < n; i++) if (outlier[i]) outlierIndices.push(i);
   if (outlierIndices.length > 0) {
@@ -196,6 +195,8 @@ function orderDistinct(xyz: Readonly<Float64Array>, file: string, options: Cloud
     throw new InputError(file, null, "points",
       `the cloud crosses itself or branches near ${fmtP(b.x, b.y, b.z)} (a side branch of ${b.points} points reaching ${fmtL(b.extent)} from the path${sideBranches.length > 1 ? `; ${sideBranches.length - 1} more such places` : ""}): the order along one wire is ambiguous there; trace the wire as an ordered polyline, or split it into its wires (--branches split)`);
   }
+  // after the branch check: along a branched tree the ordered spacing means nothing
+  if (sideBranches.length === 0) densityCheck(xyz, r.order, r.s, r.closed, r.length, file, fmtP, fmtL);
   for (const b of sideBranches.slice(0, 5)) {
     diagnostics.push(`long side branch of ${b.points} points reaching ${fmtL(b.extent)} from the curve near ${fmtP(b.x, b.y, b.z)}: a self-crossing or a branch; the ordering may be wrong there`);
   }

@@ -254,3 +254,22 @@ describe("orderCloud on uneven density, repeats and runs of points", () => {
     expect(orderCloud(Float64Array.from(clump), "clump.xyz", { unit: "nm" }).outliers).toBe(15);
   });
 });
+
+describe("orderCloud on a branched cloud", () => {
+  it("names the branch, not a density change, for a Y of three 100 nm legs", () => {
+    // Common practice: a junction of three legs cannot be ordered as one wire; along the spanning
+    // tree's longest path the third leg's points crowd the junction, which must not be read as a
+    // change of density.
+    for (let seed = 3; seed <= 6; seed++) {
+      const pts: number[] = [];
+      [0, 2.1, 4.2].forEach((a, k) => {
+        const g = normalStream(60 + k + 10 * seed), u = mulberry32(70 + k + 10 * seed);
+        for (let i = 0; i < 500; i++) {
+          const t = 100 * u();
+          pts.push((t * Math.cos(a) + 0.3 * g()) * NM, (t * Math.sin(a) + 0.3 * g()) * NM, 0.3 * g() * NM);
+        }
+      });
+      expect(() => orderCloud(Float64Array.from(pts), "y.xyz", { unit: "nm" })).toThrow(/^y\.xyz: points: the cloud crosses itself or branches near/);
+    }
+  });
+});
