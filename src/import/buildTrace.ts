@@ -36,6 +36,15 @@ export interface RawTrace {
   readonly diagnostics?: readonly string[];
 }
 
+/**
+ * `buildTrace`'s options: those of every reader, plus `orderCheck: false` for points that are read
+ * as an unordered cloud (`--format cloud` on text), which the cloud orderer puts in order itself:
+ * the ordered-trace order check and its note ("read the file with --format cloud") mean nothing there.
+ */
+export interface BuildTraceOptions extends TraceReadOptions {
+  readonly orderCheck?: boolean;
+}
+
 const MAX_LISTED = 10;
 
 /**
@@ -84,11 +93,13 @@ function listPlaces(places: readonly string[], lines: boolean): string {
  * - Closing point: a last point that repeats the first is dropped; the trace is then closed unless
  *   the caller said open (then the point is kept).
  * - `closed`: the caller's option, else the file's, else undefined (the fit decides).
+ * - Order: points out of order along the wire are reordered or refused (`checkOrder`), unless
+ *   `orderCheck` is false (a cloud, ordered by its reader).
  *
  * Cost: O(n), with an O(n) expected quickselect for the median step.
  * @throws {InputError} conflicting or missing unit / pixel size, or fewer than 4 distinct points.
  */
-export function buildTrace(raw: RawTrace, file: string, options: TraceReadOptions = {}): Trace {
+export function buildTrace(raw: RawTrace, file: string, options: BuildTraceOptions = {}): Trace {
   const declaredUnit = raw.declared.unit;
   if (declaredUnit !== undefined && options.unit !== undefined && declaredUnit.value !== options.unit) {
     throw new InputError(
@@ -221,7 +232,7 @@ export function buildTrace(raw: RawTrace, file: string, options: TraceReadOption
   } = { xyz: out, dims: raw.dims, source, diagnostics, rows };
   if (closed !== undefined) trace.closed = closed;
   if (raw.declared.planarProjection !== undefined) trace.planarProjection = raw.declared.planarProjection;
-  return kept >= 6 ? checkOrder(trace, file, unit, pixelSize) : trace;
+  return kept >= 6 && options.orderCheck !== false ? checkOrder(trace, file, unit, pixelSize) : trace;
 }
 
 /**

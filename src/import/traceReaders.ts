@@ -17,6 +17,7 @@ import type { InputUnit, Trace } from "../types.js";
 import type { CloudOptions } from "./cloud/types.js";
 import type { Mesh, MeshReadOptions } from "./mesh/types.js";
 import type { MeshTraceOptions } from "./mesh/readMesh.js";
+import type { BuildTraceOptions } from "./buildTrace.js";
 import { parseDelimited } from "./parseDelimited.js";
 import type { SvgOptions } from "./svg/types.js";
 
@@ -143,7 +144,7 @@ async function readTextCloud(text: string, file: string, options: TraceReadOptio
   const json = /^\uFEFF?\s*\{/.test(text);
   const parsePolylineJson = json ? (await lazy.json()).parsePolylineJson : null;
   const { orderCloud } = await lazy.orderCloud();
-  const read: Mutable<TraceReadOptions> = { ...orderedOptions(options), closed: false };
+  const read: Mutable<BuildTraceOptions> = { ...orderedOptions(options), closed: false, orderCheck: false };
   const points = parsePolylineJson !== null ? parsePolylineJson(text, file, read) : parseDelimited(text, file, read);
   let fileClosed: boolean | undefined;
   if (json) {

@@ -224,6 +224,19 @@ describe("readTracesFile(path, options): one list of wires for every format", ()
     expect(e.message).toBe(`${join(dir, "cloud2.csv")}:1: unit: the file declares "um" but "nm" was asked for`);
   });
 
+  it("reads text with format cloud without the ordered-trace order check (3% stray points in the cloud)", async () => {
+    // Truth: the helix the points were drawn from (construction); the strays are left out by the
+    // cloud orderer. Before: the ordered-trace order check ran first and refused the file ("read them
+    // as an unordered cloud with --format cloud", though that was given), or carried that note.
+    const pts = shuffledCloud(helix, 500, 0.3, 11);
+    const u = mulberry32(12);
+    for (let i = 0; i < 15; i++) pts.splice(Math.floor(u() * pts.length), 0, [140 * u() - 70, 140 * u() - 70, 500 * u()]);
+    const [t] = await readTracesFile(write("strays.csv", "x,y,z\n" + pts.map((p) => p.join(",")).join("\n") + "\n"), { format: "cloud" });
+    expect(t.xyz.length / 3).toBe(500);
+    expect(worstOffset(t, helix, 10)).toBeLessThan(0.2);
+    expect(t.diagnostics.join("\n")).not.toMatch(/not in order|--format cloud/);
+  });
+
   it("reads SVG paths as planar projections, calibrated by the pixel size, and refuses a length unit", async () => {
     const svg = '<svg xmlns="http://www.w3.org/2000/svg" viewBox="0 0 400 400">\n<path id="a" d="M 50 200 A 150 150 0 0 1 350 200"/>\n' +
       '<path d="M 0 0 L 100 0 L 100 100 L 0 100 Z"/>\n</svg>\n';

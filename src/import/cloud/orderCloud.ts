@@ -5,6 +5,7 @@ import { KdTree } from "./kdTree.js";
 import type { CloudOptions, OrderedCloud, SideBranch } from "./types.js";
 import { polylineLength } from "../mesh/polyline.js";
 import { median } from "../median.js";
+import { GAP_LIMIT } from "../../frame/fitGuard.js";
 
 
 /**
@@ -12,8 +13,11 @@ import { median } from "../median.js";
  *
  * Method (Lee 2000, "Curve reconstruction from unorganized points", Computer Aided Geometric Design
  * 17:161, with the recipe of NUMERICS.md section 5 step 1):
+ * 0. Exact repeats of a point are merged into its first copy (a note says how many).
  * 1. k nearest neighbours (k-d tree); points whose 5th-neighbour distance is over `outlierFactor`
- *    times the median are isolated gross outliers.
+ *    times the median, and over as many times the lower quartile of their neighbours' 5th-neighbour
+ *    distances, are isolated gross outliers (local, so a stretch sampled more sparsely stays). A run of 10 or more such points, or of a
+ *    small piece in step 2, that is elongated (a line, not a clump) is refused, naming its ends.
  * 2. Euclidean minimum spanning tree of the kNN graph (Kruskal). Pieces with under 5% of the points
  *    are outliers; if a larger second piece remains after doubling k up to 40, the cloud is not one
  *    wire (an error).
@@ -26,6 +30,9 @@ import { median } from "../median.js";
  *    (a self-crossing or a branch): those are kept and reported in `sideBranches` and the
  *    diagnostics, since the ordering is not to be trusted there.
  *
+ * 5. A density change that the fit would take for gaps (see `densityCheck`) is refused, naming
+ *    where the sparse stretch starts and ends.
+ *
  * Units: metres in and out. Cost O(n log n) plus sorting the kNN edges (about k n log n).
  * Degenerate input: fewer than 4 points, or non-finite coordinates, raise InputError.
  * @throws {InputError} "file: points: need at least 4, got 2", "file: point 7: y: not a finite number",
@@ -33,11 +40,39 @@ import { median } from "../median.js";
  * @example orderCloud(shuffledHelix, "wire.xyz", { unit: "nm" }).trace // the helix points, in order
  */
 export function orderCloud(xyz: Readonly<Float64Array>, file: string, options: CloudOptions): OrderedCloud {
-  const n = xyz.length / 3;
-  if (!Number.isInteger(n)) throw new ParameterError("orderCloud", "xyz", `length must be a multiple of 3 (got ${xyz.length})`);
+  const all = xyz.length / 3;
+  if (!Number.isInteger(all)) throw new ParameterError("orderCloud", "xyz", `length must be a multiple of 3 (got ${xyz.length})`);
   for (let i = 0; i < xyz.length; i++) {
     if (!Number.isFinite(xyz[i])) throw new InputError(file, null, `point ${Math.floor(i / 3) + 1}`, `${"xyz"[i % 3]}: not a finite number (${xyz[i]})`);
   }
+  if (all < 4) throw new InputError(file, null, "points", `need at least 4, got ${all}`);
+  // Exact repeats of a point carry nothing in a cloud (there is no order to keep): the first copy stays.
+  const firstOf = new Map<string, number>();
+  const distinct: number[] = [];
+  for (let i = 0; i < all; i++) {
+    const key = `${xyz[3 * i]},${xyz[3 * i + 1]},${xyz[3 * i + 2]}`;
+    if (!firstOf.has(key)) {
+      firstOf.set(key, i);
+      distinct.push(i);
+    }
+  }
+  if (distinct.length === all) return orderDistinct(xyz, file, options);
+  const sub = new Float64Array(3 * distinct.length);
+  distinct.forEach((i, j) => sub.set(xyz.subarray(3 * i, 3 * i + 3), 3 * j));
+  if (distinct.length < 4) throw new InputError(file, null, "points", `need at least 4 distinct points, got ${distinct.length} (and ${all - distinct.length} exact repeats)`);
+  const r = orderDistinct(sub, file, options);
+  const order = Uint32Array.from(r.order, (j) => distinct[j]);
+  const note = `merged ${all - distinct.length} exact repeats of points into their first copy (${distinct.length} distinct points of ${all})`;
+  return {
+    ...r,
+    trace: { ...r.trace, diagnostics: [note, ...r.trace.diagnostics], rows: Int32Array.from(order, (i) => i + 1) },
+    outlierIndices: Uint32Array.from(r.outlierIndices, (j) => distinct[j]),
+    order,
+  };
+}
+
+function orderDistinct(xyz: Readonly<Float64Array>, file: string, options: CloudOptions): OrderedCloud {
+  const n = xyz.length / 3;
   if (n < 4) throw new InputError(file, null, "points", `need at least 4, got ${n}`);
   const factor = options.outlierFactor ?? 6;
   const closeGap = options.closeGap ?? 0.05;
@@ -68,12 +103,39 @@ export function orderCloud(xyz: Readonly<Float64Array>, file: string, options: C
     d1[i] = Math.sqrt(knnD2[i * k]);
   }
   const medDq = median(dq), medD1 = median(d1);
+  // Judged against the whole cloud and against the point's own neighbourhood (the lower quartile
+  // of its neighbours' 5th-neighbour distances), so a stretch sampled more sparsely than the rest
+  // is not taken for outliers, while a stray with a few other strays among its neighbours is.
   let isolated = 0;
+  const local = new Float64Array(k);
   for (let i = 0; i < n; i++) {
-    if (dq[i] > factor * medDq && medDq > 0) {
+    if (!(dq[i] > factor * medDq && medDq > 0)) continue;
+    let c = 0;
+    for (let j = 0; j < k; j++) if (Number.isFinite(knnD2[i * k + j])) local[c++] = dq[knnIds[i * k + j]];
+    const near = local.subarray(0, c).sort()[Math.floor((c - 1) / 4)];
+    if (dq[i] > factor * near && near > 0) {
       outlier[i] = 1;
       isolated++;
     }
+  }
+  // Isolated points that hang together in a long run continue a wire: not outliers.
+  {
+    const uf = new UnionFind(n);
+    for (let i = 0; i < n; i++) {
+      if (!outlier[i]) continue;
+      for (let j = 0; j < k; j++) {
+        const e = i * k + j;
+        if (Number.isFinite(knnD2[e]) && outlier[knnIds[e]]) uf.union(i, knnIds[e]);
+      }
+    }
+    const groups = new Map<number, number[]>();
+    for (let i = 0; i < n; i++) {
+      if (!outlier[i]) continue;
+      const g = groups.get(uf.find(i));
+      if (g) g.push(i);
+      else groups.set(uf.find(i), [i]);
+    }
+    for (const g of groups.values()) refuseRun(xyz, g, file, fmtP, "isolated from the rest");
   }
   let smallPieces = 0, strays = 0;
   let result: ReturnType<typeof orderOnce> | undefined;
@@ -91,6 +153,7 @@ export function orderCloud(xyz: Readonly<Float64Array>, file: string, options: C
         `the cloud falls into ${mst.pieces.length} separate pieces of ${mst.pieces.slice(0, 4).map((p) => p.length).join(", ")} points (even with ${k} neighbours per point): give one wire per file`,
       );
     }
+    for (const piece of mst.pieces.slice(1)) refuseRun(xyz, piece, file, fmtP, "apart from the rest of the cloud");
     for (const piece of mst.pieces.slice(1)) {
       for (const i of piece) outlier[i] = 1;
       smallPieces += piece.length;
@@ -132,6 +195,8 @@ export function orderCloud(xyz: Readonly<Float64Array>, file: string, options: C
     throw new InputError(file, null, "points",
       `the cloud crosses itself or branches near ${fmtP(b.x, b.y, b.z)} (a side branch of ${b.points} points reaching ${fmtL(b.extent)} from the path${sideBranches.length > 1 ? `; ${sideBranches.length - 1} more such places` : ""}): the order along one wire is ambiguous there; trace the wire as an ordered polyline, or split it into its wires (--branches split)`);
   }
+  // after the branch check: along a branched tree the ordered spacing means nothing
+  if (sideBranches.length === 0) densityCheck(xyz, r.order, r.s, r.closed, r.length, file, fmtP, fmtL);
   for (const b of sideBranches.slice(0, 5)) {
     diagnostics.push(`long side branch of ${b.points} points reaching ${fmtL(b.extent)} from the curve near ${fmtP(b.x, b.y, b.z)}: a self-crossing or a branch; the ordering may be wrong there`);
   }
@@ -350,3 +415,122 @@ function runningMean(p: Float64Array, closed: boolean, half: number): Float64Arr
   return out;
 }
 
+
+/** Fewest points of a run that continues a wire (fewer may be a small cluster of strays). */
+const RUN_POINTS = 10;
+/** Elongation (ratio of the largest to the second principal spread) above which a group of points is a run along a wire, not a clump. */
+const RUN_ELONGATION = 3;
+
+/**
+ * Refuses when a group of points about to be left out as outliers is a run along a wire: at least
+ * 10 points, and elongated (principal spreads from the eigenvalues of the 3x3 covariance, closed
+ * form of Smith 1961, "Eigenvalues of a symmetric 3 x 3 matrix", CACM 4:168).
+ */
+function refuseRun(xyz: Readonly<Float64Array>, g: readonly number[], file: string, fmtP: (x: number, y: number, z: number) => string, how: string): void {
+  if (g.length < RUN_POINTS) return;
+  const [l1, l2] = principalSpreads(xyz, g);
+  if (!(l1 > RUN_ELONGATION * RUN_ELONGATION * l2)) return;
+  // the run's ends: the point farthest from the first, then the point farthest from that one
+  const far = (from: number) => {
+    let best = from, bd = -1;
+    for (const i of g) {
+      const d = (xyz[3 * i] - xyz[3 * from]) ** 2 + (xyz[3 * i + 1] - xyz[3 * from + 1]) ** 2 + (xyz[3 * i + 2] - xyz[3 * from + 2]) ** 2;
+      if (d > bd) {
+        bd = d;
+        best = i;
+      }
+    }
+    return best;
+  };
+  const a = far(g[0]), b = far(a);
+  const p = (i: number) => fmtP(xyz[3 * i], xyz[3 * i + 1], xyz[3 * i + 2]);
+  throw new InputError(file, null, "points",
+    `a run of ${g.length} points from ${p(a)} to ${p(b)} lies ${how} but continues along a line (not a cluster of stray points): it is part of a wire sampled more sparsely or a separate wire; sample the wire evenly, or give one wire per file`);
+}
+
+/** Largest and second eigenvalue of the covariance of the points `g`. */
+function principalSpreads(xyz: Readonly<Float64Array>, g: readonly number[]): [number, number] {
+  let mx = 0, my = 0, mz = 0;
+  for (const i of g) {
+    mx += xyz[3 * i];
+    my += xyz[3 * i + 1];
+    mz += xyz[3 * i + 2];
+  }
+  mx /= g.length;
+  my /= g.length;
+  mz /= g.length;
+  let a = 0, b = 0, c = 0, d = 0, e = 0, f = 0; // xx yy zz xy xz yz
+  for (const i of g) {
+    const x = xyz[3 * i] - mx, y = xyz[3 * i + 1] - my, z = xyz[3 * i + 2] - mz;
+    a += x * x;
+    b += y * y;
+    c += z * z;
+    d += x * y;
+    e += x * z;
+    f += y * z;
+  }
+  const q = (a + b + c) / 3;
+  const p1 = d * d + e * e + f * f;
+  const p2 = (a - q) ** 2 + (b - q) ** 2 + (c - q) ** 2 + 2 * p1;
+  if (!(p2 > 0)) return [q, q];
+  const p = Math.sqrt(p2 / 6);
+  const A = (a - q) / p, B = (b - q) / p, C = (c - q) / p, D = d / p, E = e / p, F = f / p;
+  const det = A * (B * C - F * F) - D * (D * C - F * E) + E * (D * F - B * E);
+  const phi = Math.acos(Math.max(-1, Math.min(1, det / 2))) / 3;
+  const l1 = q + 2 * p * Math.cos(phi);
+  const l3 = q + 2 * p * Math.cos(phi + (2 * Math.PI) / 3);
+  return [l1, 3 * q - l1 - l3];
+}
+
+/** Widest gap, in median gaps, that the fit accepts (GAP_LIMIT of the fit guard), with a margin. */
+const DENSITY_GAP_RATIO = 0.6 * GAP_LIMIT;
+/** How much sparser than the whole cloud a stretch must be for its gaps to count as a density change. */
+const DENSITY_RATIO = 2.5;
+
+/**
+ * The fit refuses a gap wider than GAP_LIMIT median gaps (fitGuard). A cloud whose density changes
+ * along the wire has such gaps in its sparse stretch without missing any of the wire: this names
+ * the cause. When the widest gap between consecutive ordered points exceeds 0.6 GAP_LIMIT median
+ * gaps and the median gap around it (31 gaps) is over 2.5 times the median of the whole cloud,
+ * the cloud is refused naming where its sparse stretch starts and ends (where the median of 31
+ * gaps falls to the geometric mean of the two medians). A gap in an evenly sampled cloud is left to the fit's own message.
+ */
+function densityCheck(
+  xyz: Readonly<Float64Array>, order: Uint32Array, s: Float64Array, closed: boolean, length: number, file: string,
+  fmtP: (x: number, y: number, z: number) => string, fmtL: (v: number) => string,
+): void {
+  const m = order.length;
+  const half = 15;
+  if (m < 4 * half) return;
+  const gaps = new Float64Array(closed ? m : m - 1);
+  for (let i = 1; i < m; i++) gaps[i - 1] = s[i] - s[i - 1];
+  if (closed) gaps[m - 1] = length - s[m - 1] + s[0];
+  const g = gaps.length;
+  const med = median(gaps);
+  if (!(med > 0)) return;
+  let widest = 0;
+  for (let i = 1; i < g; i++) if (gaps[i] > gaps[widest]) widest = i;
+  if (gaps[widest] <= DENSITY_GAP_RATIO * med) return;
+  const localMedian = (c: number) => {
+    const w: number[] = [];
+    for (let t = c - half; t <= c + half; t++) {
+      if (closed) w.push(gaps[((t % g) + g) % g]);
+      else if (t >= 0 && t < g) w.push(gaps[t]);
+    }
+    return median(Float64Array.from(w));
+  };
+  const here = localMedian(widest);
+  if (here < DENSITY_RATIO * med) return;
+  // the sparse stretch: walk both ways while the local median stays nearer (geometric mean) its
+  // value at the widest gap than the whole cloud's median
+  const edge = Math.sqrt(here * med);
+  let lo = widest, hi = widest;
+  for (let steps = 0; steps < g && (closed || lo > 0) && localMedian(lo - 1) >= edge; steps++) lo--;
+  for (let steps = 0; steps < g && (closed || hi < g - 1) && localMedian(hi + 1) >= edge; steps++) hi++;
+  const at = (t: number) => {
+    const i = order[((t % m) + m) % m];
+    return fmtP(xyz[3 * i], xyz[3 * i + 1], xyz[3 * i + 2]);
+  };
+  throw new InputError(file, null, "points",
+    `the point density changes along the wire: from ${at(lo)} to ${at(hi + 1)} the points are ${(here / med).toFixed(1)}x sparser than over the whole cloud (median spacing ${fmtL(here)} against ${fmtL(med)}; widest step ${fmtL(gaps[widest])}), which the fit would take for gaps; sample the wire evenly, or split the cloud there`);
+}

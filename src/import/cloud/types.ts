@@ -15,7 +15,7 @@ export interface CloudOptions {
   readonly smoothFraction?: number;
   /**
    * A point is a gross outlier when its distance to its 5th neighbour exceeds this many times the
-   * median of that distance, or its distance to the smoothed curve exceeds this many times the
+   * median of that distance over its k neighbours, or its distance to the smoothed curve exceeds this many times the
    * median distance (and 3 median neighbour spacings) in a small side branch [6].
    */
   readonly outlierFactor?: number;

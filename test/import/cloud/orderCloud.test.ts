@@ -188,3 +188,88 @@ describe("parseCloudText(text, file, options) and the cloud readers", () => {
     for (let i = 0; i < 900; i++) expect(Math.abs(b.xyz[i] - a.xyz[i])).toBeLessThan(1e-20);
   });
 });
+
+describe("orderCloud on uneven density, repeats and runs of points", () => {
+  // A point at parameter t of a straight 300 nm wire, drawn at random (accept-reject on the density).
+  function unevenLine(n: number, sparse: number, seed: number): Float64Array {
+    const rnd = mulberry32(seed), g = normalStream(seed + 1);
+    const pts: number[] = [];
+    while (pts.length < 3 * n) {
+      const t = rnd();
+      if (t > 0.5 && rnd() > sparse) continue;
+      pts.push((300 * t + 0.3 * g()) * NM, 0.3 * g() * NM, 0.3 * g() * NM);
+    }
+    return shuffle(Float64Array.from(pts), seed + 2).xyz;
+  }
+
+  it("does not drop the sparse half of a wire as outliers: it names the density change", () => {
+    // Truth by construction: all points lie on one 300 nm line (the sparse half included), so no
+    // more than a few may be outliers; the fit would take the sparse stretch for gaps, so a
+    // refusal naming the density change is the right answer (before: 143 points of the sparse
+    // half dropped as outliers and a 157 nm curve returned).
+    const xyz = unevenLine(1500, 0.1, 41);
+    let message = "no error";
+    try {
+      const r = orderCloud(xyz, "line.xyz", { unit: "nm" });
+      expect(r.outliers).toBeLessThan(15);
+      expect(r.s[r.s.length - 1] - r.s[0]).toBeGreaterThan(290 * NM);
+    } catch (e) {
+      expect(e).toBeInstanceOf(InputError);
+      message = (e as Error).message;
+    }
+    expect(message).toMatch(/^line\.xyz: points: the point density changes along the wire: from \(.*\) nm to \(.*\) nm the points are [\d.]+x sparser/);
+  });
+
+  it("keeps a 2:1 density change (within the fit's gap limit) and gets the length", () => {
+    // Truth: the 300 nm line (construction); the ordered curve spans it within 2%.
+    const r = orderCloud(unevenLine(1500, 0.5, 43), "line.xyz", { unit: "nm" });
+    expect(r.outliers).toBeLessThan(15);
+    expect((r.s[r.s.length - 1] - r.s[0]) / NM).toBeGreaterThan(294);
+  });
+
+  it("merges exact repeats instead of ordering copies next to each other", () => {
+    // Common practice: a repeated point adds no information to an unordered cloud.
+    const base = shuffle(sample(helix, 500, false, 0.3, 45), 46).xyz;
+    const xyz = new Float64Array(3 * 1500);
+    for (let i = 0; i < 500; i++) for (let c = 0; c < 3; c++) xyz.set(base.subarray(3 * i, 3 * i + 3), 3 * (3 * i + c));
+    const r = orderCloud(xyz, "dup.xyz", { unit: "nm" });
+    expect(r.trace.xyz.length / 3).toBe(500);
+    expect(r.trace.diagnostics[0]).toBe("merged 1000 exact repeats of points into their first copy (500 distinct points of 1500)");
+    expect(new Set(r.order).size).toBe(500);
+    for (const i of r.order) expect(i % 3).toBe(0); // the first copy of each point
+    expect(Array.from(r.trace.rows ?? [])).toEqual(Array.from(r.order, (i) => i + 1));
+  });
+
+  it("refuses a long run of points apart from the rest instead of dropping it as outliers", () => {
+    // Common practice: outliers are strays or clumps; 15 points spaced 1 nm along a line are a wire.
+    const pts = Array.from(sample((t) => [300 * t, 0, 0], 400, false, 0.1, 47));
+    for (let i = 0; i < 15; i++) pts.push(i * NM, 40 * NM, 0);
+    expect(() => orderCloud(Float64Array.from(pts), "two.xyz", { unit: "nm" })).toThrow(
+      /^two\.xyz: points: a run of 15 points from \(.*\) nm to \(.*\) nm lies apart from the rest of the cloud but continues along a line/,
+    );
+    // a clump of 15 points (no direction) is still left out
+    const g = normalStream(48);
+    const clump = Array.from(sample((t) => [300 * t, 0, 0], 400, false, 0.1, 47));
+    for (let i = 0; i < 15; i++) clump.push((150 + g()) * NM, (40 + g()) * NM, g() * NM);
+    expect(orderCloud(Float64Array.from(clump), "clump.xyz", { unit: "nm" }).outliers).toBe(15);
+  });
+});
+
+describe("orderCloud on a branched cloud", () => {
+  it("names the branch, not a density change, for a Y of three 100 nm legs", () => {
+    // Common practice: a junction of three legs cannot be ordered as one wire; along the spanning
+    // tree's longest path the third leg's points crowd the junction, which must not be read as a
+    // change of density.
+    for (let seed = 3; seed <= 6; seed++) {
+      const pts: number[] = [];
+      [0, 2.1, 4.2].forEach((a, k) => {
+        const g = normalStream(60 + k + 10 * seed), u = mulberry32(70 + k + 10 * seed);
+        for (let i = 0; i < 500; i++) {
+          const t = 100 * u();
+          pts.push((t * Math.cos(a) + 0.3 * g()) * NM, (t * Math.sin(a) + 0.3 * g()) * NM, 0.3 * g() * NM);
+        }
+      });
+      expect(() => orderCloud(Float64Array.from(pts), "y.xyz", { unit: "nm" })).toThrow(/^y\.xyz: points: the cloud crosses itself or branches near/);
+    }
+  });
+});
