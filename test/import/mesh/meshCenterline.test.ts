@@ -210,6 +210,27 @@ describe("meshCenterline(mesh, file, options)", () => {
     expect(b.source).toEqual({ file: "h.stl", unit: "um" });
   });
 
+  it("stops at each open end of a nearly closed ring instead of running on into the other end's tube", () => {
+    // a 355 degree arc of radius 50 nm, tube radius 5 nm, uncapped: its open ends are 4.4 nm apart.
+    // Truth: arc length R theta (textbook closed form) = 309.8 nm; the line had run 40 degrees on (345 nm).
+    const R = 50, th = (355 * Math.PI) / 180;
+    const arc: CurveFn = (t) => [R * Math.cos(th * t), R * Math.sin(th * t), 0];
+    const stl = toStlBinary(threeTube(arc, 5, 240, 16, false));
+    const [t] = meshCenterline(parseStl(stl, "arc355.stl", { unit: "nm" }), "arc355.stl", { unit: "nm" });
+    expect(t.closed).toBe(false);
+    const n = t.xyz.length / 3;
+    let len = 0, turn = 0;
+    for (let i = 0; i + 1 < n; i++) {
+      len += Math.hypot(t.xyz[3 * i + 3] - t.xyz[3 * i], t.xyz[3 * i + 4] - t.xyz[3 * i + 1], t.xyz[3 * i + 5] - t.xyz[3 * i + 2]);
+      turn += Math.atan2(t.xyz[3 * i] * t.xyz[3 * i + 4] - t.xyz[3 * i + 1] * t.xyz[3 * i + 3], t.xyz[3 * i] * t.xyz[3 * i + 3] + t.xyz[3 * i + 1] * t.xyz[3 * i + 4]);
+    }
+    expect(Math.abs(len / NM - R * th) / (R * th)).toBeLessThan(0.02); // was 11.5% long; the ends now stop at the last whole section
+    expect(Math.abs(turn)).toBeLessThan(th); // no stretch of the ring traced twice
+    const e = errors(t, arc, 5);
+    expect(e.maxD).toBeLessThan(0.05);
+    expect(t.diagnostics.some((d) => d.includes("another stretch of the surface"))).toBe(true);
+  });
+
   it("skips debris components and fails clearly when nothing wire-like is left", () => {
     const tiny = implicitTube([[[0, 0, 0], [1, 0, 0]]], 2, 1.5);
     const main = cappedTube(bent, 10, { tubular: 60, radial: 12, capRings: 3 });
