@@ -258,6 +258,13 @@ function wireOfComponent(
       notes.push(`${name}: end caps or tapers: radius below 90% of the median over the first ${a} and last ${b} samples; the model is not valid there`);
     }
   }
+  const round = outOfRound(pts, radius, spread, rMed);
+  if (round !== null) {
+    const [a, b] = [3 * round.from, 3 * round.to];
+    notes.push(
+      `${name}: cross-section out of round (radius spread up to ${Math.round(100 * round.worst)}% of the radius, a tessellated circle gives under 10%) over ${fmtL(round.length)} of the ${fmtL(length)} line, from ${fmtP(pts[a], pts[a + 1], pts[a + 2])} to ${fmtP(pts[b], pts[b + 1], pts[b + 2])}: a flattened wire, or wires fused side by side (the centre line then runs between them, and the radius is neither's)`,
+    );
+  }
   if (dropped > 0) notes.push(`${name}: left out ${dropped} interior samples where no closed cross-section enclosed the centre line`);
   if (jumped > 0) {
     notes.push(
@@ -265,6 +272,37 @@ function wireOfComponent(
     );
   }
   return { xyz: pts, closed, radius, spread, notes };
+}
+
+/**
+ * The longest run of samples whose section is out of round (radius spread above `OUT_OF_ROUND` of the
+ * radius), when it spans at least 4 median radii: null otherwise. A regular n-gon's spread is
+ * 0.07 r for n = 6 and 0.01 r for n = 16 (measured on the sweep's tori); a flat cap's oblique cuts
+ * are out of round over a sample or two only. Two round tubes fused side by side (axes 1.8 radii
+ * apart) give 0.30, the sweep's flattened torus section 0.37.
+ */
+const OUT_OF_ROUND = 0.2;
+export function outOfRound(
+  pts: Float64Array, radius: Float64Array, spread: Float64Array, rMed: number,
+): { from: number; to: number; length: number; worst: number } | null {
+  const n = radius.length;
+  let best: { from: number; to: number; length: number; worst: number } | null = null;
+  let i = 0;
+  while (i < n) {
+    if (!(spread[i] > OUT_OF_ROUND * radius[i])) {
+      i++;
+      continue;
+    }
+    let j = i, len = 0, worst = spread[i] / radius[i];
+    while (j + 1 < n && spread[j + 1] > OUT_OF_ROUND * radius[j + 1]) {
+      len += Math.hypot(pts[3 * j + 3] - pts[3 * j], pts[3 * j + 4] - pts[3 * j + 1], pts[3 * j + 5] - pts[3 * j + 2]);
+      worst = Math.max(worst, spread[j + 1] / radius[j + 1]);
+      j++;
+    }
+    if (len >= 4 * rMed && (best === null || len > best.length)) best = { from: i, to: j, length: len, worst };
+    i = j + 1;
+  }
+  return best;
 }
 
 /**

@@ -231,6 +231,20 @@ describe("meshCenterline(mesh, file, options)", () => {
     expect(t.diagnostics.some((d) => d.includes("another stretch of the surface"))).toBe(true);
   });
 
+  it("names where the cross-section is far out of round (two wires fused side by side)", () => {
+    // Two round tubes of radius 5 nm with axes 9 nm apart, fused (isosurface of their union): each
+    // section is two overlapping circles, 19 x 10 nm (elementary geometry), not one round wire's.
+    const line = (y: number) => Array.from({ length: 41 }, (_, i) => [5 * i, y, 0] as [number, number, number]);
+    const fused = toStlBinary(implicitTube([line(0), line(9)], 5, 1.5));
+    const [t] = meshCenterline(parseStl(fused, "fused.stl", { unit: "nm" }), "fused.stl", { unit: "nm" });
+    const note = t.diagnostics.find((d) => d.includes("out of round"));
+    expect(note).toMatch(/^component 1 of 1: cross-section out of round \(radius spread up to \d+% of the radius.* from \(.+\) nm to \(.+\) nm: .*fused side by side/);
+    // one round tube of the same make: no such note (common practice: a wire's section is round)
+    const single = toStlBinary(implicitTube([line(0)], 5, 1.5));
+    const [u] = meshCenterline(parseStl(single, "one.stl", { unit: "nm" }), "one.stl", { unit: "nm" });
+    expect(u.diagnostics.some((d) => d.includes("out of round"))).toBe(false);
+  });
+
   it("skips debris components and fails clearly when nothing wire-like is left", () => {
     const tiny = implicitTube([[[0, 0, 0], [1, 0, 0]]], 2, 1.5);
     const main = cappedTube(bent, 10, { tubular: 60, radial: 12, capRings: 3 });
