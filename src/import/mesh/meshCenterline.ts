@@ -117,7 +117,7 @@ export function extract(mesh: Mesh, tris: Readonly<Uint32Array>): { positions: F
  */
 export function componentLevelGraph(
   positions: Float64Array, index: Uint32Array, name: string, fmtL: (v: number) => string,
-): { graph: LevelSetGraph; rEst: number; notes: string[]; d: Float64Array } | string {
+): { graph: LevelSetGraph; rEst: number; notes: string[]; d: Float64Array; nonManifold: number } | string {
   const nV = positions.length / 3, nT = index.length / 3;
   const notes: string[] = [];
   const edges = buildEdges(index, nV);
@@ -136,6 +136,7 @@ export function componentLevelGraph(
   if (nonManifold > 0) notes.push(`${name}: ${nonManifold} non-manifold edges (shared by more than 2 triangles)`);
   // 1. geodesic distance from one end
   let sources: number[];
+  let rim = 0; // length of the longest boundary loop
   if (boundaryEdges > 0) {
     const loops = new Map<number, number[]>();
     for (let v = 0; v < nV; v++) {
@@ -146,6 +147,12 @@ export function componentLevelGraph(
       else loops.set(r, [v]);
     }
     sources = [...loops.values()].sort((a, b) => b.length - a.length)[0];
+    const root = boundary.find(sources[0]);
+    for (let e = 0; e < edges.count; e++) {
+      if (edges.triStart[e + 1] - edges.triStart[e] !== 1 || boundary.find(edges.a[e]) !== root) continue;
+      const a = 3 * edges.a[e], b = 3 * edges.b[e];
+      rim += Math.hypot(positions[a] - positions[b], positions[a + 1] - positions[b + 1], positions[a + 2] - positions[b + 2]);
+    }
     notes.push(`${name}: open surface with ${loops.size} boundary loops`);
   } else {
     const d0 = dijkstra(adj, nV, [0]);
@@ -160,11 +167,15 @@ export function componentLevelGraph(
   // 2. level-set diagram: a coarse pass for the radius, then levels every half radius
   const coarse = levelSetGraph(positions, index, edges, d, dmax / 48);
   const rCoarse = median(coarse.loops.map((q) => q.length / (2 * Math.PI)));
-  if (!(rCoarse > 0) || dmax < 2 * rCoarse) return `${name}: skipped: a blob, not a wire (${nT} triangles, extent ${fmtL(dmax)})`;
+  if (!(rCoarse > 0) || dmax < 2 * rCoarse) {
+    // every point within dmax of a boundary loop far longer than a blob's rim (at most 2 pi dmax round)
+    if (rim > 4 * Math.PI * dmax) return `${name}: skipped: an open surface whose boundary (${fmtL(rim)} long) runs within ${fmtL(dmax)} of every point: a tube slit along its length? close the slit`;
+    return `${name}: skipped: a blob, not a wire (${nT} triangles, extent ${fmtL(dmax)})`;
+  }
   const h = Math.max(Math.min(0.5 * rCoarse, dmax / 8), dmax / 20000);
   const graph = levelSetGraph(positions, index, edges, d, h);
   const rEst = median(graph.loops.map((q) => q.length / (2 * Math.PI)));
-  return { graph, rEst, notes, d };
+  return { graph, rEst, notes, d, nonManifold };
 }
 
 
@@ -180,7 +191,7 @@ function wireOfComponent(
   const nT = index.length / 3;
   const level = componentLevelGraph(positions, index, name, fmtL);
   if (typeof level === "string") return level;
-  const { graph, rEst, notes } = level;
+  const { graph, rEst, notes, nonManifold } = level;
   const path = skeletonPath(graph, (options.spurRadii ?? 2.5) * rEst);
   if (path.pruned > 0) notes.push(`${name}: pruned ${path.pruned} side spurs of the level-set graph (longest ${fmtL(path.prunedMax)})`);
   if (path.kind === "complex") {
@@ -231,7 +242,10 @@ function wireOfComponent(
     }
     jumped = sec.jumped;
     jumpedAt = sec.where;
-    if (out.length < 6) return `${name}: skipped: no closed cross-section found along the level-set path`;
+    if (out.length < 6) {
+      const why = nonManifold > 0 ? ` (${nonManifold} edges are shared by more than 2 triangles: duplicated triangles or surfaces that touch, where a cutting plane gives no single loop)` : "";
+      return `${name}: skipped: no closed cross-section found along the level-set path${why}`;
+    }
     pts = Float64Array.from(out);
     radius = Float64Array.from(rad);
     spread = Float64Array.from(spr);

@@ -245,6 +245,20 @@ describe("meshCenterline(mesh, file, options)", () => {
     expect(u.diagnostics.some((d) => d.includes("out of round"))).toBe(false);
   });
 
+  it("names a lengthwise slit and duplicated triangles when it refuses a mesh", () => {
+    // a straight tube (200 nm, radius 5 nm, 16 facets round) with one facet column cut out along its
+    // whole length: had been called "a blob"; and the same tube with every triangle twice.
+    const straight: CurveFn = (t) => [200 * t, 0, 0];
+    const geo = threeTube(straight, 5, 60, 16, false);
+    const idx = Array.from(geo.getIndex()!.array as ArrayLike<number>);
+    const slit = geo.clone();
+    slit.setIndex(idx.filter((_, k) => Math.floor(k / 3) % 32 > 1));
+    expect(() => readStlTraces(toStlBinary(slit), "slit.stl", { unit: "nm" })).toThrow(/slit\.stl: mesh: no wire-like component \(component 1 of 1: skipped: an open surface whose boundary \(\d+ nm long\) runs within [\d.]+ nm of every point: a tube slit along its length\? close the slit\)$/);
+    const twice = geo.clone();
+    twice.setIndex([...idx, ...idx]);
+    expect(() => readStlTraces(toStlBinary(twice), "twice.stl", { unit: "nm" })).toThrow(/no closed cross-section found along the level-set path \(\d+ edges are shared by more than 2 triangles: duplicated triangles/);
+  });
+
   it("skips debris components and fails clearly when nothing wire-like is left", () => {
     const tiny = implicitTube([[[0, 0, 0], [1, 0, 0]]], 2, 1.5);
     const main = cappedTube(bent, 10, { tubular: 60, radial: 12, capRings: 3 });
