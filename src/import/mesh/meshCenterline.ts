@@ -330,7 +330,7 @@ export function outOfRound(
  * starts from the middle sample (its smallest enclosing section) and goes out both ways (closed:
  * round once). `jumped` counts sections refused for their d.
  */
-function sectionsAlong(
+export function sectionsAlong(
   positions: Float64Array, index: Uint32Array, grid: TriangleGrid, pts: Float64Array, tan: Float64Array,
   closed: boolean, reach: number, rEst: number, d: Float64Array,
 ): { at: (Section | null)[]; jumped: number; where: number[] } {
