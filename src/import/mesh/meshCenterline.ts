@@ -243,7 +243,9 @@ function wireOfComponent(
     jumped = sec.jumped;
     jumpedAt = sec.where;
     if (out.length < 6) {
-      const why = nonManifold > 0 ? ` (${nonManifold} edges are shared by more than 2 triangles: duplicated triangles or surfaces that touch, where a cutting plane gives no single loop)` : "";
+      const why = nonManifold > 0
+        ? ` (${nonManifold} edges are shared by more than 2 triangles: duplicated triangles or surfaces that touch, where a cutting plane gives no single loop)`
+        : ` (${path.loops.length} level loops of median radius ${fmtL(rEst)}; no plane normal to their path cuts a loop around it: not a thin tube there, e.g. turns that touch or a ring whose hole is narrower than its tube)`;
       return `${name}: skipped: no closed cross-section found along the level-set path${why}`;
     }
     pts = Float64Array.from(out);

@@ -245,7 +245,7 @@ describe("meshCenterline(mesh, file, options)", () => {
     expect(u.diagnostics.some((d) => d.includes("out of round"))).toBe(false);
   });
 
-  it("names a lengthwise slit and duplicated triangles when it refuses a mesh", () => {
+  it("names a lengthwise slit, duplicated triangles and a fat torus when it refuses a mesh", () => {
     // a straight tube (200 nm, radius 5 nm, 16 facets round) with one facet column cut out along its
     // whole length: had been called "a blob"; and the same tube with every triangle twice.
     const straight: CurveFn = (t) => [200 * t, 0, 0];
@@ -257,6 +257,9 @@ describe("meshCenterline(mesh, file, options)", () => {
     const twice = geo.clone();
     twice.setIndex([...idx, ...idx]);
     expect(() => readStlTraces(toStlBinary(twice), "twice.stl", { unit: "nm" })).toThrow(/no closed cross-section found along the level-set path \(\d+ edges are shared by more than 2 triangles: duplicated triangles/);
+    // a torus whose hole (radius 4 nm) is narrower than its tube (radius 6 nm, ring radius 10 nm)
+    const fat = toStlBinary(threeTube(circleCurve(10), 6, 60, 16, true));
+    expect(() => readStlTraces(fat, "fat.stl", { unit: "nm" })).toThrow(/no closed cross-section found along the level-set path \(\d+ level loops of median radius [\d.]+ nm; .*not a thin tube there/);
   });
 
   it("skips debris components and fails clearly when nothing wire-like is left", () => {
