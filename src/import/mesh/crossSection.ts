@@ -70,6 +70,20 @@ export interface Section {
   readonly radius: number;
   readonly spread: number;
   readonly area: number;
+  /** Mean of the `level` field over the section's outline points (NaN without one). */
+  readonly level: number;
+}
+
+/**
+ * A scalar field on the mesh vertices (the geodesic distance from one end) and the value a section
+ * must have: loops whose mean field differs from `expect` by more than `tol` belong to another
+ * stretch of the surface (the other end of a nearly closed ring, a neighbouring turn) and are
+ * skipped. `expect` NaN: no check, the level is only reported.
+ */
+export interface SectionLevel {
+  readonly field: Readonly<Float64Array>;
+  readonly expect: number;
+  readonly tol: number;
 }
 
 /**
@@ -91,6 +105,7 @@ export function crossSection(
   cx: number, cy: number, cz: number,
   tx: number, ty: number, tz: number,
   reach: number,
+  level?: SectionLevel,
 ): Section | null {
   const nV = positions.length / 3;
   const q = reach + grid.reach;
@@ -103,6 +118,7 @@ export function crossSection(
   const pts: number[] = [];
   const segA: number[] = [], segB: number[] = [];
   const link: number[] = []; // two segment slots per point, -1 when empty
+  const ptLevel: number[] = [];
   let bad = false;
   const point = (a: number, b: number, sa: number, sb: number): number => {
     const lo = a < b ? a : b, hi = a < b ? b : a;
@@ -118,6 +134,7 @@ export function crossSection(
         positions[3 * a + 2] + f * (positions[3 * b + 2] - positions[3 * a + 2]),
       );
       link.push(-1, -1);
+      if (level) ptLevel.push(level.field[a] + f * (level.field[b] - level.field[a]));
     }
     return id;
   };
@@ -174,10 +191,12 @@ export function crossSection(
   const seen = new Uint8Array(segA.length);
   let best: Section | null = null;
   const loopU: number[] = [], loopW: number[] = [];
+  let loopLevel = 0;
   for (let s0 = 0; s0 < segA.length; s0++) {
     if (seen[s0]) continue;
     loopU.length = 0;
     loopW.length = 0;
+    loopLevel = 0;
     let closed = false;
     let s = s0, p = segA[s0];
     for (;;) {
@@ -185,6 +204,7 @@ export function crossSection(
       const pp = 3 * p;
       loopU.push((pts[pp] - cx) * ux + (pts[pp + 1] - cy) * uy + (pts[pp + 2] - cz) * uz);
       loopW.push((pts[pp] - cx) * wx + (pts[pp + 1] - cy) * wy + (pts[pp + 2] - cz) * wz);
+      if (level) loopLevel += ptLevel[p];
       const np = segA[s] === p ? segB[s] : segA[s];
       const ns = link[2 * np] === s ? link[2 * np + 1] : link[2 * np];
       if (ns === -1) break;
@@ -208,6 +228,8 @@ export function crossSection(
       gy += (aw + bw) * cr;
     }
     if (Math.abs(wind) < Math.PI) continue;
+    const lv = level ? loopLevel / n : NaN;
+    if (level && Math.abs(lv - level.expect) > level.tol) continue;
     const area = Math.abs(A2) / 2;
     if (best !== null && area >= best.area) continue;
     const mu = gx / (3 * A2), mw = gy / (3 * A2);
@@ -229,6 +251,7 @@ export function crossSection(
       radius,
       spread: Math.sqrt(Math.max(0, m2 / per - radius * radius)),
       area,
+      level: lv,
     };
   }
   return best;

@@ -1,6 +1,6 @@
 import { InputError } from "../../errors.js";
 import type { Trace } from "../../types.js";
-import { buildTriangleGrid, crossSection, type TriangleGrid } from "./crossSection.js";
+import { buildTriangleGrid, crossSection, type Section, type TriangleGrid } from "./crossSection.js";
 import { levelSetGraph, type LevelSetGraph } from "./levelSets.js";
 import { chordTangents, polylineLength, resample, runningMean } from "./polyline.js";
 import { skeletonPath } from "./skeletonPath.js";
@@ -27,7 +27,9 @@ import { median } from "../median.js";
  *    by the plane normal to the local chord tangent (over about one radius), `passes` times. This
  *    removes the bias of level-set centroids in bends. Open ends are explored up to 1.5 radii beyond
  *    the last loop, so a capped end runs to the cap's tip, where the radius falls to 0, and an
- *    uncapped end stops at the last complete cross-section.
+ *    uncapped end stops at the last complete cross-section. A section must follow on from its
+ *    neighbour in the geodesic distance of step 1 (`sectionsAlong`), so near the other end of a
+ *    nearly closed ring the line stops at its own end instead of running on into the other tube.
  *
  * Radius: perimeter-weighted mean distance of the section outline from its centroid; spread: its
  * standard deviation (noise and out-of-roundness). The curved-wire model is valid only where the
@@ -115,7 +117,7 @@ export function extract(mesh: Mesh, tris: Readonly<Uint32Array>): { positions: F
  */
 export function componentLevelGraph(
   positions: Float64Array, index: Uint32Array, name: string, fmtL: (v: number) => string,
-): { graph: LevelSetGraph; rEst: number; notes: string[] } | string {
+): { graph: LevelSetGraph; rEst: number; notes: string[]; d: Float64Array; nonManifold: number } | string {
   const nV = positions.length / 3, nT = index.length / 3;
   const notes: string[] = [];
   const edges = buildEdges(index, nV);
@@ -134,6 +136,7 @@ export function componentLevelGraph(
   if (nonManifold > 0) notes.push(`${name}: ${nonManifold} non-manifold edges (shared by more than 2 triangles)`);
   // 1. geodesic distance from one end
   let sources: number[];
+  let rim = 0; // length of the longest boundary loop
   if (boundaryEdges > 0) {
     const loops = new Map<number, number[]>();
     for (let v = 0; v < nV; v++) {
@@ -144,6 +147,12 @@ export function componentLevelGraph(
       else loops.set(r, [v]);
     }
     sources = [...loops.values()].sort((a, b) => b.length - a.length)[0];
+    const root = boundary.find(sources[0]);
+    for (let e = 0; e < edges.count; e++) {
+      if (edges.triStart[e + 1] - edges.triStart[e] !== 1 || boundary.find(edges.a[e]) !== root) continue;
+      const a = 3 * edges.a[e], b = 3 * edges.b[e];
+      rim += Math.hypot(positions[a] - positions[b], positions[a + 1] - positions[b + 1], positions[a + 2] - positions[b + 2]);
+    }
     notes.push(`${name}: open surface with ${loops.size} boundary loops`);
   } else {
     const d0 = dijkstra(adj, nV, [0]);
@@ -158,11 +167,15 @@ export function componentLevelGraph(
   // 2. level-set diagram: a coarse pass for the radius, then levels every half radius
   const coarse = levelSetGraph(positions, index, edges, d, dmax / 48);
   const rCoarse = median(coarse.loops.map((q) => q.length / (2 * Math.PI)));
-  if (!(rCoarse > 0) || dmax < 2 * rCoarse) return `${name}: skipped: a blob, not a wire (${nT} triangles, extent ${fmtL(dmax)})`;
+  if (!(rCoarse > 0) || dmax < 2 * rCoarse) {
+    // every point within dmax of a boundary loop far longer than a blob's rim (at most 2 pi dmax round)
+    if (rim > 4 * Math.PI * dmax) return `${name}: skipped: an open surface whose boundary (${fmtL(rim)} long) runs within ${fmtL(dmax)} of every point: a tube slit along its length? close the slit`;
+    return `${name}: skipped: a blob, not a wire (${nT} triangles, extent ${fmtL(dmax)})`;
+  }
   const h = Math.max(Math.min(0.5 * rCoarse, dmax / 8), dmax / 20000);
   const graph = levelSetGraph(positions, index, edges, d, h);
   const rEst = median(graph.loops.map((q) => q.length / (2 * Math.PI)));
-  return { graph, rEst, notes };
+  return { graph, rEst, notes, d, nonManifold };
 }
 
 
@@ -178,7 +191,7 @@ function wireOfComponent(
   const nT = index.length / 3;
   const level = componentLevelGraph(positions, index, name, fmtL);
   if (typeof level === "string") return level;
-  const { graph, rEst, notes } = level;
+  const { graph, rEst, notes, nonManifold } = level;
   const path = skeletonPath(graph, (options.spurRadii ?? 2.5) * rEst);
   if (path.pruned > 0) notes.push(`${name}: pruned ${path.pruned} side spurs of the level-set graph (longest ${fmtL(path.prunedMax)})`);
   if (path.kind === "complex") {
@@ -205,18 +218,19 @@ function wireOfComponent(
   const m = Math.max(1, Math.round(rEst / step));
   const passes = Math.max(1, options.passes ?? 3);
   let radius = new Float64Array(0), spread = new Float64Array(0);
-  let dropped = 0;
+  let dropped = 0, jumped = 0, jumpedAt: number[] = [];
   for (let pass = 0; pass < passes; pass++) {
     if (!closed) pts = extendEnds(pts, 1.5 * rEst, step);
     const tan = chordTangents(pts, closed, m);
     const n = pts.length / 3;
+    const sec = sectionsAlong(positions, index, grid, pts, tan, closed, reach, rEst, level.d);
     const out: number[] = [], rad: number[] = [], spr: number[] = [];
     dropped = 0;
     let firstKept = -1, droppedTotal = 0;
+    jumped = 0;
     for (let i = 0; i < n; i++) {
-      const cx = pts[3 * i], cy = pts[3 * i + 1], cz = pts[3 * i + 2];
-      const s = crossSection(positions, index, grid, cx, cy, cz, tan[3 * i], tan[3 * i + 1], tan[3 * i + 2], reach);
-      if (s === null || Math.hypot(s.x - cx, s.y - cy, s.z - cz) > 1.5 * rEst) {
+      const s = sec.at[i];
+      if (s === null) {
         droppedTotal++;
         continue;
       }
@@ -226,7 +240,14 @@ function wireOfComponent(
       rad.push(s.radius);
       spr.push(s.spread);
     }
-    if (out.length < 6) return `${name}: skipped: no closed cross-section found along the level-set path`;
+    jumped = sec.jumped;
+    jumpedAt = sec.where;
+    if (out.length < 6) {
+      const why = nonManifold > 0
+        ? ` (${nonManifold} edges are shared by more than 2 triangles: duplicated triangles or surfaces that touch, where a cutting plane gives no single loop)`
+        : ` (${path.loops.length} level loops of median radius ${fmtL(rEst)}; no plane normal to their path cuts a loop around it: not a thin tube there, e.g. turns that touch or a ring whose hole is narrower than its tube)`;
+      return `${name}: skipped: no closed cross-section found along the level-set path${why}`;
+    }
     pts = Float64Array.from(out);
     radius = Float64Array.from(rad);
     spread = Float64Array.from(spr);
@@ -253,8 +274,106 @@ function wireOfComponent(
       notes.push(`${name}: end caps or tapers: radius below 90% of the median over the first ${a} and last ${b} samples; the model is not valid there`);
     }
   }
+  const round = outOfRound(pts, radius, spread, rMed);
+  if (round !== null) {
+    const [a, b] = [3 * round.from, 3 * round.to];
+    notes.push(
+      `${name}: cross-section out of round (radius spread up to ${Math.round(100 * round.worst)}% of the radius, a tessellated circle gives under 10%) over ${fmtL(round.length)} of the ${fmtL(length)} line, from ${fmtP(pts[a], pts[a + 1], pts[a + 2])} to ${fmtP(pts[b], pts[b + 1], pts[b + 2])}: a flattened wire, or wires fused side by side (the centre line then runs between them, and the radius is neither's)`,
+    );
+  }
   if (dropped > 0) notes.push(`${name}: left out ${dropped} interior samples where no closed cross-section enclosed the centre line`);
+  if (jumped > 0) {
+    notes.push(
+      `${name}: left out ${jumped} cross-sections next to the section at ${fmtP(jumpedAt[0], jumpedAt[1], jumpedAt[2])} that cut another stretch of the surface (near in space, far along it: the other end of a nearly closed ring, or a touching turn); the centre line stops at its own end there`,
+    );
+  }
   return { xyz: pts, closed, radius, spread, notes };
+}
+
+/**
+ * The longest run of samples whose section is out of round (radius spread above `OUT_OF_ROUND` of the
+ * radius), when it spans at least 4 median radii: null otherwise. A regular n-gon's spread is
+ * 0.07 r for n = 6 and 0.01 r for n = 16 (measured on the sweep's tori); a flat cap's oblique cuts
+ * are out of round over a sample or two only. Two round tubes fused side by side (axes 1.8 radii
+ * apart) give 0.30, the sweep's flattened torus section 0.37.
+ */
+const OUT_OF_ROUND = 0.2;
+export function outOfRound(
+  pts: Float64Array, radius: Float64Array, spread: Float64Array, rMed: number,
+): { from: number; to: number; length: number; worst: number } | null {
+  const n = radius.length;
+  let best: { from: number; to: number; length: number; worst: number } | null = null;
+  let i = 0;
+  while (i < n) {
+    if (!(spread[i] > OUT_OF_ROUND * radius[i])) {
+      i++;
+      continue;
+    }
+    let j = i, len = 0, worst = spread[i] / radius[i];
+    while (j + 1 < n && spread[j + 1] > OUT_OF_ROUND * radius[j + 1]) {
+      len += Math.hypot(pts[3 * j + 3] - pts[3 * j], pts[3 * j + 4] - pts[3 * j + 1], pts[3 * j + 5] - pts[3 * j + 2]);
+      worst = Math.max(worst, spread[j + 1] / radius[j + 1]);
+      j++;
+    }
+    if (len >= 4 * rMed && (best === null || len > best.length)) best = { from: i, to: j, length: len, worst };
+    i = j + 1;
+  }
+  return best;
+}
+
+/**
+ * The cross-sections at the samples `pts` (tangents `tan`), each one of the stretch of surface the
+ * wire is at: a section's mean geodesic distance d (from step 1) must follow on from the last
+ * accepted section's, within twice the distance between their centroids plus two radii (geodesic
+ * distance along a tube grows at most about as fast as the centre line, up to the bend factor
+ * 1 + r kappa and the edge-graph metric's overestimate). A plane beyond one open end of a nearly
+ * closed ring cuts the other end's tube: that section lies within a few radii in space but about
+ * the wire's length away in d, and is refused, so the centre line stops at its own end. The walk
+ * starts from the middle sample (its smallest enclosing section) and goes out both ways (closed:
+ * round once). `jumped` counts sections refused for their d.
+ */
+export function sectionsAlong(
+  positions: Float64Array, index: Uint32Array, grid: TriangleGrid, pts: Float64Array, tan: Float64Array,
+  closed: boolean, reach: number, rEst: number, d: Float64Array,
+): { at: (Section | null)[]; jumped: number; where: number[] } {
+  const n = pts.length / 3;
+  const at: (Section | null)[] = new Array<Section | null>(n).fill(null);
+  let jumped = 0;
+  const where: number[] = [];
+  const cut = (i: number, last: Section | null): Section | null => {
+    const cx = pts[3 * i], cy = pts[3 * i + 1], cz = pts[3 * i + 2];
+    const free = crossSection(positions, index, grid, cx, cy, cz, tan[3 * i], tan[3 * i + 1], tan[3 * i + 2], reach, { field: d, expect: NaN, tol: Infinity });
+    const near = (s: Section | null) => s !== null && Math.hypot(s.x - cx, s.y - cy, s.z - cz) <= 1.5 * rEst;
+    if (last === null || !near(free)) return near(free) ? free : null;
+    const tol = (l: Section) => 2 * Math.hypot(l.x - last.x, l.y - last.y, l.z - last.z) + 2 * rEst;
+    if (Math.abs(free!.level - last.level) <= tol(free!)) return free;
+    // the smallest enclosing loop is of another stretch: the one of this stretch, if the plane cuts one
+    const own = crossSection(positions, index, grid, cx, cy, cz, tan[3 * i], tan[3 * i + 1], tan[3 * i + 2], reach, {
+      field: d, expect: last.level, tol: 2 * (Math.hypot(cx - last.x, cy - last.y, cz - last.z) + 1.5 * rEst) + 2 * rEst,
+    });
+    if (near(own) && Math.abs(own!.level - last.level) <= tol(own!)) return own;
+    jumped++;
+    if (where.length === 0) where.push(last.x, last.y, last.z);
+    return null;
+  };
+  let a = n >> 1;
+  while (a < n && (at[a] = cut(a, null)) === null) a++;
+  if (a === n) return { at, jumped, where };
+  const walk = (dir: number, count: number) => {
+    let last = at[a];
+    for (let k = 1, i = a + dir; k <= count; k++, i += dir) {
+      const j = ((i % n) + n) % n;
+      const s = cut(j, last);
+      at[j] = s;
+      if (s !== null) last = s;
+    }
+  };
+  if (closed) walk(1, n - 1);
+  else {
+    walk(1, n - 1 - a);
+    walk(-1, a);
+  }
+  return { at, jumped, where };
 }
 
 /** Adds samples every `step` up to `extra` beyond each open end, along the end chord over ~1 radius. */

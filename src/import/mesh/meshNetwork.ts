@@ -2,9 +2,9 @@ import { InputError } from "../../errors.js";
 import { assembleNetwork, type RawBranch, type RawJunction } from "../network/assembleNetwork.js";
 import { splitGraph, type SkeletonGraph, type Terminal } from "../network/splitGraph.js";
 import type { WireNetwork } from "../network/types.js";
-import { buildTriangleGrid, crossSection, type Section, type TriangleGrid } from "./crossSection.js";
+import { buildTriangleGrid, type Section, type TriangleGrid } from "./crossSection.js";
 import { levelSetGraph } from "./levelSets.js";
-import { componentLevelGraph, extendEnds, extract, medianEdge } from "./meshCenterline.js";
+import { componentLevelGraph, extendEnds, extract, medianEdge, sectionsAlong } from "./meshCenterline.js";
 import { chordTangents, polylineLength, resample, runningMean } from "./polyline.js";
 import { triangleComponents, UnionFind } from "./topology.js";
 import type { CenterlineOptions, Mesh } from "./types.js";
@@ -109,7 +109,7 @@ function networkOfComponent(
   const nT = index.length / 3;
   const level = componentLevelGraph(positions, index, name, fmtL);
   if (typeof level === "string") return level;
-  const { graph, rEst, notes } = level;
+  const { graph, rEst, notes, d } = level;
   // the skeleton graph: band pieces (at the mean of their loops' centroids) joined by the loops
   const L = graph.loops, nN = graph.nodes;
   const nodePos = new Float64Array(3 * nN), cnt = new Float64Array(nN);
@@ -160,7 +160,7 @@ function networkOfComponent(
       if (!linkTooShort(chain)) skipped++;
       continue;
     }
-    const refined = refineBranch(positions, index, grid, Float64Array.from(seeds), chain.closed, J0, J1, rEst, step, passes, options.smoothRadii ?? 0.5, options.keepCaps ?? false);
+    const refined = refineBranch(positions, index, grid, d, Float64Array.from(seeds), chain.closed, J0, J1, rEst, step, passes, options.smoothRadii ?? 0.5, options.keepCaps ?? false);
     if (refined === null) {
       if (!linkTooShort(chain)) skipped++;
       continue;
@@ -222,6 +222,7 @@ function refineBranch(
   positions: Float64Array,
   index: Uint32Array,
   grid: TriangleGrid,
+  d: Float64Array,
   seeds: Float64Array,
   closed: boolean,
   J0: Xyz | null,
@@ -240,12 +241,8 @@ function refineBranch(
     if (!closed) pts = extendEnds(pts, 1.5 * rEst, step);
     const tan = chordTangents(pts, closed, m);
     const n = pts.length / 3;
-    const sec: (Section | null)[] = [];
-    for (let i = 0; i < n; i++) {
-      const cx = pts[3 * i], cy = pts[3 * i + 1], cz = pts[3 * i + 2];
-      const s = crossSection(positions, index, grid, cx, cy, cz, tan[3 * i], tan[3 * i + 1], tan[3 * i + 2], reach);
-      sec.push(s === null || Math.hypot(s.x - cx, s.y - cy, s.z - cz) > 1.5 * rEst ? null : s);
-    }
+    // each section must follow on from its neighbour in d (the other end of a nearly closed ring is not this branch)
+    const sec: (Section | null)[] = sectionsAlong(positions, index, grid, pts, tan, closed, reach, rEst, d).at;
     const rMed = median(sec.filter((s) => s !== null).map((s) => s.radius));
     const single = (i: number) => {
       const s = sec[i];

@@ -210,6 +210,58 @@ describe("meshCenterline(mesh, file, options)", () => {
     expect(b.source).toEqual({ file: "h.stl", unit: "um" });
   });
 
+  it("stops at each open end of a nearly closed ring instead of running on into the other end's tube", () => {
+    // a 355 degree arc of radius 50 nm, tube radius 5 nm, uncapped: its open ends are 4.4 nm apart.
+    // Truth: arc length R theta (textbook closed form) = 309.8 nm; the line had run 40 degrees on (345 nm).
+    const R = 50, th = (355 * Math.PI) / 180;
+    const arc: CurveFn = (t) => [R * Math.cos(th * t), R * Math.sin(th * t), 0];
+    const stl = toStlBinary(threeTube(arc, 5, 240, 16, false));
+    const [t] = meshCenterline(parseStl(stl, "arc355.stl", { unit: "nm" }), "arc355.stl", { unit: "nm" });
+    expect(t.closed).toBe(false);
+    const n = t.xyz.length / 3;
+    let len = 0, turn = 0;
+    for (let i = 0; i + 1 < n; i++) {
+      len += Math.hypot(t.xyz[3 * i + 3] - t.xyz[3 * i], t.xyz[3 * i + 4] - t.xyz[3 * i + 1], t.xyz[3 * i + 5] - t.xyz[3 * i + 2]);
+      turn += Math.atan2(t.xyz[3 * i] * t.xyz[3 * i + 4] - t.xyz[3 * i + 1] * t.xyz[3 * i + 3], t.xyz[3 * i] * t.xyz[3 * i + 3] + t.xyz[3 * i + 1] * t.xyz[3 * i + 4]);
+    }
+    expect(Math.abs(len / NM - R * th) / (R * th)).toBeLessThan(0.02); // was 11.5% long; the ends now stop at the last whole section
+    expect(Math.abs(turn)).toBeLessThan(th); // no stretch of the ring traced twice
+    const e = errors(t, arc, 5);
+    expect(e.maxD).toBeLessThan(0.05);
+    expect(t.diagnostics.some((d) => d.includes("another stretch of the surface"))).toBe(true);
+  });
+
+  it("names where the cross-section is far out of round (two wires fused side by side)", () => {
+    // Two round tubes of radius 5 nm with axes 9 nm apart, fused (isosurface of their union): each
+    // section is two overlapping circles, 19 x 10 nm (elementary geometry), not one round wire's.
+    const line = (y: number) => Array.from({ length: 41 }, (_, i) => [5 * i, y, 0] as [number, number, number]);
+    const fused = toStlBinary(implicitTube([line(0), line(9)], 5, 1.5));
+    const [t] = meshCenterline(parseStl(fused, "fused.stl", { unit: "nm" }), "fused.stl", { unit: "nm" });
+    const note = t.diagnostics.find((d) => d.includes("out of round"));
+    expect(note).toMatch(/^component 1 of 1: cross-section out of round \(radius spread up to \d+% of the radius.* from \(.+\) nm to \(.+\) nm: .*fused side by side/);
+    // one round tube of the same make: no such note (common practice: a wire's section is round)
+    const single = toStlBinary(implicitTube([line(0)], 5, 1.5));
+    const [u] = meshCenterline(parseStl(single, "one.stl", { unit: "nm" }), "one.stl", { unit: "nm" });
+    expect(u.diagnostics.some((d) => d.includes("out of round"))).toBe(false);
+  });
+
+  it("names a lengthwise slit, duplicated triangles and a fat torus when it refuses a mesh", () => {
+    // a straight tube (200 nm, radius 5 nm, 16 facets round) with one facet column cut out along its
+    // whole length: had been called "a blob"; and the same tube with every triangle twice.
+    const straight: CurveFn = (t) => [200 * t, 0, 0];
+    const geo = threeTube(straight, 5, 60, 16, false);
+    const idx = Array.from(geo.getIndex()!.array as ArrayLike<number>);
+    const slit = geo.clone();
+    slit.setIndex(idx.filter((_, k) => Math.floor(k / 3) % 32 > 1));
+    expect(() => readStlTraces(toStlBinary(slit), "slit.stl", { unit: "nm" })).toThrow(/slit\.stl: mesh: no wire-like component \(component 1 of 1: skipped: an open surface whose boundary \(\d+ nm long\) runs within [\d.]+ nm of every point: a tube slit along its length\? close the slit\)$/);
+    const twice = geo.clone();
+    twice.setIndex([...idx, ...idx]);
+    expect(() => readStlTraces(toStlBinary(twice), "twice.stl", { unit: "nm" })).toThrow(/no closed cross-section found along the level-set path \(\d+ edges are shared by more than 2 triangles: duplicated triangles/);
+    // a torus whose hole (radius 4 nm) is narrower than its tube (radius 6 nm, ring radius 10 nm)
+    const fat = toStlBinary(threeTube(circleCurve(10), 6, 60, 16, true));
+    expect(() => readStlTraces(fat, "fat.stl", { unit: "nm" })).toThrow(/no closed cross-section found along the level-set path \(\d+ level loops of median radius [\d.]+ nm; .*not a thin tube there/);
+  });
+
   it("skips debris components and fails clearly when nothing wire-like is left", () => {
     const tiny = implicitTube([[[0, 0, 0], [1, 0, 0]]], 2, 1.5);
     const main = cappedTube(bent, 10, { tubular: 60, radial: 12, capRings: 3 });

@@ -9,7 +9,9 @@
 import { describe, expect, it } from "vitest";
 import { fitProfile } from "../../../src/frame/profile.js";
 import { meshNetwork } from "../../../src/import/mesh/meshNetwork.js";
+import { parseStl } from "../../../src/import/mesh/parseStl.js";
 import type { Mesh } from "../../../src/import/mesh/types.js";
+import { threeTube, toStlBinary } from "../../support/tubes.js";
 import type { WireNetwork } from "../../../src/import/network/types.js";
 import {
   distanceToSkeleton, ladderSkeleton, moveSkeleton, randomRotation, tripodSkeleton, tubeUnionMesh, voxelNetworkMesh, type NetworkSkeleton,
@@ -132,6 +134,17 @@ describe("meshNetwork: edge cases", () => {
     const net = meshNetwork(tubeUnionMesh(sk, R, 1.5), "rod.stl", opts);
     expect([net.junctions.length, net.ends.length, net.branches.length, net.cycles]).toEqual([0, 2, 1, 0]);
     expect(net.branches[0].zoneStart + net.branches[0].zoneEnd).toBe(0);
+  });
+  it("a nearly closed ring (uncapped 355 degree arc, ends 4.4 nm apart) is one branch that stops at its own ends", () => {
+    // truth: arc length R theta (textbook closed form) = 309.8 nm; the branch had run on into the other end's tube (344.5)
+    const Rr = 50, th = (355 * Math.PI) / 180;
+    const stl = toStlBinary(threeTube((t) => [Rr * Math.cos(th * t), Rr * Math.sin(th * t), 0], R, 240, 16, false));
+    const net = meshNetwork(parseStl(stl, "arc355.stl", opts), "arc355.stl", opts);
+    expect([net.junctions.length, net.ends.length, net.branches.length, net.cycles]).toEqual([0, 2, 1, 0]);
+    const xyz = net.branches[0].trace.xyz;
+    let len = 0;
+    for (let i = 3; i < xyz.length; i += 3) len += Math.hypot(xyz[i] - xyz[i - 3], xyz[i + 1] - xyz[i - 2], xyz[i + 2] - xyz[i - 1]);
+    expect(Math.abs(len / 1e-9 - Rr * th) / (Rr * th)).toBeLessThan(0.02);
   });
   it("a ring is one closed branch with one cycle", () => {
     const ring = Array.from({ length: 121 }, (_, i) => [40 * Math.cos((2 * Math.PI * i) / 120), 40 * Math.sin((2 * Math.PI * i) / 120), 0] as [number, number, number]);
