@@ -194,6 +194,9 @@ function wireOfComponent(
   const { graph, rEst, notes, nonManifold } = level;
   const path = skeletonPath(graph, (options.spurRadii ?? 2.5) * rEst);
   if (path.pruned > 0) notes.push(`${name}: pruned ${path.pruned} side spurs of the level-set graph (longest ${fmtL(path.prunedMax)})`);
+  if (path.kind === "pieces") {
+    throw new InputError(file, null, name, `not one tube: its cross-sections fall into ${path.pieces} separate paths although the surface is one piece (wires that touch at a point or along a seam, without a junction): split the mesh into its wires (--branches split)`);
+  }
   if (path.kind === "complex") {
     throw new InputError(file, null, name, `not a tube: ${path.cycles} independent cycles${path.junctions.length ? ` and junctions near ${path.junctions.map((j) => fmtP(j.x, j.y, j.z)).join(", ")}` : ""}`);
   }
@@ -202,7 +205,7 @@ function wireOfComponent(
       .map((j) => `${j.arms.length} arms meet near ${fmtP(j.x, j.y, j.z)} (arm lengths ${j.arms.map(fmtL).join(", ")})`)
       .join("; ");
     if ((options.branches ?? "error") === "error") {
-      throw new InputError(file, null, name, `branched: ${desc}; split the mesh into its wires (--branches split), or keep the longest path (branches: "longest")`);
+      throw new InputError(file, null, name, `branched: ${desc}; split the mesh into its wires (--branches split), or keep the longest path (--branches longest)`);
     }
     notes.push(`${name}: branched: ${desc}; kept the longest path only`);
   }

@@ -2,7 +2,7 @@ import type { LevelLoop, LevelSetGraph } from "./levelSets.js";
 
 /** Result of reducing a level-set graph to one wire. */
 export interface SkeletonPath {
-  readonly kind: "open" | "closed" | "branched" | "complex";
+  readonly kind: "open" | "closed" | "branched" | "complex" | "pieces";
   /** Loops along the main path, in order (for "branched": the longest path). */
   readonly loops: readonly LevelLoop[];
   /** Junctions (nodes of degree >= 3 left after pruning): position (m) and arm lengths (m). */
@@ -10,15 +10,18 @@ export interface SkeletonPath {
   /** Number of side spurs pruned and the longest pruned length (m). */
   readonly pruned: number;
   readonly prunedMax: number;
-  /** Independent cycles left (0 for a tree, 1 for a ring). */
+  /** Independent cycles left (0 for a tree, 1 for a ring): edges - nodes + pieces. */
   readonly cycles: number;
+  /** Connected pieces of the graph left ("pieces" when more than 1: wires that touch without a junction). */
+  readonly pieces: number;
 }
 
 /**
  * Reduces a level-set graph (nodes: band pieces, edges: loops) to an ordered path or ring.
  * Leaf chains shorter than `spurLength` that hang off a junction are pruned (noise bumps, the disc
  * levels around the source on a torus), repeatedly; what is left is classified as a path, a single
- * cycle (a closed ring), a tree with junctions (branched) or something with several cycles.
+ * cycle (a closed ring), a tree with junctions (branched), something with several cycles, or
+ * separate pieces (wires that touch without a junction: one piece of surface, several paths).
  * Edge lengths are distances between node positions (means of the incident loop centroids).
  * Cost O(nodes + loops).
  */
@@ -80,7 +83,10 @@ export function skeletonPath(graph: LevelSetGraph, spurLength: number): Skeleton
   let liveEdges = 0;
   for (let v = 0; v < nN; v++) if (deg(v) > 0) liveNodes.push(v);
   for (let e = 0; e < L.length; e++) liveEdges += alive[e];
-  const cycles = liveEdges - liveNodes.length + 1;
+  // Independent cycles: edges - nodes + connected pieces of the live graph (not + 1: two tubes
+  // that touch at one vertex are one piece of the surface but two paths, and + 1 gave -1 cycles).
+  const pieces = countPieces(liveNodes, adj, alive, other);
+  const cycles = liveEdges - liveNodes.length + pieces;
   const junctionNodes = liveNodes.filter((v) => deg(v) >= 3);
   const junctions = junctionNodes.map((v) => ({
     x: nx[v], y: ny[v], z: nz[v],
@@ -97,8 +103,9 @@ export function skeletonPath(graph: LevelSetGraph, spurLength: number): Skeleton
     }
     return length;
   }
-  const base = { junctions, pruned, prunedMax, cycles };
+  const base = { junctions, pruned, prunedMax, cycles, pieces };
   if (liveNodes.length === 0) return { kind: "open", loops: [], ...base };
+  if (pieces > 1) return { kind: "pieces", loops: [], ...base };
   if (junctionNodes.length === 0 && cycles === 0) {
     const start = liveNodes.find((v) => deg(v) === 1) as number;
     return { kind: "open", loops: walk(start, -1).edges.map((e) => L[e]), ...base };
@@ -136,4 +143,25 @@ export function skeletonPath(graph: LevelSetGraph, spurLength: number): Skeleton
     cur = other(e, cur);
   }
   return { kind: "branched", loops: path.reverse().map((e) => L[e]), ...base };
+}
+
+/** Connected pieces of the graph of the live edges over `nodes` (breadth-first search). */
+function countPieces(nodes: readonly number[], adj: readonly (readonly number[])[], alive: ArrayLike<number>, other: (e: number, v: number) => number): number {
+  const seen = new Set<number>();
+  let pieces = 0;
+  for (const v0 of nodes) {
+    if (seen.has(v0)) continue;
+    ++pieces;
+    seen.add(v0);
+    const queue = [v0];
+    while (queue.length > 0) {
+      const u = queue.pop() as number;
+      for (const e of adj[u]) {
+        if (alive[e] === 0) continue;
+        const w = other(e, u);
+        if (!seen.has(w)) { seen.add(w); queue.push(w); }
+      }
+    }
+  }
+  return pieces;
 }

@@ -6,6 +6,7 @@
  * (Diestel, "Graph Theory", section 1.9). Invented test objects (test/support/networks.ts).
  */
 import { describe, expect, it } from "vitest";
+import { meshCenterline } from "../../../src/import/mesh/meshCenterline.js";
 import { meshNetwork } from "../../../src/import/mesh/meshNetwork.js";
 import type { Mesh } from "../../../src/import/mesh/types.js";
 import { graphPieces } from "../../../src/import/network/assembleNetwork.js";
@@ -48,6 +49,18 @@ describe("networks of wires that touch without a junction", () => {
     expect(net.components).toBe(1);
     expect([net.junctions.length, net.ends.length, net.branches.length, net.cycles]).toEqual([0, 4, 2, 0]);
     expect(net.diagnostics.some((d) => d.includes("2 unjoined parts of the network in 1 connected piece"))).toBe(true);
+  });
+
+  it("read as one wire, the same mesh is refused naming the separate paths (it had said \"branched\" with no place)", () => {
+    const a = rod([0, 0, 0], [100, 0, 0]);
+    let top = 0;
+    for (let v = 0; v < a.positions.length / 3; v++) {
+      if (Math.abs(a.positions[3 * v] - 50) < 3 && a.positions[3 * v + 2] > a.positions[3 * top + 2]) top = v;
+    }
+    const mesh = touching(a, rod([10, 0, 2 * R], [90, 0, 2 * R]), top);
+    expect(() => meshCenterline(mesh, "two-touch.stl", { unit: "nm" })).toThrow(
+      "two-touch.stl: component 1 of 1: not one tube: its cross-sections fall into 2 separate paths although the surface is one piece (wires that touch at a point or along a seam, without a junction): split the mesh into its wires (--branches split)",
+    );
   });
 
   it("graphPieces: a path, a ring with no junction and a ring on a junction", () => {
