@@ -165,6 +165,9 @@ export function exportWarnings(a: Analysis, spacing: number, unit: LengthUnit): 
       }
     }
   }
+  // a --step coarser than the fit resolves (analyzeTrace's diagnostic): the stretches see less
+  const coarse = p.diagnostics.find((d) => d.startsWith("step: the profile is resampled"));
+  if (coarse !== undefined) w.push(coarse);
   const later: string[] = [];
   if (l !== undefined && p.resolution > l) {
     later.push(

@@ -161,7 +161,7 @@ describe("twistline centerline <mesh> --out <trace.csv>", () => {
     const { dir, input } = fresh("tee.stl", toStlBinary(geo));
     const r = await run(["centerline", input, "--out", join(dir, "t.csv")]);
     expect(r.code).toBe(1);
-    expect(r.stderr).toMatch(new RegExp(`^twistline: ${escape(input)}: component 1 of 1: branched: 3 arms meet near \\(.*\\(branches: "longest"\\)\\n$`));
+    expect(r.stderr).toMatch(new RegExp(`^twistline: ${escape(input)}: component 1 of 1: branched: 3 arms meet near \\(.*\\(--branches longest\\)\\n$`));
     expect(readdirSync(dir)).toEqual(["tee.stl"]);
     const ok = await run(["centerline", input, "--out", join(dir, "t.csv"), "--branches", "longest", "--quiet"]);
     expect(ok.code).toBe(0);
