@@ -85,7 +85,7 @@ export function skeletonPath(graph: LevelSetGraph, spurLength: number): Skeleton
   for (let e = 0; e < L.length; e++) liveEdges += alive[e];
   // Independent cycles: edges - nodes + connected pieces of the live graph (not + 1: two tubes
   // that touch at one vertex are one piece of the surface but two paths, and + 1 gave -1 cycles).
-  const pieces = countPieces(liveNodes, adj, alive, other);
+  const pieces = countPieces(liveNodes, L, alive);
   const cycles = liveEdges - liveNodes.length + pieces;
   const junctionNodes = liveNodes.filter((v) => deg(v) >= 3);
   const junctions = junctionNodes.map((v) => ({
@@ -145,23 +145,15 @@ export function skeletonPath(graph: LevelSetGraph, spurLength: number): Skeleton
   return { kind: "branched", loops: path.reverse().map((e) => L[e]), ...base };
 }
 
-/** Connected pieces of the graph of the live edges over `nodes` (breadth-first search). */
-function countPieces(nodes: readonly number[], adj: readonly (readonly number[])[], alive: ArrayLike<number>, other: (e: number, v: number) => number): number {
-  const seen = new Set<number>();
-  let pieces = 0;
-  for (const v0 of nodes) {
-    if (seen.has(v0)) continue;
-    ++pieces;
-    seen.add(v0);
-    const queue = [v0];
-    while (queue.length > 0) {
-      const u = queue.pop() as number;
-      for (const e of adj[u]) {
-        if (alive[e] === 0) continue;
-        const w = other(e, u);
-        if (!seen.has(w)) { seen.add(w); queue.push(w); }
-      }
-    }
-  }
-  return pieces;
+/** Connected pieces of the graph of the live edges (lower-upper node pairs) over `nodes` (union-find). */
+function countPieces(nodes: readonly number[], edges: readonly { readonly lower: number; readonly upper: number }[], alive: ArrayLike<number>): number {
+  const parent = new Map<number, number>(nodes.map((v) => [v, v]));
+  const root = (v: number): number => {
+    let r = v;
+    while (parent.get(r) !== r) r = parent.get(r) as number;
+    parent.set(v, r);
+    return r;
+  };
+  edges.forEach((q, e) => { if (alive[e] !== 0) parent.set(root(q.lower), root(q.upper)); });
+  return new Set(nodes.map(root)).size;
 }
