@@ -66,7 +66,7 @@ export function meshNetwork(mesh: Mesh, file: string, options: MeshNetworkOption
       return;
     }
     const { positions, index } = extract(mesh, tris);
-    const result = networkOfComponent(positions, index, name, options, fmtL);
+    const result = networkOfComponent(positions, index, name, options, fmtL, fmtP, file);
     if (typeof result === "string") {
       notes.push(result);
       return;
@@ -92,6 +92,12 @@ export function meshNetwork(mesh: Mesh, file: string, options: MeshNetworkOption
   });
 }
 
+/**
+ * Tube radii above which a branch of the level-set graph that yields no centre line is refused
+ * rather than left out as too short (a link between junctions is under about two radii).
+ */
+const LONG_UNREFINED_RADII = 8;
+
 interface ComponentNetwork {
   branches: Omit<RawBranch, "component">[];
   junctions: RawJunction[];
@@ -105,6 +111,8 @@ function networkOfComponent(
   name: string,
   options: MeshNetworkOptions,
   fmtL: (v: number) => string,
+  fmtP: (x: number, y: number, z: number) => string,
+  file: string,
 ): ComponentNetwork | string {
   const nT = index.length / 3;
   const level = componentLevelGraph(positions, index, name, fmtL);
@@ -162,6 +170,14 @@ function networkOfComponent(
     }
     const refined = refineBranch(positions, index, grid, d, Float64Array.from(seeds), chain.closed, J0, J1, rEst, step, passes, options.smoothRadii ?? 0.5, options.keepCaps ?? false);
     if (refined === null) {
+      // A long branch with no closed cross-section along it is not "too short": left out, the
+      // network would silently miss a wire (a tube crossed by a flattened one, 150 nm long, which
+      // had been dropped as "too short", exit 0).
+      const along = polylineLength(Float64Array.from(seeds), chain.closed);
+      if (along > LONG_UNREFINED_RADII * rEst) {
+        const a = seeds.slice(0, 3), b = seeds.slice(-3);
+        throw new InputError(file, null, name, `a branch about ${fmtL(along)} long, from near ${fmtP(a[0], a[1], a[2])} to near ${fmtP(b[0], b[1], b[2])}, has no closed cross-section along it (not a tube there: a flattened or doubled surface, or tubes passing through each other?): the network cannot be split there`);
+      }
       if (!linkTooShort(chain)) skipped++;
       continue;
     }

@@ -63,6 +63,21 @@ describe("networks of wires that touch without a junction", () => {
     );
   });
 
+  it("a long branch with no closed cross-section is refused naming it, not left out as too short", () => {
+    // A rod crossed by a second rod flattened into a plane through it (a doubled ribbon, 150 long),
+    // sharing one vertex: the ribbon had been dropped as "too short for a centre line", exit 0.
+    const a = rod([0, 0, 0], [200, 0, 0]);
+    let top = 0;
+    for (let v = 0; v < a.positions.length / 3; v++) {
+      if (Math.abs(a.positions[3 * v] - 100) < 3 && a.positions[3 * v + 2] > a.positions[3 * top + 2]) top = v;
+    }
+    const b = rod([100, -75, 0], [100, 75, 0]);
+    for (let v = 0; v < b.positions.length / 3; v++) b.positions[3 * v] = 100;
+    expect(() => meshNetwork(touching(a, b, top), "cross.stl", { unit: "nm" })).toThrow(
+      /^cross\.stl: component 1 of 1: a branch about \S+ nm long, from near \(.*\) nm to near \(.*\) nm, has no closed cross-section along it \(not a tube there: a flattened or doubled surface, or tubes passing through each other\?\): the network cannot be split there$/,
+    );
+  });
+
   it("graphPieces: a path, a ring with no junction and a ring on a junction", () => {
     const end = (id: number) => ({ kind: "end" as const, id }), junction = (id: number) => ({ kind: "junction" as const, id });
     // path e1-J1-e2 plus a loop J1-J1: one piece; a free ring: a second; a lone rod e3-e4: a third
