@@ -6,6 +6,7 @@ import type { CloudOptions, OrderedCloud, SideBranch } from "./types.js";
 import { polylineLength } from "../mesh/polyline.js";
 import { median } from "../median.js";
 import { GAP_LIMIT } from "../../frame/fitGuard.js";
+import { symEigen3 } from "../../frame/symEigen3.js";
 
 
 /**
@@ -423,8 +424,7 @@ const RUN_ELONGATION = 3;
 
 /**
  * Refuses when a group of points about to be left out as outliers is a run along a wire: at least
- * 10 points, and elongated (principal spreads from the eigenvalues of the 3x3 covariance, closed
- * form of Smith 1961, "Eigenvalues of a symmetric 3 x 3 matrix", CACM 4:168).
+ * 10 points, and elongated (principal spreads: the eigenvalues of the 3x3 covariance, `symEigen3`).
  */
 function refuseRun(xyz: Readonly<Float64Array>, g: readonly number[], file: string, fmtP: (x: number, y: number, z: number) => string, how: string): void {
   if (g.length < RUN_POINTS) return;
@@ -459,27 +459,13 @@ function principalSpreads(xyz: Readonly<Float64Array>, g: readonly number[]): [n
   mx /= g.length;
   my /= g.length;
   mz /= g.length;
-  let a = 0, b = 0, c = 0, d = 0, e = 0, f = 0; // xx yy zz xy xz yz
+  const c = new Float64Array(9);
   for (const i of g) {
-    const x = xyz[3 * i] - mx, y = xyz[3 * i + 1] - my, z = xyz[3 * i + 2] - mz;
-    a += x * x;
-    b += y * y;
-    c += z * z;
-    d += x * y;
-    e += x * z;
-    f += y * z;
+    const v = [xyz[3 * i] - mx, xyz[3 * i + 1] - my, xyz[3 * i + 2] - mz];
+    for (let r = 0; r < 3; r++) for (let q = 0; q < 3; q++) c[3 * r + q] += v[r] * v[q];
   }
-  const q = (a + b + c) / 3;
-  const p1 = d * d + e * e + f * f;
-  const p2 = (a - q) ** 2 + (b - q) ** 2 + (c - q) ** 2 + 2 * p1;
-  if (!(p2 > 0)) return [q, q];
-  const p = Math.sqrt(p2 / 6);
-  const A = (a - q) / p, B = (b - q) / p, C = (c - q) / p, D = d / p, E = e / p, F = f / p;
-  const det = A * (B * C - F * F) - D * (D * C - F * E) + E * (D * F - B * E);
-  const phi = Math.acos(Math.max(-1, Math.min(1, det / 2))) / 3;
-  const l1 = q + 2 * p * Math.cos(phi);
-  const l3 = q + 2 * p * Math.cos(phi + (2 * Math.PI) / 3);
-  return [l1, 3 * q - l1 - l3];
+  const { values } = symEigen3(c);
+  return [values[2], values[1]];
 }
 
 /** Widest gap, in median gaps, that the fit accepts (GAP_LIMIT of the fit guard), with a margin. */
