@@ -5,6 +5,9 @@ import { buildWireModel, type WireModelOptions } from "../physics/buildWireModel
 import type { Material, WireModel } from "../physics/types.js";
 import type { Feature, Profile, Segment, Trace } from "../types.js";
 
+/** Start of the diagnostic of a `step` coarser than half the fit's resolution length (`exportWarnings` repeats it). */
+export const COARSE_STEP_NOTE = "step: the profile is resampled";
+
 /** Options of {@link analyzeTrace}. Lengths in metres. */
 export interface AnalyzeOptions {
   /** Force a closed or open fit (default: the trace's declaration, else detected). */
@@ -64,7 +67,7 @@ export function analyzeTrace(trace: Trace, options: AnalyzeOptions = {}): Analys
   // fit resolves, they see less than the fit does (a uniform 198 nm helix resampled every 20 nm,
   // 11 samples, came out as irregular, helix, helix, irregular; one helix at one row per point).
   if (options.step !== undefined && options.step > 0.5 * fitted.resolution) {
-    diagnostics.push(`step: the profile is resampled every ${describeLength(options.step, trace.source)}, more than half the fit's resolution length (${describeLength(fitted.resolution, trace.source)}): the stretches, features and model see only its ${fitted.n} samples; for them use a step of at most ${describeLength(0.25 * fitted.resolution, trace.source)}, or none`);
+    diagnostics.push(`${COARSE_STEP_NOTE} every ${describeLength(options.step, trace.source)}, more than half the fit's resolution length (${describeLength(fitted.resolution, trace.source)}): the stretches, features and model see only its ${fitted.n} samples; for them use a step of at most ${describeLength(0.25 * fitted.resolution, trace.source)}, or none`);
   }
   const profile: Profile = { ...fitted, diagnostics };
   const t1 = performance.now();

@@ -3,7 +3,7 @@ import { interactions } from "../physics/interactions.js";
 import { reducedSystem } from "../physics/reducedSystem.js";
 import { buildReport } from "../report/buildReport.js";
 import { FLAG_END, FLAG_JUNCTION_ZONE, PER_METRE, type LengthUnit } from "../types.js";
-import type { Analysis } from "./analyzeTrace.js";
+import { COARSE_STEP_NOTE, type Analysis } from "./analyzeTrace.js";
 import { CHAIN_GEOMETRY_COLUMNS, CHAIN_MODEL_COLUMNS, CHAIN_TEXTURE_COLUMNS, chainCsvChunks, type ChainModel } from "./chainToCsv.js";
 import { brief } from "./brief.js";
 import { jsonNumber } from "./formatNumber.js";
@@ -166,7 +166,7 @@ export function exportWarnings(a: Analysis, spacing: number, unit: LengthUnit): 
     }
   }
   // a --step coarser than the fit resolves (analyzeTrace's diagnostic): the stretches see less
-  const coarse = p.diagnostics.find((d) => d.startsWith("step: the profile is resampled"));
+  const coarse = p.diagnostics.find((d) => d.startsWith(COARSE_STEP_NOTE));
   if (coarse !== undefined) w.push(coarse);
   const later: string[] = [];
   if (l !== undefined && p.resolution > l) {

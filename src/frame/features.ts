@@ -90,7 +90,6 @@ function runningMedian(s: Float64Array, y: Float64Array, half: number): Float64A
   return out;
 }
 
-/** Options of `findFeatures`. */
 /** The feature of a kink found in the points, over [s0, s1], the fit's curvature there peaking at `peak`. */
 function pointKink(k: ProfileKink, s0: number, s1: number, peak: number, w: number, count: number): Feature {
   const deg = (k.angle * 180) / Math.PI;
@@ -101,6 +100,7 @@ function pointKink(k: ProfileKink, s0: number, s1: number, peak: number, w: numb
   };
 }
 
+/** Options of `findFeatures`. */
 export interface FeatureOptions {
   /** Input points of the samples (3n, m), for the circle fit of a bend. */
   readonly points?: Float64Array | null;

@@ -233,7 +233,7 @@ export function segmentWire(profile: Profile, options: SegmentOptions = {}): { s
     if (cost(0, n) <= cut + (bounds.length - 1) * beta || rv <= (options.irregularRelative ?? 0.1)) bounds = [0, n];
   }
   // each kink is a change point, and no other lies in its zone
-  const kinkAt = kinkIndices(s, kinks, profile.closed);
+  const kinkAt = kinkIndices(s, kinks);
   if (kinkAt.length > 0) bounds = [...new Set([...bounds.filter((b) => b === 0 || b === n || zone[b] === 0), ...kinkAt])].sort((a, b) => a - b);
   const isKinkBound = (b: number) => kinkAt.includes(b);
   // local bends become stretches of their own
@@ -404,21 +404,18 @@ function noiseSd(x: Float64Array, use: Uint8Array, corr: number, ds: number, kv:
   return Number.isFinite(sd) ? Math.max(sd, floor) : floor;
 }
 
-/** Insert the edges of each peak into the stretch bounds; a leftover shorter than minSamples joins the peak. */
 /** 1 for the samples within a kink's zone (its s0..s1; on a ring also one length either way), else 0. */
 function kinkZoneMask(s: Float64Array, kinks: readonly ProfileKink[], length: number, closed: boolean): Uint8Array {
   const n = s.length, out = new Uint8Array(n);
+  const shifts = closed ? [0, -length, length] : [0];
   for (const k of kinks) {
-    for (let i = 0; i < n; ++i) {
-      const shifts = closed ? [0, -length, length] : [0];
-      if (shifts.some((d) => s[i] + d >= k.s0 && s[i] + d <= k.s1)) out[i] = 1;
-    }
+    for (let i = 0; i < n; ++i) if (shifts.some((d) => s[i] + d >= k.s0 && s[i] + d <= k.s1)) out[i] = 1;
   }
   return out;
 }
 
 /** Sample index of each kink (the first sample at or beyond its s; not the ends), ascending. */
-function kinkIndices(s: Float64Array, kinks: readonly ProfileKink[], _closed: boolean): number[] {
+function kinkIndices(s: Float64Array, kinks: readonly ProfileKink[]): number[] {
   const n = s.length, out: number[] = [];
   for (const k of kinks) {
     let i = 0;
@@ -428,6 +425,7 @@ function kinkIndices(s: Float64Array, kinks: readonly ProfileKink[], _closed: bo
   return [...new Set(out)].sort((a, b) => a - b);
 }
 
+/** Insert the edges of each peak into the stretch bounds; a leftover shorter than minSamples joins the peak. */
 function splitAtPeaks(bounds: number[], peaks: readonly CurvaturePeak[], minSamples: number): number[] {
   const set = new Set(bounds);
   for (const p of peaks) {
