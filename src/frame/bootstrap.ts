@@ -332,7 +332,7 @@ export function kappaTauAt(gb: GridBasis, cf: Float64Array, dc: Float64Array | n
 }
 
 /** out = a + b (the perturbed coefficients, formed once per replicate as kappaTauAt would per point). */
-function addInto(a: Float64Array, b: Float64Array, out: Float64Array): void {
+export function addInto(a: Float64Array, b: Float64Array, out: Float64Array): void {
   for (let k = 0; k < out.length; ++k) out[k] = a[k] + b[k];
 }
 
@@ -340,7 +340,7 @@ function addInto(a: Float64Array, b: Float64Array, out: Float64Array): void {
  * First to third derivatives at grid point j for coefficients cs into d12[3..11] (d12[0..2], the
  * position, is left alone: kappaTau does not read it); the sums of kappaTauAt (bit-identical).
  */
-function derivativesAt(gb: GridBasis, cs: Float64Array, j: number, d12: Float64Array): void {
+export function derivativesAt(gb: GridBasis, cs: Float64Array, j: number, d12: Float64Array): void {
   const K = gb.basis.K, vals = gb.values;
   const iv = gb.interval[j];
   const wrap = gb.basis.periodic && iv + ORDER > K;
