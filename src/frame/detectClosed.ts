@@ -1,4 +1,5 @@
 import { selectInPlace } from "./robustStart.js";
+import { hypot3 } from "./hypot3.js";
 
 /**
  * Decides whether an ordered trace is a closed curve: the gap between its last and first points is
@@ -15,7 +16,7 @@ export function detectClosed(xyz: Float64Array, diagnostics: string[]): boolean 
   const steps = new Float64Array(n - 1);
   let total = 0;
   for (let i = 1; i < n; ++i) {
-    steps[i - 1] = Math.hypot(xyz[3 * i] - xyz[3 * i - 3], xyz[3 * i + 1] - xyz[3 * i - 2], xyz[3 * i + 2] - xyz[3 * i - 1]);
+    steps[i - 1] = hypot3(xyz[3 * i] - xyz[3 * i - 3], xyz[3 * i + 1] - xyz[3 * i - 2], xyz[3 * i + 2] - xyz[3 * i - 1]);
     total += steps[i - 1];
   }
   // The lower median (the element a sort would put at (n - 2) >> 1), by selection.

@@ -6,6 +6,7 @@
 import { InputError } from "../errors.js";
 import { PER_METRE, type Source } from "../types.js";
 import { medianInPlace, medianOf } from "./robustStart.js";
+import { hypot3 } from "./hypot3.js";
 
 /** A length in metres written in the unit of the source file (pixels: in pixels). */
 export function describeLength(metres: number, source: Source): string {
@@ -26,7 +27,7 @@ export function checkClosable(y: Float64Array, medianStep: number, file: string,
   const n = y.length / 3;
   const gap = Math.hypot(y[3 * n - 3] - y[0], y[3 * n - 2] - y[1], y[3 * n - 1] - y[2]);
   let total = 0;
-  for (let i = 1; i < n; ++i) total += Math.hypot(y[3 * i] - y[3 * i - 3], y[3 * i + 1] - y[3 * i - 2], y[3 * i + 2] - y[3 * i - 1]);
+  for (let i = 1; i < n; ++i) total += hypot3(y[3 * i] - y[3 * i - 3], y[3 * i + 1] - y[3 * i - 2], y[3 * i + 2] - y[3 * i - 1]);
   if (gap <= Math.max(5 * medianStep, 0.02 * total)) return;
   throw new InputError(file, null, "closed",
     `the wire was declared closed but its ends are ${say(gap)} apart (${(gap / medianStep).toFixed(0)} sample steps, ${((100 * gap) / total).toFixed(0)}% of its length): fit it open (--open), or give a trace whose ends meet`);

@@ -2,6 +2,7 @@ import { addInto, derivativesAt, drawCoefPerturbation, kappaTauAt, noiseProbes, 
 import { kappaTau } from "./curve.js";
 import type { Skyline } from "./skyline.js";
 import { solveAt, type SmoothFit, type Smoother } from "./smoother.js";
+import { hypot3 } from "./hypot3.js";
 
 /**
  * Noise probes closed under sign flips of the coordinates: each of `base` seeded standard-normal
@@ -85,7 +86,7 @@ export function balancedLevel(
   const use: number[] = [];
   for (let j = 0; j < m; ++j) {
     const sd = Math.sqrt(kvar[j] / (2 * probes));
-    const k = Math.hypot(kvec[3 * j], kvec[3 * j + 1], kvec[3 * j + 2]);
+    const k = hypot3(kvec[3 * j], kvec[3 * j + 1], kvec[3 * j + 2]);
     if (interior[j] && (quantity === 0 || k > 3 * sd) && Number.isFinite(q0[j])) use.push(j);
   }
   if (use.length === 0) return { fit: pilot, factorOfPilot: 1, atTop: false, scored: 0 };
