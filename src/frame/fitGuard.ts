@@ -55,6 +55,24 @@ export function sortedCopy(v: Float64Array): Float64Array {
   return a;
 }
 
+/**
+ * The gaps between consecutive sorted parameters su (and the closing gap su[0] + length - su[n-1]
+ * when closed), in one loop: found[0] = index of the first widest gap (NaN never wins), and the
+ * positive gaps compacted in order into gaps[0 .. found[1]). One loop in a function of its own: a
+ * loop the JIT compiles on the stack is not thrown away by a later loop of the same function.
+ */
+function positiveGaps(su: Float64Array, closed: boolean, length: number, gaps: Float64Array, found: Int32Array): void {
+  const n = su.length, m = closed ? n : n - 1;
+  let big = 0, bigGap = 0, pos = 0;
+  for (let k = 0; k < m; ++k) {
+    const g = k < n - 1 ? su[k + 1] - su[k] : length - su[n - 1] + su[0];
+    if (k === 0) bigGap = g;
+    else if (g > bigGap) { big = k; bigGap = g; }
+    if (g > 0) gaps[pos++] = g;
+  }
+  found[0] = big; found[1] = pos;
+}
+
 /** What one pass produced, as the guard needs it (canonical units). */
 export interface PassState {
   /** Fitted curve length. */
@@ -97,11 +115,9 @@ export function checkPass(state: PassState, referenceLength: number, file: strin
   // of the widest gap only if it fails.
   const su = sortedCopy(u);
   const gaps = new Float64Array(state.closed ? n : n - 1);
-  for (let k = 1; k < n; ++k) gaps[k - 1] = su[k] - su[k - 1];
-  if (state.closed) gaps[n - 1] = state.length - su[n - 1] + su[0];
-  let big = 0, pos = 0;
-  for (let k = 1; k < gaps.length; ++k) if (gaps[k] > gaps[big]) big = k;
-  for (let k = 0; k < gaps.length; ++k) if (gaps[k] > 0) gaps[pos++] = gaps[k];
+  const found = new Int32Array(2);
+  positiveGaps(su, state.closed, state.length, gaps, found);
+  const big = found[0], pos = found[1];
   const widest = big < n - 1 ? su[big + 1] - su[big] : state.length - su[n - 1] + su[0];
   const med = medianInPlace(gaps, pos);
   if (med > 0 && widest > GAP_LIMIT * med && widest > 2 * state.knotInterval) {
