@@ -122,29 +122,52 @@ export function rhsNoiseFactor(
 function accumulateRhsLaw(
   basis: SplineBasis, u: Float64Array, w: Float64Array, tangent: Float64Array, s2: number, normalDims: 1 | 2, data: Float64Array, rowBase: Int32Array,
 ): void {
+  const K = basis.K;
   const st = new Float64Array(1), b = new Float64Array(24), idx = new Int32Array(ORDER);
-  const Pm = new Float64Array(9);
   for (let p = 0; p < u.length; ++p) {
     const wp = w[p];
     if (wp === 0) continue;
     const tx = tangent[3 * p], ty = tangent[3 * p + 1], tz = tangent[3 * p + 2];
+    // The normal-plane projector P (symmetric: entries 0, 1, 2, 4, 5, 8 of the 3 x 3), in locals.
+    let p0: number, p1: number, p2: number, p4: number, p5: number, p8: number;
     if (normalDims === 2) {
-      Pm[0] = 1 - tx * tx; Pm[1] = -tx * ty; Pm[2] = -tx * tz;
-      Pm[4] = 1 - ty * ty; Pm[5] = -ty * tz; Pm[8] = 1 - tz * tz;
+      p0 = 1 - tx * tx; p1 = -tx * ty; p2 = -tx * tz;
+      p4 = 1 - ty * ty; p5 = -ty * tz; p8 = 1 - tz * tz;
     } else {
       // In-plane normal of a curve in the xy plane: n = z x t.
       const nx = -ty, ny = tx, nn2 = nx * nx + ny * ny || 1;
-      Pm[0] = (nx * nx) / nn2; Pm[1] = (nx * ny) / nn2; Pm[2] = 0;
-      Pm[4] = (ny * ny) / nn2; Pm[5] = 0; Pm[8] = 0;
+      p0 = (nx * nx) / nn2; p1 = (nx * ny) / nn2; p2 = 0;
+      p4 = (ny * ny) / nn2; p5 = 0; p8 = 0;
     }
-    Pm[3] = Pm[1]; Pm[6] = Pm[2]; Pm[7] = Pm[5];
     const i = locate(basis, u[p], st);
     basisValues(st[0], b);
-    for (let j = 0; j < ORDER; ++j) idx[j] = coefIndex(basis, i, j);
     const f = wp * wp * s2;
-    const p0 = Pm[0], p1 = Pm[1], p2 = Pm[2], p4 = Pm[4], p5 = Pm[5], p8 = Pm[8];
     // Each entry of C gets one term per point (the pairs (j, k) meet distinct coefficient pairs),
     // so the sums run in point order as before; rowBase[r] + q addresses entry (r, q), r >= q.
+    if (i + ORDER <= K) {
+      // No wrap: coefficients i .. i + 5, so block (i + j, i + k) with i + j > i + k for k < j.
+      for (let j = 0; j < ORDER; ++j) {
+        const mj = i + j, fb = f * b[j];
+        {
+          const v = fb * b[j];
+          const r0 = rowBase[3 * mj] + 3 * mj, r1 = rowBase[3 * mj + 1] + 3 * mj, r2 = rowBase[3 * mj + 2] + 3 * mj;
+          data[r0] += v * p0;
+          data[r1] += v * p1; data[r1 + 1] += v * p4;
+          data[r2] += v * p2; data[r2 + 1] += v * p5; data[r2 + 2] += v * p8;
+        }
+        const r0 = rowBase[3 * mj], r1 = rowBase[3 * mj + 1], r2 = rowBase[3 * mj + 2];
+        for (let k = 0; k < j; ++k) {
+          const v = fb * b[k];
+          const q = 3 * (i + k);
+          const w0 = v * p0, w1 = v * p1, w2 = v * p2, w4 = v * p4, w5 = v * p5, w8 = v * p8;
+          data[r0 + q] += w0; data[r0 + q + 1] += w1; data[r0 + q + 2] += w2;
+          data[r1 + q] += w1; data[r1 + q + 1] += w4; data[r1 + q + 2] += w5;
+          data[r2 + q] += w2; data[r2 + q + 1] += w5; data[r2 + q + 2] += w8;
+        }
+      }
+      continue;
+    }
+    for (let j = 0; j < ORDER; ++j) idx[j] = coefIndex(basis, i, j);
     for (let j = 0; j < ORDER; ++j) {
       const mj = idx[j], fb = f * b[j];
       // Diagonal block (lower half).
@@ -332,7 +355,7 @@ export function kappaTauAt(gb: GridBasis, cf: Float64Array, dc: Float64Array | n
 }
 
 /** out = a + b (the perturbed coefficients, formed once per replicate as kappaTauAt would per point). */
-function addInto(a: Float64Array, b: Float64Array, out: Float64Array): void {
+export function addInto(a: Float64Array, b: Float64Array, out: Float64Array): void {
   for (let k = 0; k < out.length; ++k) out[k] = a[k] + b[k];
 }
 
@@ -340,7 +363,7 @@ function addInto(a: Float64Array, b: Float64Array, out: Float64Array): void {
  * First to third derivatives at grid point j for coefficients cs into d12[3..11] (d12[0..2], the
  * position, is left alone: kappaTau does not read it); the sums of kappaTauAt (bit-identical).
  */
-function derivativesAt(gb: GridBasis, cs: Float64Array, j: number, d12: Float64Array): void {
+export function derivativesAt(gb: GridBasis, cs: Float64Array, j: number, d12: Float64Array): void {
   const K = gb.basis.K, vals = gb.values;
   const iv = gb.interval[j];
   const wrap = gb.basis.periodic && iv + ORDER > K;

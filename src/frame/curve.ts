@@ -110,23 +110,32 @@ export function arcTable(basis: SplineBasis, coef: Float64Array, per = 4): ArcTa
   const m = basis.nseg * per;
   const u = new Float64Array(m + 1), s = new Float64Array(m + 1), speed = new Float64Array(m + 1);
   const du = basis.h / per;
-  const out = new Float64Array(12), st = new Float64Array(1), sb = new Float64Array(24);
-  const sp = (x: number) => {
-    evalCurve(basis, coef, x, 1, out, st, sb);
-    return hypot3(out[3], out[4], out[5]);
-  };
+  const out = new Float64Array(12);
+  arcLoop(basis, coef, u, s, speed, du, out);
+  return { u, s, speed, length: s[m] };
+}
+
+/** |r'(x)| (out: scratch of 12). A top-level function: a closure made per call defeated the JIT's
+ * inlining on every later call (a new call target each time). */
+function speedAt(basis: SplineBasis, coef: Float64Array, x: number, out: Float64Array): number {
+  evalCurve(basis, coef, x, 1, out);
+  return hypot3(out[3], out[4], out[5]);
+}
+
+/** The loop of {@link arcTable}. */
+function arcLoop(basis: SplineBasis, coef: Float64Array, u: Float64Array, s: Float64Array, speed: Float64Array, du: number, out: Float64Array): void {
+  const m = u.length - 1;
   for (let k = 0; k <= m; ++k) {
     u[k] = basis.u0 + k * du;
     // Stay inside the last interval at the far end of an open curve.
-    speed[k] = sp(k === m && !basis.periodic ? u[k] - 1e-12 * basis.h : u[k]);
+    speed[k] = speedAt(basis, coef, k === m && !basis.periodic ? u[k] - 1e-12 * basis.h : u[k], out);
     if (k > 0) {
       const mid = u[k - 1] + du / 2;
       let acc = 0;
-      for (let g = 0; g < 5; ++g) acc += GL_W[g] * sp(mid + (du / 2) * GL_X[g]);
+      for (let g = 0; g < 5; ++g) acc += GL_W[g] * speedAt(basis, coef, mid + (du / 2) * GL_X[g], out);
       s[k] = s[k - 1] + (acc * du) / 2;
     }
   }
-  return { u, s, speed, length: s[m] };
 }
 
 /** s(u) from an arc table by cubic Hermite interpolation (periodic tables wrap u). */

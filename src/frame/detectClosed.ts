@@ -1,4 +1,5 @@
 import { selectInPlace } from "./robustStart.js";
+import { hypot3 } from "./hypot3.js";
 
 /**
  * Decides whether an ordered trace is a closed curve: the gap between its last and first points is
@@ -13,20 +14,10 @@ export function detectClosed(xyz: Float64Array, diagnostics: string[]): boolean 
   const n = xyz.length / 3;
   if (n < 8) return false;
   const steps = new Float64Array(n - 1);
-  let total = 0;
-  for (let i = 1; i < n; ++i) {
-    steps[i - 1] = Math.hypot(xyz[3 * i] - xyz[3 * i - 3], xyz[3 * i + 1] - xyz[3 * i - 2], xyz[3 * i + 2] - xyz[3 * i - 1]);
-    total += steps[i - 1];
-  }
+  const total = stepsInto(xyz, steps);
   // The lower median (the element a sort would put at (n - 2) >> 1), by selection.
   const medStep = selectInPlace(steps.slice(), steps.length, (steps.length - 1) >> 1);
-  let e2 = 0;
-  for (let i = 1; i < n - 1; ++i) {
-    for (let c = 0; c < 3; ++c) {
-      const e = 0.5 * (xyz[3 * i - 3 + c] + xyz[3 * i + 3 + c]) - xyz[3 * i + c];
-      e2 += e * e;
-    }
-  }
+  const e2 = secondDifferenceSquares(xyz, n);
   // Var of (p[i-1] + p[i+1]) / 2 - p[i] per coordinate is 1.5 sigma^2 for white noise.
   const sigma = Math.sqrt(e2 / (3 * 1.5 * (n - 2)));
   const gap = Math.hypot(xyz[3 * n - 3] - xyz[0], xyz[3 * n - 2] - xyz[1], xyz[3 * n - 1] - xyz[2]);
@@ -76,4 +67,26 @@ function nearerThan(xyz: Float64Array, a: number, d: number, from: number, to: n
     if (dx * dx + dy * dy + dz * dz < d2) return true;
   }
   return false;
+}
+
+/** steps[i - 1] = |p_i - p_{i-1}|; returns their sum (in order). One loop per function: see design.ts. */
+function stepsInto(xyz: Float64Array, steps: Float64Array): number {
+  let total = 0;
+  for (let i = 1; i <= steps.length; ++i) {
+    steps[i - 1] = hypot3(xyz[3 * i] - xyz[3 * i - 3], xyz[3 * i + 1] - xyz[3 * i - 2], xyz[3 * i + 2] - xyz[3 * i - 1]);
+    total += steps[i - 1];
+  }
+  return total;
+}
+
+/** Sum over interior points and coordinates of ((p_{i-1} + p_{i+1}) / 2 - p_i)^2, in order. */
+function secondDifferenceSquares(xyz: Float64Array, n: number): number {
+  let e2 = 0;
+  for (let i = 1; i < n - 1; ++i) {
+    for (let c = 0; c < 3; ++c) {
+      const e = 0.5 * (xyz[3 * i - 3 + c] + xyz[3 * i + 3 + c]) - xyz[3 * i + c];
+      e2 += e * e;
+    }
+  }
+  return e2;
 }

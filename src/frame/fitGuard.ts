@@ -6,6 +6,7 @@
 import { InputError } from "../errors.js";
 import { PER_METRE, type Source } from "../types.js";
 import { medianInPlace, medianOf } from "./robustStart.js";
+import { hypot3 } from "./hypot3.js";
 
 /** A length in metres written in the unit of the source file (pixels: in pixels). */
 export function describeLength(metres: number, source: Source): string {
@@ -26,7 +27,7 @@ export function checkClosable(y: Float64Array, medianStep: number, file: string,
   const n = y.length / 3;
   const gap = Math.hypot(y[3 * n - 3] - y[0], y[3 * n - 2] - y[1], y[3 * n - 1] - y[2]);
   let total = 0;
-  for (let i = 1; i < n; ++i) total += Math.hypot(y[3 * i] - y[3 * i - 3], y[3 * i + 1] - y[3 * i - 2], y[3 * i + 2] - y[3 * i - 1]);
+  for (let i = 1; i < n; ++i) total += hypot3(y[3 * i] - y[3 * i - 3], y[3 * i + 1] - y[3 * i - 2], y[3 * i + 2] - y[3 * i - 1]);
   if (gap <= Math.max(5 * medianStep, 0.02 * total)) return;
   throw new InputError(file, null, "closed",
     `the wire was declared closed but its ends are ${say(gap)} apart (${(gap / medianStep).toFixed(0)} sample steps, ${((100 * gap) / total).toFixed(0)}% of its length): fit it open (--open), or give a trace whose ends meet`);
@@ -52,6 +53,24 @@ export function sortedCopy(v: Float64Array): Float64Array {
     if (budget < 0) return a.sort();
   }
   return a;
+}
+
+/**
+ * The gaps between consecutive sorted parameters su (and the closing gap su[0] + length - su[n-1]
+ * when closed), in one loop: found[0] = index of the first widest gap (NaN never wins), and the
+ * positive gaps compacted in order into gaps[0 .. found[1]). One loop in a function of its own: a
+ * loop the JIT compiles on the stack is not thrown away by a later loop of the same function.
+ */
+function positiveGaps(su: Float64Array, closed: boolean, length: number, gaps: Float64Array, found: Int32Array): void {
+  const n = su.length, m = closed ? n : n - 1;
+  let big = 0, bigGap = 0, pos = 0;
+  for (let k = 0; k < m; ++k) {
+    const g = k < n - 1 ? su[k + 1] - su[k] : length - su[n - 1] + su[0];
+    if (k === 0) bigGap = g;
+    else if (g > bigGap) { big = k; bigGap = g; }
+    if (g > 0) gaps[pos++] = g;
+  }
+  found[0] = big; found[1] = pos;
 }
 
 /** What one pass produced, as the guard needs it (canonical units). */
@@ -96,11 +115,9 @@ export function checkPass(state: PassState, referenceLength: number, file: strin
   // of the widest gap only if it fails.
   const su = sortedCopy(u);
   const gaps = new Float64Array(state.closed ? n : n - 1);
-  for (let k = 1; k < n; ++k) gaps[k - 1] = su[k] - su[k - 1];
-  if (state.closed) gaps[n - 1] = state.length - su[n - 1] + su[0];
-  let big = 0, pos = 0;
-  for (let k = 1; k < gaps.length; ++k) if (gaps[k] > gaps[big]) big = k;
-  for (let k = 0; k < gaps.length; ++k) if (gaps[k] > 0) gaps[pos++] = gaps[k];
+  const found = new Int32Array(2);
+  positiveGaps(su, state.closed, state.length, gaps, found);
+  const big = found[0], pos = found[1];
   const widest = big < n - 1 ? su[big + 1] - su[big] : state.length - su[n - 1] + su[0];
   const med = medianInPlace(gaps, pos);
   if (med > 0 && widest > GAP_LIMIT * med && widest > 2 * state.knotInterval) {

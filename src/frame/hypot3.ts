@@ -28,3 +28,21 @@ export function hypot3(x: number, y: number, z: number): number {
   sum = pre;
   return Math.sqrt(sum) * max;
 }
+
+/**
+ * The length of a 2-vector computed exactly as V8's Math.hypot for two arguments (the same steps as
+ * `hypot3`: bit-identical to Math.hypot(x, y), without the builtin's call and its scratch array).
+ * test/frame/speedInvariance.test.ts compares it with Math.hypot bit for bit.
+ */
+export function hypot2(x: number, y: number): number {
+  const ax = Math.abs(x), ay = Math.abs(y);
+  if (ax === Infinity || ay === Infinity) return Infinity;
+  if (ax !== ax || ay !== ay) return NaN;
+  const max = ax > ay ? ax : ay;
+  if (max === 0) return 0;
+  // Kahan summation of (ax/max)^2 + (ay/max)^2: the first term leaves no compensation.
+  let n = ax / max;
+  const first = n * n;
+  n = ay / max;
+  return Math.sqrt(first + n * n) * max;
+}

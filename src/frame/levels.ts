@@ -285,15 +285,29 @@ function uniformGrid(basis: SplineBasis, count: number, closed: boolean): Float6
 
 /** Smallest principal variance of the weighted points (variance off their best plane). */
 export function outOfPlaneVariance(y: Float64Array, w: Float64Array): number {
-  const n = w.length;
-  let sw = 0, mx = 0, my = 0, mz = 0;
-  for (let i = 0; i < n; ++i) { sw += w[i]; mx += w[i] * y[3 * i]; my += w[i] * y[3 * i + 1]; mz += w[i] * y[3 * i + 2]; }
-  mx /= sw; my /= sw; mz /= sw;
-  const c = [0, 0, 0, 0, 0, 0];
-  for (let i = 0; i < n; ++i) {
-    const dx = y[3 * i] - mx, dy = y[3 * i + 1] - my, dz = y[3 * i + 2] - mz, wi = w[i];
-    c[0] += wi * dx * dx; c[1] += wi * dx * dy; c[2] += wi * dx * dz; c[3] += wi * dy * dy; c[4] += wi * dy * dz; c[5] += wi * dz * dz;
-  }
+  // The two loops in functions of their own, their sums in locals (the same sums in the same order).
+  const m = new Float64Array(4);
+  weightedSums(y, w, m);
+  const sw = m[0], mx = m[1] / sw, my = m[2] / sw, mz = m[3] / sw;
+  const c = new Float64Array(6);
+  weightedScatter(y, w, mx, my, mz, c);
   for (let k = 0; k < 6; ++k) c[k] /= sw;
   return symEigen3([c[0], c[1], c[2], c[1], c[3], c[4], c[2], c[4], c[5]]).values[0];
+}
+
+/** out = [sum w, sum w x, sum w y, sum w z]. */
+function weightedSums(y: Float64Array, w: Float64Array, out: Float64Array): void {
+  let sw = 0, mx = 0, my = 0, mz = 0;
+  for (let i = 0; i < w.length; ++i) { sw += w[i]; mx += w[i] * y[3 * i]; my += w[i] * y[3 * i + 1]; mz += w[i] * y[3 * i + 2]; }
+  out[0] = sw; out[1] = mx; out[2] = my; out[3] = mz;
+}
+
+/** c = the weighted sums of dx dx, dx dy, dx dz, dy dy, dy dz, dz dz about (mx, my, mz). */
+function weightedScatter(y: Float64Array, w: Float64Array, mx: number, my: number, mz: number, c: Float64Array): void {
+  let c0 = 0, c1 = 0, c2 = 0, c3 = 0, c4 = 0, c5 = 0;
+  for (let i = 0; i < w.length; ++i) {
+    const dx = y[3 * i] - mx, dy = y[3 * i + 1] - my, dz = y[3 * i + 2] - mz, wi = w[i];
+    c0 += wi * dx * dx; c1 += wi * dx * dy; c2 += wi * dx * dz; c3 += wi * dy * dy; c4 += wi * dy * dz; c5 += wi * dz * dz;
+  }
+  c[0] = c0; c[1] = c1; c[2] = c2; c[3] = c3; c[4] = c4; c[5] = c5;
 }

@@ -10,7 +10,7 @@ import { differencePenalty } from "./design.js";
 import { arcAt, arcTable, evalCurve, kappaTau, type ArcTable } from "./curve.js";
 import { checkPass, describeLength, LENGTH_RATIO_LIMIT } from "./fitGuard.js";
 import { InputError } from "../errors.js";
-import { hypot3 } from "./hypot3.js";
+import { hypot2, hypot3 } from "./hypot3.js";
 import { medianOf, stepLengths } from "./robustStart.js";
 import { lambdaForWavelength, makeSmoother, selectSmoothing, wavelengthForLambda, type Selection, type Smoother } from "./smoother.js";
 import type { Start } from "./profile.js";
@@ -136,7 +136,7 @@ export function segmentCount(n: number, closed: boolean): number {
 export function chordLength(y: Float64Array, closed: boolean, u: Float64Array): number {
   const n = y.length / 3;
   u[0] = 0;
-  for (let i = 1; i < n; ++i) u[i] = u[i - 1] + Math.hypot(y[3 * i] - y[3 * i - 3], y[3 * i + 1] - y[3 * i - 2], y[3 * i + 2] - y[3 * i - 1]);
+  for (let i = 1; i < n; ++i) u[i] = u[i - 1] + hypot3(y[3 * i] - y[3 * i - 3], y[3 * i + 1] - y[3 * i - 2], y[3 * i + 2] - y[3 * i - 1]);
   return closed ? u[n - 1] + Math.hypot(y[0] - y[3 * n - 3], y[1] - y[3 * n - 2], y[2] - y[3 * n - 1]) : u[n - 1];
 }
 
@@ -506,7 +506,7 @@ function chordDihedrals(y: Float64Array): { dihedralCos: Float64Array; dihedralS
     const n2x = b2y * b3z - b2z * b3y, n2y = b2z * b3x - b2x * b3z, n2z = b2x * b3y - b2y * b3x;
     const x = n1x * n2x + n1y * n2y + n1z * n2z;
     const yy = hypot3(b2x, b2y, b2z) * (b1x * n2x + b1y * n2y + b1z * n2z);
-    const r = Math.hypot(x, yy);
+    const r = hypot2(x, yy);
     dihedralCos[i] = r > 0 ? x / r : NaN;
     dihedralSin[i] = r > 0 ? yy / r : NaN;
   }

@@ -427,15 +427,43 @@ function sampleAt(trace: Trace, start: Start, fit: PassesResult, set: Settings):
   return { u: su, traceIndex, s };
 }
 
-/** Indices 0..m-1 in ascending order of u (ties by index); no sort when u is in order already. */
+/**
+ * Indices 0..m-1 in ascending order of u (ties by index); no sort when u is in order already.
+ * Foot-point parameters are nearly in order (noise swaps neighbours), so a stable insertion sort
+ * (ties keep index order) costs O(m + moves); past 8 moves per index it hands over to the native
+ * sort with the comparator (the order by (u, index) is unique: the same result either way), and
+ * at a NaN the native sort does it all from the identity order, as before.
+ */
 function ascendingOrder(u: Float64Array): Uint32Array {
   const m = u.length;
   let sorted = true;
   for (let i = 1; i < m && sorted; ++i) sorted = u[i] >= u[i - 1];
   const order = new Uint32Array(m);
   for (let i = 0; i < m; ++i) order[i] = i;
-  if (!sorted) order.sort((a, b) => u[a] - u[b] || a - b);
+  if (!sorted && !insertionOrder(u, order)) {
+    for (let i = 0; i < m; ++i) order[i] = i;
+    order.sort((a, b) => u[a] - u[b] || a - b);
+  }
   return order;
+}
+
+/** Stable insertion sort of `order` (the identity on entry) by u; false, leaving `order`
+ * unspecified, at a NaN or past 8 moves per index (see ascendingOrder). */
+function insertionOrder(u: Float64Array, order: Uint32Array): boolean {
+  const m = order.length;
+  let budget = 8 * m;
+  if (m > 0 && u[0] !== u[0]) return false;
+  for (let i = 1; i < m; ++i) {
+    const k = order[i], x = u[k];
+    if (x !== x) return false;
+    let j = i - 1;
+    if (!(u[order[j]] > x)) continue;
+    while (j >= 0 && u[order[j]] > x) { order[j + 1] = order[j]; --j; }
+    order[j + 1] = k;
+    budget -= i - j;
+    if (budget < 0) return false;
+  }
+  return true;
 }
 
 /** su[j] = u[order[j]], traceIndex[j] = kept[order[j]]. */

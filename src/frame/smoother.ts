@@ -54,8 +54,31 @@ export function solveAt(sm: Smoother, lambda: number): SmoothFit {
   const A: Skyline = { n: G.n, first: G.first, offset: G.offset, data: combined(G.data, lambda, sm.P.data) };
   factorLdl(A, 0);
   const coef = new Float64Array(3 * sm.basis.K);
-  const rss = solveCoordinates(A, G, rhs, yWy, coef);
+  const rss = solveCoordinates(A, G, rhs, interleavedRhs(sm.normal), yWy, coef, solveScratch(3 * sm.basis.K));
   return { lambda, coef, factor: A, rss: Math.max(rss, 0) };
+}
+
+/** The right-hand sides interleaved (b[3k + c]), once per normal equations (the same for every lambda). */
+const interleaved = new WeakMap<Normal, Float64Array>();
+
+function interleavedRhs(normal: Normal): Float64Array {
+  let b3 = interleaved.get(normal);
+  if (!b3) {
+    const K = normal.G.n;
+    b3 = new Float64Array(3 * K);
+    interleave3(normal.rhs, K, b3);
+    interleaved.set(normal, b3);
+  }
+  return b3;
+}
+
+/** Scratch of solveCoordinates (the solve's workspace and G c), shared by all solves of one length:
+ * every entry is written before it is read, and nothing is kept between calls. */
+let scratchOf: { work: Float64Array; Gc: Float64Array } | null = null;
+
+function solveScratch(len: number): { work: Float64Array; Gc: Float64Array } {
+  if (!scratchOf || scratchOf.work.length !== len) scratchOf = { work: new Float64Array(len), Gc: new Float64Array(len) };
+  return scratchOf;
 }
 
 /** g + lambda p, entry by entry (G and P share their envelope). */
@@ -66,17 +89,17 @@ function combined(g: Float64Array, lambda: number, p: Float64Array): Float64Arra
 }
 
 /**
- * Coefficients of x, y, z into `coef` from the factor A, and the weighted RSS (yWy - 2 c.b + c.G c).
+ * Coefficients of x, y, z into `coef` from the factor A (b3: the right-hand sides interleaved), and
+ * the weighted RSS (yWy - 2 c.b + c.G c).
  * The three coordinates share each sweep over A and G (`solveLdl3`, `symMul3`: per coordinate the
  * operations of `solveLdl` and `symMul`), the RSS summed coordinate by coordinate.
  */
-function solveCoordinates(A: Skyline, G: Skyline, rhs: Float64Array, yWy: number, coef: Float64Array): number {
-  const K = A.n;
-  const b3 = new Float64Array(3 * K), work = new Float64Array(3 * K), Gc = new Float64Array(3 * K);
-  interleave3(rhs, K, b3);
-  solveLdl3(A, b3, coef, work);
-  symMul3(G, coef, Gc);
-  return residualSum(coef, rhs, Gc, yWy);
+function solveCoordinates(
+  A: Skyline, G: Skyline, rhs: Float64Array, b3: Float64Array, yWy: number, coef: Float64Array, scratch: { readonly work: Float64Array; readonly Gc: Float64Array },
+): number {
+  solveLdl3(A, b3, coef, scratch.work);
+  symMul3(G, coef, scratch.Gc);
+  return residualSum(coef, rhs, scratch.Gc, yWy);
 }
 
 /** out[3k + c] = blocks[c K + k]. */

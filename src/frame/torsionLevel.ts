@@ -1,6 +1,8 @@
-import { drawCoefPerturbation, kappaTauAt, noiseProbes, type GridBasis } from "./bootstrap.js";
+import { addInto, derivativesAt, drawCoefPerturbation, kappaTauAt, noiseProbes, type GridBasis } from "./bootstrap.js";
+import { kappaTau } from "./curve.js";
 import type { Skyline } from "./skyline.js";
 import { solveAt, type SmoothFit, type Smoother } from "./smoother.js";
+import { hypot3 } from "./hypot3.js";
 
 /**
  * Noise probes closed under sign flips of the coordinates: each of `base` seeded standard-normal
@@ -75,21 +77,21 @@ export function balancedLevel(
     q0[j] = kt[quantity];
     kvec[3 * j] = kt[2]; kvec[3 * j + 1] = kt[3]; kvec[3 * j + 2] = kt[4];
   }
+  const cs = new Float64Array(3 * K);
   for (const xi of xis) {
     drawCoefPerturbation(C, pilot.factor, xi, dc, scratch);
-    for (let j = 0; j < m; ++j) {
-      kappaTauAt(grid, pilot.coef, dc, j, d12, kt);
-      kvar[j] += (kt[2] - kvec[3 * j]) ** 2 + (kt[3] - kvec[3 * j + 1]) ** 2 + (kt[4] - kvec[3 * j + 2]) ** 2;
-    }
+    addInto(pilot.coef, dc, cs);
+    curvatureSpread(grid, cs, kvec, kvar, d12, kt);
   }
   const use: number[] = [];
   for (let j = 0; j < m; ++j) {
     const sd = Math.sqrt(kvar[j] / (2 * probes));
-    const k = Math.hypot(kvec[3 * j], kvec[3 * j + 1], kvec[3 * j + 2]);
+    const k = hypot3(kvec[3 * j], kvec[3 * j + 1], kvec[3 * j + 2]);
     if (interior[j] && (quantity === 0 || k > 3 * sd) && Number.isFinite(q0[j])) use.push(j);
   }
   if (use.length === 0) return { fit: pilot, factorOfPilot: 1, atTop: false, scored: 0 };
   const M = use.length;
+  const useIdx = Int32Array.from(use);
   // Per level: values, per-probe perturbations (point-major) and the mean noise variance.
   const levels: { fit: SmoothFit; q: Float64Array; qp: Float64Array; var: number }[] = [];
   const evalLevel = (f: number) => {
@@ -99,12 +101,8 @@ export function balancedLevel(
     let s2 = 0;
     for (let p = 0; p < probes; ++p) {
       drawCoefPerturbation(C, fit.factor, xis[p], dc, scratch);
-      for (let a = 0; a < M; ++a) {
-        const t = kappaTauAt(grid, fit.coef, dc, use[a], d12, kt)[quantity];
-        const e = Number.isFinite(t) ? t - q[a] : 0;
-        qp[a * probes + p] = e;
-        s2 += e * e;
-      }
+      addInto(fit.coef, dc, cs);
+      s2 = probeChanges(grid, cs, useIdx, quantity, q, qp, p, probes, s2, d12, kt);
     }
     return { fit, q, qp, var: s2 / (probes * M) };
   };
@@ -123,6 +121,44 @@ export function balancedLevel(
     chosen = k;
   }
   return { fit: levels[chosen].fit, factorOfPilot: Math.pow(10, chosen / steps), atTop: chosen === top, scored: use.length };
+}
+
+/**
+ * The curvature vector's squared deviation from kvec at every grid point, added to kvar, for the
+ * perturbed coefficients cs = coef + dc (formed once per probe: the sums of
+ * `kappaTauAt(grid, coef, dc, ...)`, bit-identical).
+ */
+function curvatureSpread(grid: GridBasis, cs: Float64Array, kvec: Float64Array, kvar: Float64Array, d12: Float64Array, kt: Float64Array): void {
+  for (let j = 0; j < grid.m; ++j) {
+    derivativesAt(grid, cs, j, d12);
+    kappaTau(d12, kt);
+    kvar[j] += (kt[2] - kvec[3 * j]) ** 2 + (kt[3] - kvec[3 * j + 1]) ** 2 + (kt[4] - kvec[3 * j + 2]) ** 2;
+  }
+}
+
+/** Probe p's change of the quantity against q at the scored points into qp (point-major; non-finite
+ * values count 0), returning s2 plus its squares (for cs = coef + dc, as `curvatureSpread`). */
+function probeChanges(
+  grid: GridBasis, cs: Float64Array, use: Int32Array, quantity: number, q: Float64Array, qp: Float64Array, p: number, probes: number, s2: number, d12: Float64Array, kt: Float64Array,
+): number {
+  for (let a = 0; a < use.length; ++a) {
+    derivativesAt(grid, cs, use[a], d12);
+    const t = kappaTau(d12, kt)[quantity];
+    const e = Number.isFinite(t) ? t - q[a] : 0;
+    qp[a * probes + p] = e;
+    s2 += e * e;
+  }
+  return s2;
+}
+
+/** Probe p's deviation of the quantity from q at the scored points into qp (point-major; for cs = coef + dc, as `curvatureSpread`). */
+function probeDeviations(
+  grid: GridBasis, cs: Float64Array, use: Int32Array, quantity: number, q: Float64Array, qp: Float64Array, p: number, probes: number, d12: Float64Array, kt: Float64Array,
+): void {
+  for (let a = 0; a < use.length; ++a) {
+    derivativesAt(grid, cs, use[a], d12);
+    qp[a * probes + p] = kappaTau(d12, kt)[quantity] - q[a];
+  }
 }
 
 /**
@@ -183,6 +219,7 @@ export function riskLevel(
   const risks = new Float64Array(top + 1).fill(NaN);
   if (use.length === 0) return { fit: pilot, factorOfPilot: 1, atTop: false, scored: 0, risks, refinedFactor: 1, biasLaw: false };
   const M = use.length;
+  const useIdx = Int32Array.from(use), cs = new Float64Array(3 * K);
   // Per level: values and per-probe perturbations on the scored points.
   const evalLevel = (f: number) => {
     const fit = f === 0 ? pilot : solveAt(sm, pilot.lambda * Math.pow(10, f));
@@ -190,7 +227,8 @@ export function riskLevel(
     for (let a = 0; a < M; ++a) q[a] = kappaTauAt(grid, fit.coef, null, use[a], d12, kt)[quantity];
     for (let p = 0; p < probes; ++p) {
       drawCoefPerturbation(C, fit.factor, xis[p], dc, scratch);
-      for (let a = 0; a < M; ++a) qp[a * probes + p] = kappaTauAt(grid, fit.coef, dc, use[a], d12, kt)[quantity] - q[a];
+      addInto(fit.coef, dc, cs);
+      probeDeviations(grid, cs, useIdx, quantity, q, qp, p, probes, d12, kt);
     }
     return { fit, q, qp };
   };

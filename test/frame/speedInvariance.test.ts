@@ -12,7 +12,7 @@ import { placeBandQuantiles, quantileSorted } from "../../src/frame/bands.js";
 import { drawRhs, drawRhsPair, drawScratch, gridBasis, kappaTauAt, normalFiller, normalGenerator, solveLdl3 } from "../../src/frame/bootstrap.js";
 import { basisAt, basisValues, locate, makeBasis, type SplineBasis } from "../../src/frame/bspline.js";
 import { evalCurve, kappaTau } from "../../src/frame/curve.js";
-import { hypot3 } from "../../src/frame/hypot3.js";
+import { hypot2, hypot3 } from "../../src/frame/hypot3.js";
 import { median5, median8, medianInPlace, medianOf, selectInPlace } from "../../src/frame/robustStart.js";
 import { factorLdl, makeSkyline, mulLsqrtD, solveLdl, symMul, symMul3 } from "../../src/frame/skyline.js";
 import { envelope } from "../../src/frame/design.js";
@@ -89,6 +89,18 @@ describe("fast kernels equal the plain formulations bit for bit", () => {
     }
     const sp = [0, -0, NaN, Infinity, -Infinity, 1, -2.5, 1e-310, 1e308, 5e-324];
     for (const a of sp) for (const b of sp) for (const c of sp) expect(Object.is(hypot3(a, b, c), Math.hypot(a, b, c))).toBe(true);
+  });
+
+  it("hypot2 is Math.hypot of two arguments (seeded random pairs over 40 decades, and special values)", () => {
+    // The reference is the engine's own Math.hypot (ECMA-262 sec. 21.3.2.18, V8's implementation).
+    const g = normalStream(4);
+    for (let k = 0; k < 200_000; ++k) {
+      const e = () => g() * Math.pow(10, Math.floor(40 * Math.abs(g()) % 40) - 20);
+      const x = k % 23 === 0 ? -0 : e(), y = k % 17 === 0 ? 0 : e();
+      if (!bits(hypot2(x, y), Math.hypot(x, y))) expect([x, y, hypot2(x, y)]).toEqual([x, y, Math.hypot(x, y)]);
+    }
+    const sp = [0, -0, NaN, Infinity, -Infinity, 1, -2.5, 1e-310, 1e308, 5e-324, 3, 4];
+    for (const a of sp) for (const b of sp) expect(Object.is(hypot2(a, b), Math.hypot(a, b))).toBe(true);
   });
 
   it("median5 and median8 equal the median of a sort (every permutation; every 0-1 input)", () => {
