@@ -41,6 +41,20 @@ export interface Levels {
   readonly unresolved: boolean;
 }
 
+/**
+ * Decades above the discrepancy level that the curvature ladder reaches. Its top decade is where
+ * `riskLevel` reads the linear-bias law; at 2 decades that decade still carried the pilot's noise
+ * where the pilot came out noisier than its expectation (realised pilot curvature error 0.5-2.5x
+ * its expected variance over 12 noise draws of one helix), the law was refused, the per-level
+ * estimates took that noise for bias and the level came out low: a helix of 1000 points at 1%
+ * noise 1.75x the best single level's curvature error. Measured (bench/families.ts, 8 families,
+ * N 200 and 1000, noise 0.2% and 1%, seeds 1-6, 7-12, 13-18) with LINEAR_BIAS_SLOPE 1.3: curvature
+ * within 1.2x 182, 179, 183 of 192 (181, 174, 180 at 2 decades and slope 1.5), worst 1.59x (1.75);
+ * torsion within 1.5x 182, 181, 180 (184, 181, 181); 2.5 decades with slope 1.5: 183 on seeds 1-6.
+ * Pilot half a decade below instead of one: 175 (the sharp bend's pilot is biased).
+ */
+export const CURVATURE_LADDER_UP = 2.5;
+
 /** Outcome of the curvature level rule. */
 export interface CurvatureLevel {
   /** The chosen level (canonical units). */
@@ -54,8 +68,8 @@ export interface CurvatureLevel {
 
 /**
  * Curvature level by an unbiased estimate of the curvature's summed squared error (`riskLevel`):
- * on a ladder of quarter-decade levels from one decade below the passes' discrepancy level to two
- * above, the squared bias of each level is estimated against the least-smoothed one (its bias taken
+ * on a ladder of quarter-decade levels from one decade below the passes' discrepancy level to
+ * CURVATURE_LADDER_UP decades above, the squared bias of each level is estimated against the least-smoothed one (its bias taken
  * as negligible) minus the noise of the difference, and the variance from common-random-number
  * probes; the level of least estimated error is chosen. The discrepancy rule aims at the positions:
  * measured across wire families it smooths coils too little and localised features too much
@@ -68,7 +82,7 @@ export function curvatureLevel(
   options: { down?: number; up?: number; kinks?: readonly Kink[] } = {},
 ): CurvatureLevel {
   const { basis, smoother, sel, table, u, w } = fit;
-  const down = options.down ?? 1, up = options.up ?? 2;
+  const down = options.down ?? 1, up = options.up ?? CURVATURE_LADDER_UP;
   const closed = start.closed, length = table.length;
   const normalDims: 1 | 2 = trace.dims === 2 ? 1 : 2;
   const rho = smoother.normal.wSum / length;
@@ -219,7 +233,7 @@ export function chooseLevels(
 
 /**
  * Half-width of the stretch around a kink left out of the level rules' scores, in resolution
- * lengths of the fit they start from (the ladders reach two decades above it, 1.8x its resolution).
+ * lengths of the fit they start from (the ladders reach 2.5 decades above it, 2.05x its resolution).
  */
 export const KINK_ZONE = 2.5;
 
