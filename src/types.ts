@@ -43,6 +43,13 @@ export interface Trace {
    * mesh: the fit does not resolve features shorter than a few of these (facets are not the wire).
    */
   readonly facetLength?: number;
+  /**
+   * Set when the order of the points came from the cloud orderer (`orderCloud`), not from the file:
+   * the median distance of the points from the orderer's smoothed path (`across`, m) and the median
+   * nearest-neighbour spacing of the cloud (`spacing`, m). The fit guard names these when the fit of
+   * such a trace fails (a cloud thicker across than its spacing zigzags when ordered).
+   */
+  readonly cloudOrder?: { readonly across: number; readonly spacing: number };
   /** Everything repaired or dropped at import (one human-readable line each). */
   readonly diagnostics: readonly string[];
   /**

@@ -4,7 +4,7 @@
  * (NUMERICS.md sec. 7 item 2). Pure functions; they throw `InputError`.
  */
 import { InputError } from "../errors.js";
-import { PER_METRE, type Source } from "../types.js";
+import { PER_METRE, type Source, type Trace } from "../types.js";
 import { medianInPlace, medianOf } from "./robustStart.js";
 import { hypot3 } from "./hypot3.js";
 
@@ -95,8 +95,10 @@ export const GAP_LIMIT = 25;
  * Checks one pass: finite noise and length, fitted length within a factor 3 of the robust polyline
  * length, and no parameter gap longer than 25 median gaps (a stretch with no data the fit would
  * invent). `name(i)` names kept point i for the message ("row 12"). Throws on the first failure.
+ * `cloudOrder` (Trace.cloudOrder, in the canonical units of `say`): the points were ordered from a cloud; a divergence then names
+ * the cloud's thickness against its spacing instead of advising --format cloud.
  */
-export function checkPass(state: PassState, referenceLength: number, file: string, name: (i: number) => string, say: (d: number) => string): void {
+export function checkPass(state: PassState, referenceLength: number, file: string, name: (i: number) => string, say: (d: number) => string, cloudOrder?: Trace["cloudOrder"]): void {
   const { u, resid } = state;
   const n = u.length;
   const worst = () => {
@@ -107,6 +109,15 @@ export function checkPass(state: PassState, referenceLength: number, file: strin
     throw new InputError(file, null, "points", `the fit diverged (non-finite length or noise); the points farthest from it are ${worst()}`);
   }
   const ratio = state.length / referenceLength;
+  if ((ratio > LENGTH_RATIO_LIMIT || ratio < 1 / LENGTH_RATIO_LIMIT) && cloudOrder !== undefined) {
+    // the order came from the cloud orderer: "use --format cloud" would be no advice
+    const { across, spacing } = cloudOrder;
+    const thick = across > spacing
+      ? `the cloud is thicker across the wire (median distance of the points from the orderer's path ${say(across)}) than its point spacing along it (median nearest-neighbour spacing ${say(spacing)}), so the ordered points zigzag across it: a tube or volume of points, not points along a centre line; reduce it to a centre-line trace, or give the tube surface as a mesh`
+      : `the points lie a median ${say(across)} from the orderer's path (median nearest-neighbour spacing ${say(spacing)}); the points farthest from the fit are ${worst()}: check for stray points or a second wire in the cloud`;
+    throw new InputError(file, null, "points",
+      `the fit of the points ordered from the cloud diverged: its length is ${ratio.toPrecision(2)}x a robust polyline length of the trace (${say(referenceLength)}); ${thick}`);
+  }
   if (ratio > LENGTH_RATIO_LIMIT || ratio < 1 / LENGTH_RATIO_LIMIT) {
     throw new InputError(file, null, "points",
       `the fit diverged: its length is ${ratio.toPrecision(2)}x a robust polyline length of the trace (${say(referenceLength)}); the points farthest from it are ${worst()}: check for stray points, or for unordered points use --format cloud`);

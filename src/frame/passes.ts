@@ -308,6 +308,8 @@ export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnos
   const normalDims: 1 | 2 = trace.dims === 2 ? 1 : 2;
   const scale = start.canon.scale;
   const say = (d: number) => describeLength(d * scale, trace.source);
+  // the cloud orderer's figures (Trace.cloudOrder) in canonical units, for the guard's message
+  const cloudOrder = trace.cloudOrder && { across: trace.cloudOrder.across / scale, spacing: trace.cloudOrder.spacing / scale };
   const name = (i: number) => (trace.rows ? `row ${trace.rows[start.kept[i]]}` : `point ${start.kept[i] + 1}`);
   const u = resume ? resume.u.slice() : start.u.slice();
   let span = resume ? resume.span : start.span;
@@ -371,7 +373,7 @@ export function runPasses(trace: Trace, start: Start, set: PassSettings, diagnos
     // twist like a helix (not on the first fit's turn: wild or interleaved points keep the guard's word).
     let guard: unknown = null;
     try {
-      checkPass({ length: span, u, resid, sigma: sel.sigmaFrom === "unknown" ? 0 : sel.sigma, closed, knotInterval: span / basis.nseg }, start.referenceLength, file, name, say);
+      checkPass({ length: span, u, resid, sigma: sel.sigmaFrom === "unknown" ? 0 : sel.sigma, closed, knotInterval: span / basis.nseg }, start.referenceLength, file, name, say, cloudOrder);
     } catch (err) {
       if (!checkSparse) throw err;
       guard = err;

@@ -259,9 +259,10 @@ function checkOrder(
     if (r.outliers <= Math.max(1, 0.01 * (trace.xyz.length / 3)) && !outOfOrder(after) && after.polylineOverTree < 3) {
       const rows = Int32Array.from(r.order, (i) => trace.rows[i]);
       const note = `the points were not in order along the wire (${measured}): reordered them as an unordered cloud along ${r.closed ? "a closed" : "an open"} curve${r.outliers > 0 ? `, leaving out ${r.outliers} outlier(s)` : ""}; check the result, or read the file with --format cloud`;
-      const out: { xyz: Float64Array; dims: 2 | 3; source: Source; diagnostics: readonly string[]; closed?: boolean; planarProjection?: boolean; rows: Int32Array } = {
+      const out: { xyz: Float64Array; dims: 2 | 3; source: Source; diagnostics: readonly string[]; closed?: boolean; planarProjection?: boolean; rows: Int32Array; cloudOrder?: NonNullable<Trace["cloudOrder"]> } = {
         xyz: r.trace.xyz, dims: trace.dims, source: trace.source, diagnostics: [note, ...trace.diagnostics], rows, closed: r.closed,
       };
+      if (r.trace.cloudOrder !== undefined) out.cloudOrder = r.trace.cloudOrder;
       if (trace.planarProjection !== undefined) out.planarProjection = trace.planarProjection;
       return out;
     }

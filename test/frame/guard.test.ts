@@ -11,6 +11,7 @@ import { grossOutliers, differenceNoise, findOverlap, findRetrace, referenceLeng
 import { FLAG_BIAS, FLAG_END, FLAG_TORSION_UNDEFINED, type Profile, type Trace } from "../../src/types.js";
 import { bumpCurve, circleCurve, helixCurve, sampleCurve, sampleCurveUneven, vivianiCurve } from "../support/curves.js";
 import { mulberry32, normalStream } from "../support/rng.js";
+import { checkPass } from "../../src/frame/fitGuard.js";
 
 const trace = (xyz: Float64Array, extra: Partial<Trace> = {}): Trace => ({
   xyz, dims: 3, source: { file: "w.csv", unit: "nm" }, diagnostics: [], rows: Int32Array.from({ length: xyz.length / 3 }, (_, i) => i + 2), ...extra,
@@ -388,5 +389,16 @@ describe("spatially adaptive curvature (opt-in)", () => {
       expect(b.diagnostics.some((d) => d.startsWith("curvature: spatially adaptive smoothing"))).toBe(true);
     }
     expect(better).toBeGreaterThanOrEqual(2);
+  });
+});
+
+describe("checkPass on a trace ordered from a cloud", () => {
+  it("names the cloud's thickness against its spacing instead of advising --format cloud", () => {
+    // A fit 3.5x the polyline's length (limit 3, the guard's own rule; common practice) of points
+    // ordered from a cloud 3 units thick at a spacing of 1.1.
+    const state = { length: 350, u: Float64Array.from({ length: 50 }, (_, i) => 7 * i), resid: new Float64Array(50), sigma: 1, closed: false, knotInterval: 10 };
+    const say = (d: number) => `${d} nm`;
+    expect(() => checkPass(state, 100, "tube.csv", (i) => `row ${i + 1}`, say, { across: 3, spacing: 1.1 })).toThrow(
+      "tube.csv: points: the fit of the points ordered from the cloud diverged: its length is 3.5x a robust polyline length of the trace (100 nm); the cloud is thicker across the wire (median distance of the points from the orderer's path 3 nm) than its point spacing along it (median nearest-neighbour spacing 1.1 nm), so the ordered points zigzag across it: a tube or volume of points, not points along a centre line; reduce it to a centre-line trace, or give the tube surface as a mesh");
   });
 });

@@ -273,3 +273,40 @@ describe("orderCloud on a branched cloud", () => {
     }
   });
 });
+
+describe("orderCloud: strands side by side", () => {
+  it("refuses two parallel strands 2 nm apart read as one cloud, naming their distance and where", () => {
+    // Invented: two straight strands along x (0-200 nm, 800 points each) at y = 0 and y = 2 nm, noise sd
+    // 0.4 nm per coordinate. Truth: two equal groups a apart have lateral variance a^2/4 above the noise's
+    // (textbook moments), so the distance reported is about 2 nm.
+    const g = normalStream(21), rnd = mulberry32(22);
+    const xyz = new Float64Array(3 * 1600);
+    for (let i = 0; i < 1600; i++) {
+      const p = [200 * rnd(), i % 2 === 0 ? 0 : 2, 0];
+      for (let c = 0; c < 3; c++) xyz[3 * i + c] = (p[c] + 0.4 * g()) * NM;
+    }
+    let message = "";
+    try {
+      orderCloud(shuffle(xyz, 23).xyz, "two.xyz", { unit: "nm" });
+    } catch (e) {
+      message = (e as Error).message;
+    }
+    expect(message).toMatch(/^two\.xyz: points: the cloud looks like two or more strands side by side, about (\S+) nm apart, from \([-\d., ]+\) nm to \([-\d., ]+\) nm \(across the path its points spread in one direction and split into two groups, in \d+ of 26 stretches of 60 points\): ordered as one wire they zigzag between the strands; give one wire per file, or a centre-line trace$/);
+    const apart = Number(/about (\S+) nm apart/.exec(message)?.[1]);
+    expect(apart).toBeGreaterThan(1.6);
+    expect(apart).toBeLessThan(2.4);
+  });
+
+  it("keeps one wire with noise twice as large along z as across (a flat but single cross-section)", () => {
+    // Invented: one straight wire, noise sd 0.4 nm in y and 0.8 nm in z: flat offsets, but one group
+    // (kurtosis of a normal distribution 3, textbook).
+    const g = normalStream(31), rnd = mulberry32(32);
+    const xyz = new Float64Array(3 * 1600);
+    for (let i = 0; i < 1600; i++) {
+      xyz[3 * i] = 200 * rnd() * NM;
+      xyz[3 * i + 1] = 0.4 * g() * NM;
+      xyz[3 * i + 2] = 0.8 * g() * NM;
+    }
+    expect(orderCloud(xyz, "one.xyz", { unit: "nm" }).order.length).toBe(1600);
+  });
+});
