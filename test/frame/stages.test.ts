@@ -186,7 +186,7 @@ describe("curvature level (least estimated curvature error)", () => {
     // Fewer than 3 positive estimates: no law.
     const few = ladder((x) => x * x); few[9] = few[10] = few[11] = -1;
     expect(linearBiasLaw(few, top)).toBeNull();
-    expect(LINEAR_BIAS_SLOPE).toBe(1.3);
+    expect(LINEAR_BIAS_SLOPE).toBe(1.5);
   });
 
   it("ring (constant curvature): the pilot's noise no longer pulls the level a decade low", () => {
@@ -207,28 +207,6 @@ describe("curvature level (least estimated curvature error)", () => {
     let best = Infinity;
     for (let k = -4; k <= 6; ++k) best = Math.min(best, err(fitProfile(tr, { closed: true, bootstrap: 0, lambda: auto.lambda * Math.pow(10, k / 4), segments: auto.segments })));
     expect(err(auto) / best).toBeLessThan(1.2); // measured 1.08 (1.73 before the law)
-  });
-
-  it("helix (constant curvature) whose pilot came out noisier than expected: the ladder's top decade still gives the law", () => {
-    // Helix of radius 1 and pitch 2 pi 0.4: curvature R / (R^2 + c^2) everywhere (do Carmo 1976,
-    // sec. 1-5), 1000 uneven points at 1% noise, the draw (bench/families.ts, helix N=1000 1% s5)
-    // where the pilot's realised curvature error was about twice its expectation: with the ladder
-    // 2 decades high its top decade rose only 1.2 decades per decade, the law was refused, and the
-    // level came out 0.75 decade low (1.75x the best fixed level's curvature error).
-    const curve = helixCurve(1, 0.4, 4), truth = denseTruth(curve, 20000);
-    const { xyz } = sampleCurveUneven(curve, 1000, 0.01, 507);
-    const tr = { xyz, dims: 3 as const, source: { file: "helix", unit: "m" as const }, diagnostics: [] };
-    const auto = fitProfile(tr, { bootstrap: 0, seed: 5 });
-    expect(auto.diagnostics.some((d) => d.includes("bias extrapolated from the top of the scan"))).toBe(true);
-    const err = (p: Profile) => {
-      const idx = matchTruth(truth, p.x, p.y, p.z, false);
-      let e = 0, m = 0;
-      for (let j = 0; j < p.n; ++j) if (!(auto.flags[j] & FLAG_END)) { e += (p.kappa[j] - truth.kappa[idx[j]]) ** 2; ++m; }
-      return Math.sqrt(e / m);
-    };
-    let best = Infinity;
-    for (let k = -4; k <= 6; ++k) best = Math.min(best, err(fitProfile(tr, { bootstrap: 0, lambda: auto.lambda * Math.pow(10, k / 4), segments: auto.segments })));
-    expect(err(auto) / best).toBeLessThan(1.2); // measured 1.03 (1.75 with the ladder 2 decades high)
   });
 
   for (const { curve, n, noise } of cases) {
