@@ -467,22 +467,38 @@ function refuseRun(xyz: Readonly<Float64Array>, g: readonly number[], file: stri
 
 /** Largest and second eigenvalue of the covariance of the points `g`. */
 function principalSpreads(xyz: Readonly<Float64Array>, g: readonly number[]): [number, number] {
-  let mx = 0, my = 0, mz = 0;
-  for (const i of g) {
-    mx += xyz[3 * i];
-    my += xyz[3 * i + 1];
-    mz += xyz[3 * i + 2];
-  }
-  mx /= g.length;
-  my /= g.length;
-  mz /= g.length;
   const c = new Float64Array(9);
-  for (const i of g) {
-    const v = [xyz[3 * i] - mx, xyz[3 * i + 1] - my, xyz[3 * i + 2] - mz];
-    for (let r = 0; r < 3; r++) for (let q = 0; q < 3; q++) c[3 * r + q] += v[r] * v[q];
-  }
+  pointCovariance(xyz, g, 0, g.length, new Float64Array(3), c);
   const { values } = symEigen3(c);
   return [values[2], values[1]];
+}
+
+/**
+ * Mean (into `mean`) and covariance (into `c`, 3x3 row-major, over the count) of the points
+ * pts[3 idx[k] ..] for k in [from, to).
+ */
+function pointCovariance(pts: Readonly<Float64Array>, idx: ArrayLike<number>, from: number, to: number, mean: Float64Array, c: Float64Array): void {
+  const count = to - from;
+  let mx = 0, my = 0, mz = 0;
+  for (let k = from; k < to; k++) {
+    const i = idx[k];
+    mx += pts[3 * i];
+    my += pts[3 * i + 1];
+    mz += pts[3 * i + 2];
+  }
+  mx /= count;
+  my /= count;
+  mz /= count;
+  let xx = 0, xy = 0, xz = 0, yy = 0, yz = 0, zz = 0;
+  for (let k = from; k < to; k++) {
+    const i = idx[k];
+    const dx = pts[3 * i] - mx, dy = pts[3 * i + 1] - my, dz = pts[3 * i + 2] - mz;
+    xx += dx * dx; xy += dx * dy; xz += dx * dz; yy += dy * dy; yz += dy * dz; zz += dz * dz;
+  }
+  mean[0] = mx; mean[1] = my; mean[2] = mz;
+  c[0] = xx / count; c[1] = xy / count; c[2] = xz / count;
+  c[3] = c[1]; c[4] = yy / count; c[5] = yz / count;
+  c[6] = c[2]; c[7] = c[5]; c[8] = zz / count;
 }
 
 /** Widest gap, in median gaps, that the fit accepts (GAP_LIMIT of the fit guard), with a margin. */
@@ -579,33 +595,19 @@ function strandCheck(
 ): void {
   const m = order.length;
   if (m < 4 * STRAND_WINDOW) return;
-  const c = new Float64Array(9), x = new Float64Array(STRAND_WINDOW);
+  const c = new Float64Array(9), mean = new Float64Array(3);
   const flat: number[] = [], kurt: number[] = [], sep: number[] = [], flagged: number[] = [];
   for (let w0 = 0; w0 + STRAND_WINDOW <= m; w0 += STRAND_WINDOW) {
-    let mx = 0, my = 0, mz = 0;
-    for (let j = w0; j < w0 + STRAND_WINDOW; j++) {
-      const i = order[j];
-      mx += off[3 * i];
-      my += off[3 * i + 1];
-      mz += off[3 * i + 2];
-    }
-    mx /= STRAND_WINDOW;
-    my /= STRAND_WINDOW;
-    mz /= STRAND_WINDOW;
-    c.fill(0);
-    for (let j = w0; j < w0 + STRAND_WINDOW; j++) {
-      const i = order[j];
-      const v = [off[3 * i] - mx, off[3 * i + 1] - my, off[3 * i + 2] - mz];
-      for (let r = 0; r < 3; r++) for (let q = 0; q < 3; q++) c[3 * r + q] += v[r] * v[q] / STRAND_WINDOW;
-    }
+    pointCovariance(off, order, w0, w0 + STRAND_WINDOW, mean, c);
+    const [mx, my, mz] = mean;
     const { values, vectors } = symEigen3(c);
     if (!(values[2] > 0)) continue;
     let m2 = 0, m4 = 0;
     for (let j = 0; j < STRAND_WINDOW; j++) {
       const i = order[w0 + j];
-      x[j] = (off[3 * i] - mx) * vectors[6] + (off[3 * i + 1] - my) * vectors[7] + (off[3 * i + 2] - mz) * vectors[8];
-      m2 += x[j] * x[j];
-      m4 += x[j] ** 4;
+      const x = (off[3 * i] - mx) * vectors[6] + (off[3 * i + 1] - my) * vectors[7] + (off[3 * i + 2] - mz) * vectors[8];
+      m2 += x * x;
+      m4 += x ** 4;
     }
     const k = (m4 / STRAND_WINDOW) / (m2 / STRAND_WINDOW) ** 2, f = values[1] / values[2];
     flat.push(f);
