@@ -114,18 +114,17 @@ function endKink(y: Float64Array, u: Float64Array, dir: 1 | -1): Kink | null {
   if (n < 12 * m) return null;
   const q = new Float64Array(7);
   const at = (d: number) => (dir > 0 ? d : n - 1 - d);
-  let best = -1, bestA = 0;
+  let best = -1, bestA = 0, bestSe = 0;
   for (let d = KINK_END_MIN; d <= 3 * m; ++d) {
     const a = endAngle(y, u, at(d), d, w, dir, q);
-    if (a > bestA) { bestA = a; best = d; }
+    if (a > bestA) { bestA = a; best = d; bestSe = q[6]; }
   }
   if (best < 0 || best >= w || !(bestA > KINK_MIN_ANGLE)) return null;
   const i = at(best);
   // Both pieces must progress along the wire (noise well below the spacing).
   if (!(progress(y, u, i, at(0)) >= KINK_END_MIN_PROGRESS && progress(y, u, i, i + dir * w) >= KINK_END_MIN_PROGRESS)) return null;
   // The end piece's own scatter: its direction must stand out of it too.
-  endAngle(y, u, i, best, w, dir, q);
-  if (!(bestA > KINK_NOISE_RATIO * q[6])) return null;
+  if (!(bestA > KINK_NOISE_RATIO * bestSe)) return null;
   // The noise of this angle with an end piece of `best` points: its median over the interior.
   const stride = Math.max(1, Math.ceil((n - 6 * m) / 2048));
   const v: number[] = [];
@@ -225,23 +224,16 @@ function endAngle(y: Float64Array, u: Float64Array, i: number, len: number, w: n
  * when degenerate.
  */
 function sideQuadratic(y: Float64Array, u: Float64Array, i: number, m: number, dir: 1 | -1, q: Float64Array): boolean {
-  let s1 = 0, s2 = 0, s3 = 0, s4 = 0;
-  const r0 = [0, 0, 0], r1 = [0, 0, 0], r2 = [0, 0, 0];
-  for (let k = 1; k <= m; ++k) {
-    const j = i + dir * k, t = u[j] - u[i], t2 = t * t;
-    s1 += t; s2 += t2; s3 += t2 * t; s4 += t2 * t2;
-    for (let c = 0; c < 3; ++c) {
-      const v = y[3 * j + c] - y[3 * i + c];
-      r0[c] += v; r1[c] += v * t; r2[c] += v * t2;
-    }
-  }
-  const s0 = m + 1;
+  const z = SUMS;
+  if (!quadraticSums(y, u, false, 0, i, m, dir, z)) return false;
+  const s1 = z[0], s2 = z[1], s3 = z[2], s4 = z[3], s0 = m + 1;
   const det = s0 * (s2 * s4 - s3 * s3) - s1 * (s1 * s4 - s3 * s2) + s2 * (s1 * s3 - s2 * s2);
   if (!(Math.abs(det) > 0)) return false;
   // Cramer's rule for b and c.
   for (let c = 0; c < 3; ++c) {
-    q[c] = (s0 * (r1[c] * s4 - s3 * r2[c]) - r0[c] * (s1 * s4 - s3 * s2) + s2 * (s1 * r2[c] - r1[c] * s2)) / det;
-    q[3 + c] = (s0 * (s2 * r2[c] - r1[c] * s3) - s1 * (s1 * r2[c] - r1[c] * s2) + r0[c] * (s1 * s3 - s2 * s2)) / det;
+    const r0 = z[4 + c], r1 = z[7 + c], r2 = z[10 + c];
+    q[c] = (s0 * (r1 * s4 - s3 * r2) - r0 * (s1 * s4 - s3 * s2) + s2 * (s1 * r2 - r1 * s2)) / det;
+    q[3 + c] = (s0 * (s2 * r2 - r1 * s3) - s1 * (s1 * r2 - r1 * s2) + r0 * (s1 * s3 - s2 * s2)) / det;
   }
   return true;
 }
@@ -327,9 +319,40 @@ function sideAngle(y: Float64Array, u: Float64Array, closed: boolean, span: numb
 /**
  * Unit tangent at point i of the least-squares quadratic through points i, i + dir, ..., i + dir m
  * against the parameter (t = u_j - u_i, unwrapped on a closed trace); false when degenerate.
- * Sums relative to point i (its own term is 0 but for s0 = m + 1).
+ * Sums by `quadraticSums`.
  */
 function sideTangent(y: Float64Array, u: Float64Array, closed: boolean, span: number, i: number, m: number, dir: 1 | -1, out: Float64Array): boolean {
+  const q = SUMS;
+  if (!quadraticSums(y, u, closed, span, i, m, dir, q)) return false;
+  const s1 = q[0], s2 = q[1], s3 = q[2], s4 = q[3];
+  const r0x = q[4], r0y = q[5], r0z = q[6], r1x = q[7], r1y = q[8], r1z = q[9], r2x = q[10], r2y = q[11], r2z = q[12];
+  const s0 = m + 1;
+  // Normal equations [s0 s1 s2; s1 s2 s3; s2 s3 s4] [a b c]^T = [r0 r1 r2]^T; the tangent is b
+  // (Cramer's rule for the middle unknown).
+  const det = s0 * (s2 * s4 - s3 * s3) - s1 * (s1 * s4 - s3 * s2) + s2 * (s1 * s3 - s2 * s2);
+  if (!(Math.abs(det) > 0)) return false;
+  const p = s1 * s4 - s3 * s2;
+  const bx = s0 * (r1x * s4 - s3 * r2x) - r0x * p + s2 * (s1 * r2x - r1x * s2);
+  const by = s0 * (r1y * s4 - s3 * r2y) - r0y * p + s2 * (s1 * r2y - r1y * s2);
+  const bz = s0 * (r1z * s4 - s3 * r2z) - r0z * p + s2 * (s1 * r2z - r1z * s2);
+  const len = hypot3(bx, by, bz);
+  if (!(len > 0)) return false;
+  // The sign of det divides out of the direction: keep the tangent pointing along u.
+  const sgn = det > 0 ? 1 : -1;
+  out[0] = (sgn * bx) / len; out[1] = (sgn * by) / len; out[2] = (sgn * bz) / len;
+  return true;
+}
+
+/** Scratch of `quadraticSums` for the scans (one fit at a time). */
+const SUMS = new Float64Array(13);
+
+/**
+ * Sums of the least-squares quadratic through point i and the m points i + dir, ..., i + dir m
+ * against the parameter (t = u_j - u_i, unwrapped on a closed trace), relative to point i (its own
+ * term is 0 but for s0 = m + 1): into q, s1..s4 (0-3), then sum v, v t, v t^2 per coordinate (4-6,
+ * 7-9, 10-12) with v = y_j - y_i. False where the points run past an open end.
+ */
+function quadraticSums(y: Float64Array, u: Float64Array, closed: boolean, span: number, i: number, m: number, dir: 1 | -1, q: Float64Array): boolean {
   const n = u.length;
   let s1 = 0, s2 = 0, s3 = 0, s4 = 0;
   let r0x = 0, r0y = 0, r0z = 0, r1x = 0, r1y = 0, r1z = 0, r2x = 0, r2y = 0, r2z = 0;
@@ -348,20 +371,8 @@ function sideTangent(y: Float64Array, u: Float64Array, closed: boolean, span: nu
     r1x += vx * t; r1y += vy * t; r1z += vz * t;
     r2x += vx * t2; r2y += vy * t2; r2z += vz * t2;
   }
-  const s0 = m + 1;
-  // Normal equations [s0 s1 s2; s1 s2 s3; s2 s3 s4] [a b c]^T = [r0 r1 r2]^T; the tangent is b
-  // (Cramer's rule for the middle unknown).
-  const det = s0 * (s2 * s4 - s3 * s3) - s1 * (s1 * s4 - s3 * s2) + s2 * (s1 * s3 - s2 * s2);
-  if (!(Math.abs(det) > 0)) return false;
-  const p = s1 * s4 - s3 * s2;
-  const bx = s0 * (r1x * s4 - s3 * r2x) - r0x * p + s2 * (s1 * r2x - r1x * s2);
-  const by = s0 * (r1y * s4 - s3 * r2y) - r0y * p + s2 * (s1 * r2y - r1y * s2);
-  const bz = s0 * (r1z * s4 - s3 * r2z) - r0z * p + s2 * (s1 * r2z - r1z * s2);
-  const len = hypot3(bx, by, bz);
-  if (!(len > 0)) return false;
-  // The sign of det divides out of the direction: keep the tangent pointing along u.
-  const sgn = det > 0 ? 1 : -1;
-  out[0] = (sgn * bx) / len; out[1] = (sgn * by) / len; out[2] = (sgn * bz) / len;
+  q[0] = s1; q[1] = s2; q[2] = s3; q[3] = s4;
+  q[4] = r0x; q[5] = r0y; q[6] = r0z; q[7] = r1x; q[8] = r1y; q[9] = r1z; q[10] = r2x; q[11] = r2y; q[12] = r2z;
   return true;
 }
 
