@@ -128,6 +128,14 @@ export interface Profile {
   /** Optional bootstrap samples, replicate-major: kappaSamples[r * n + i]. Kept when asked for. */
   readonly kappaSamples?: Float64Array;
   readonly tauSamples?: Float64Array;
+  /**
+   * Kept with the samples: the bands' estimate of the smoothing bias at each sample (1/m, signed):
+   * the fit smoothed less (a quarter of the level) minus the estimate, extrapolated as the bands
+   * extrapolate it (src/frame/bands.ts). kappa + kappaBias is the bias-corrected curvature the bands
+   * reach to; the physics stage widens derived intervals (pinning depths) by it. NaN where tau is.
+   */
+  readonly kappaBias?: Float64Array;
+  readonly tauBias?: Float64Array;
 }
 
 /** A kink of a profile. */

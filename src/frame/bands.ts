@@ -132,6 +132,7 @@ export function fitBands(
   if (trace.planarProjection) diagnostics.push("planar projection: curvature is the projected curvature; torsion is not measurable");
 
   const kept = set.keepSamples && R > 0 ? keptReplicates(boot, Rb, R, gridPos, kappa, tau, L0) : undefined;
+  const biasKept = kept ? biasEstimates(shK, shT, gridPos, g, kappa, tau, L0) : undefined;
   const rowOf = (i: number) => (trace.rows ? trace.rows[i] : i + 1);
   const inputRow = inputRows(samples.traceIndex, trace.rows);
   const downweighted = downweightedPoints(fit.w, start.kept);
@@ -157,6 +158,7 @@ export function fitBands(
     planarProjection: trace.planarProjection ?? false,
     diagnostics,
     ...(kept ? { kappaSamples: kept.kappa, tauSamples: kept.tau } : {}),
+    ...(biasKept ? { kappaBias: biasKept.kappa, tauBias: biasKept.tau } : {}),
   };
   checkProfile(profile, trace.source.file);
   return profile;
@@ -573,6 +575,26 @@ function keptLoop(
       tauSamples[r * m + j] = Number.isNaN(tau[j]) ? NaN : tau[j] + dt / L0;
     }
   }
+}
+
+/**
+ * The bands' estimate of the smoothing bias at each sample (1/m, signed; see Profile.kappaBias):
+ * the less-smoothed band fit's shift extrapolated as the bands extrapolate it, (1 + KAPPA_EXTRAPOLATION)
+ * shK for kappa (floored so that kappa + bias >= 0) and (1 + 1/3) shT for tau (bandOffsets' default);
+ * NaN where tau is.
+ */
+function biasEstimates(
+  shK: Float64Array, shT: Float64Array, gridPos: GridPosition, g: number, kappa: Float64Array, tau: Float64Array, L0: number,
+): { kappa: Float64Array; tau: Float64Array } {
+  const m = kappa.length;
+  const out = { kappa: new Float64Array(m), tau: new Float64Array(m) };
+  for (let j = 0; j < m; ++j) {
+    const bk = ((1 + KAPPA_EXTRAPOLATION) * atSample(shK, gridPos, j, g)) / L0;
+    out.kappa[j] = Number.isFinite(bk) ? Math.max(-kappa[j], bk) : 0;
+    const bt = ((4 / 3) * atSample(shT, gridPos, j, g)) / L0;
+    out.tau[j] = Number.isNaN(tau[j]) ? NaN : Number.isFinite(bt) ? bt : 0;
+  }
+  return out;
 }
 
 /**

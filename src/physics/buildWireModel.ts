@@ -250,12 +250,16 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
       kappa: Float64Array.from(profile.kappaSamples!, (x) => x * l),
       tau: profile.tauSamples !== undefined ? Float64Array.from(profile.tauSamples, (x) => x * l) : null,
     } : null;
+    const bias = reps > 0 && profile.kappaBias !== undefined ? {
+      kappa: Float64Array.from(profile.kappaBias, (b, i) => (profile.kappa[i] + b) * l),
+      tau: profile.tauBias !== undefined ? Float64Array.from(profile.tauBias, (b, i) => (profile.tau[i] + b) * l) : null,
+    } : null;
     if (replicates === null) warnings.push("no bootstrap replicates kept with the profile: pinning depths have no 95% interval");
     const ms = material.saturationMagnetisation;
     const depinning = system.order === "ferro" && ms !== null && material.anisotropy !== null ? { anisotropy: material.anisotropy, saturationMagnetisation: ms } : null;
     const reference = flatReference(chain, sRed, inter.kappaReduced, system.order, options.pinning || {});
     const summarise = () => pinningSummary({
-      scan, h: chain.h, q: system.q, replicates, kappaReduced: inter.kappaReduced, tauReduced: tauRelax, sReduced: sRed, validity,
+      scan, h: chain.h, q: system.q, replicates, bias, kappaReduced: inter.kappaReduced, tauReduced: tauRelax, sReduced: sRed, validity,
       l, energyUnit, kT, depinning, reference,
     });
     let summary = summarise();

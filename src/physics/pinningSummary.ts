@@ -12,6 +12,12 @@ export interface PinningSummaryInput {
   readonly q: Float64Array;
   /** Bootstrap replicates of kappa l, tau l, replicate-major (r * n + i); NaN entries take the central value. */
   readonly replicates: { readonly count: number; readonly kappa: Float64Array; readonly tau: Float64Array | null } | null;
+  /**
+   * The profile's bias-corrected geometry (kappa l + kappaBias l, tau l + tauBias l per sample;
+   * Profile.kappaBias): the depth on it moves the interval's side toward it (the smoothing bias the
+   * replicates, recentred on their median, do not carry). Absent or null: noise only.
+   */
+  readonly bias?: { readonly kappa: Float64Array; readonly tau: Float64Array | null } | null;
   readonly kappaReduced: ArrayLike<number>;
   readonly tauReduced: ArrayLike<number>;
   /** Sample positions s / l and the per-sample validity mask. */
@@ -143,6 +149,26 @@ export function pinningSummary(input: PinningSummaryInput): { sites: PinningSite
     memo.set(k, e);
     return e;
   };
+  // the change of the window energies on the bias-corrected geometry (memoised per grid index)
+  const biasMemo = new Map<number, number>();
+  const biasAt = (k: number): number | null => {
+    const b = input.bias;
+    if (b === undefined || b === null || scan.walls === null || k < 0) return null;
+    const wall = scan.walls[k];
+    if (wall === null) return null;
+    const seen = biasMemo.get(k);
+    if (seen !== undefined) return seen;
+    const tauOf = (i: number) => (Number.isFinite(input.tauReduced[i]) ? input.tauReduced[i] : 0);
+    for (const i of wall.nodes) {
+      repK[i] = Number.isFinite(b.kappa[i]) ? b.kappa[i] : input.kappaReduced[i];
+      const tv = b.tau?.[i];
+      repT[i] = tv !== undefined && Number.isFinite(tv) ? tv : tauOf(i);
+    }
+    const central = wallEnergyWith(wall, input.h, input.q, input.kappaReduced, Float64Array.from(input.tauReduced, (t) => (Number.isFinite(t) ? t : 0)));
+    const e = wallEnergyWith(wall, input.h, input.q, repK, repT) - central;
+    biasMemo.set(k, e);
+    return e;
+  };
   const describe = (w: LandscapeWell, kind: "site" | "barrier"): PinningSite => {
     const sign = kind === "site" ? 1 : -1;
     const u = kind === "site" ? scan.energy : neg;
@@ -160,6 +186,16 @@ export function pinningSummary(input: PinningSummaryInput): { sites: PinningSite
       d.sort();
       lo = quantile(d, 0.025);
       hi = quantile(d, 0.975);
+      // the smoothing bias: the interval reaches to the depth on the bias-corrected geometry
+      const bk = biasAt(w.k), bL = biasAt(w.kLeft), bR = biasAt(w.kRight);
+      if (bk !== null && (bL !== null || bR !== null)) {
+        const left = bL !== null ? u[w.kLeft] + sign * bL : Infinity, right = bR !== null ? u[w.kRight] + sign * bR : Infinity;
+        const shift = Math.min(left, right) - (u[w.k] + sign * bk) - gridDepth;
+        if (Number.isFinite(shift)) {
+          lo += Math.min(0, shift);
+          hi += Math.max(0, shift);
+        }
+      }
     }
     // the interval carries the discretisation error too (widened by it on both sides)
     const err = numericalError(w);

@@ -195,6 +195,36 @@ describe("fitProfile: bands, degenerate input, robustness", () => {
     expect(inT / tot).toBeGreaterThan(0.6); // measured: see bench; torsion bands under-cover where bias dominates
   }, 120_000);
 
+  it("kept with the replicates: a bias estimate whose corrected kappa, tau lie in the bands, upward at a bump's peak", () => {
+    // Viviani's curve (closed, torsion of both signs), 1% noise.
+    const { xyz } = sampleCurve(vivianiCurve(1), 400, 0.01, 3);
+    const p = fitProfile(trace(xyz), { bootstrap: 60, keepSamples: true });
+    const q = fitProfile(trace(xyz), { bootstrap: 60 });
+    expect(q.kappaBias).toBeUndefined();
+    expect(p.kappaBias!.length).toBe(p.n);
+    for (let j = 0; j < p.n; ++j) {
+      const k = p.kappa[j] + p.kappaBias![j];
+      expect(k).toBeGreaterThanOrEqual(Math.max(0, p.kappaLo[j] * (1 - 1e-9)));
+      expect(k).toBeLessThanOrEqual(p.kappaHi[j] * (1 + 1e-9));
+      const t = p.tau[j] + p.tauBias![j];
+      if (Number.isNaN(p.tau[j])) expect(p.tauBias![j]).toBeNaN();
+      else if (Number.isFinite(p.tauLo[j])) {
+        expect(t).toBeGreaterThanOrEqual(p.tauLo[j] - 1e-9 * Math.abs(p.tauLo[j]));
+        expect(t).toBeLessThanOrEqual(p.tauHi[j] + 1e-9 * Math.abs(p.tauHi[j]));
+      }
+    }
+    // the same estimate unchanged by keeping the samples
+    expect(Array.from(p.kappa)).toEqual(Array.from(q.kappa));
+    // A Gaussian bump (peak curvature 2 h / w^2, textbook), 0.01 noise: smoothing flattens a maximum
+    // (common practice), so the bias estimate points up at the peak.
+    const b = sampleCurve(bumpCurve(20, 2, 1.5), 400, 0.01, 4);
+    const pb = fitProfile(trace(b.xyz), { bootstrap: 60, keepSamples: true });
+    let jp = 0;
+    for (let j = 0; j < pb.n; ++j) if (pb.kappa[j] > pb.kappa[jp]) jp = j;
+    expect(pb.kappa[jp]).toBeLessThan((2 * 2) / (1.5 * 1.5));
+    expect(pb.kappaBias![jp]).toBeGreaterThan(0);
+  });
+
   it("reports a straight line with kappa ~ 0 and torsion undefined (NaN, flagged)", () => {
     const n = 200, xyz = new Float64Array(3 * n), g = normalStream(5);
     for (let i = 0; i < n; ++i) { xyz[3 * i] = i * 1e-9; xyz[3 * i + 1] = 0.01e-9 * g(); xyz[3 * i + 2] = 0.01e-9 * g(); }
