@@ -254,13 +254,20 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
       kappa: Float64Array.from(profile.kappaBias, (b, i) => (profile.kappa[i] + b) * l),
       tau: profile.tauBias !== undefined ? Float64Array.from(profile.tauBias, (b, i) => (profile.tau[i] + b) * l) : null,
     } : null;
+    const periodic = new Uint8Array(profile.n);
+    // stretches labelled periodic that are long enough to hold the texture's winding (half a period;
+    // a 22 nm bend labelled periodic with a 90 nm period, on a wire whose texture is homogeneous, is not)
+    models.forEach((m, k) => {
+      const g = segments[k];
+      if (m.state === "periodic" && m.period !== null && g.s1 - g.s0 >= 0.5 * m.period) periodic.fill(1, g.i0, g.i1);
+    });
     if (replicates === null) warnings.push("no bootstrap replicates kept with the profile: pinning depths have no 95% interval");
     const ms = material.saturationMagnetisation;
     const depinning = system.order === "ferro" && ms !== null && material.anisotropy !== null ? { anisotropy: material.anisotropy, saturationMagnetisation: ms } : null;
     const reference = flatReference(chain, sRed, inter.kappaReduced, system.order, options.pinning || {});
     const summarise = () => pinningSummary({
       scan, h: chain.h, q: system.q, replicates, bias, kappaReduced: inter.kappaReduced, tauReduced: tauRelax, sReduced: sRed, validity,
-      l, energyUnit, kT, depinning, reference,
+      l, energyUnit, kT, depinning, reference, periodic,
     });
     let summary = summarise();
     if (depinning !== null && summary.sites.length > 0) {
@@ -286,7 +293,10 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
     pinning = summary.sites;
     pinningMinor = summary.minor;
     barriers = summary.barriers;
-    if (pinningMinor.length > 0) warnings.push(`${pinningMinor.length} thermally irrelevant pinning ${pinningMinor.length === 1 ? "site" : "sites"} (95% interval includes 0 or depth below 1 k_B T) listed apart`);
+    const indicativeOnly = pinningMinor.filter((x) => x.note !== null && x.note.startsWith("indicative only")).length;
+    const irrelevant = pinningMinor.length - indicativeOnly;
+    if (irrelevant > 0) warnings.push(`${irrelevant} thermally irrelevant pinning ${irrelevant === 1 ? "site" : "sites"} (95% interval includes 0 or depth below 1 k_B T) listed apart`);
+    if (indicativeOnly > 0) warnings.push(`${indicativeOnly} pinning ${indicativeOnly === 1 ? "site" : "sites"} listed apart as indicative only: ${indicativeOnly === 1 ? "its" : "their"} relaxation windows reach into a stretch with a periodic ground state, where the depth depends on the relaxed periodic texture (measured on an invented stepped coil: 0.4 to 93 k_B T for the same geometry with its stretch ends moved by a few nm)`);
     if (system.order === "ferro" && ms === null) warnings.push("no saturation magnetisation Ms in the material: no depinning fields");
     else if (system.order === "ferro") warnings.push("depinning fields from the largest slope of the sampled landscape (0.25 l apart within 3 l of the five deepest sites, 1 l elsewhere): quasi-static rigid-wall fields at zero temperature, no thermal activation");
     landscape = {

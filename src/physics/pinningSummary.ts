@@ -33,6 +33,12 @@ export interface PinningSummaryInput {
    *  (FM: straight; AFM: the constant curvature of the first index), whose landscape would be flat
    *  in the continuum: its variation is the discretisation artefact. Absent: not estimated. */
   readonly reference?: (nodes: readonly number[]) => Float64Array;
+  /**
+   * 1 at the samples of stretches labelled periodic (at least half a period long). A site or barrier whose relaxation windows reach
+   * into one is listed apart as indicative only: its depth depends on the relaxed periodic texture
+   * (its phase and where the stretch ends), which the interval does not carry. Absent: none.
+   */
+  readonly periodic?: Uint8Array;
 }
 
 /** Largest bond length (reduced) at which a wall of width l counts as resolved by the chain: the
@@ -123,6 +129,17 @@ export function pinningSummary(input: PinningSummaryInput): { sites: PinningSite
     }
     return hMax;
   };
+  /** Whether the relaxation windows behind a depth hold a sample of a periodic stretch. */
+  const reachesPeriodic = (w: LandscapeWell): boolean => {
+    const mask = input.periodic;
+    if (mask === undefined || scan.walls === null) return false;
+    for (const k of [w.k, w.kLeft, w.kRight]) {
+      const wall = k >= 0 ? scan.walls[k] : null;
+      if (wall === null) continue;
+      for (const i of wall.nodes) if (mask[i] === 1) return true;
+    }
+    return false;
+  };
   // replicate energies at the grid points the depths use (memoised per grid index)
   const R = input.replicates?.count ?? 0;
   const repK = new Float64Array(n), repT = new Float64Array(n);
@@ -207,6 +224,7 @@ export function pinningSummary(input: PinningSummaryInput): { sites: PinningSite
     else if (!(w.depth > 2 * err)) reasons.push(`depth within twice its discretisation error (${err.toPrecision(2)} reduced, the same landscape on the chain without the geometry)`);
     if (lo !== null && lo <= 0) reasons.push("the 95% interval of the depth includes 0");
     if (depthKT !== null && depthKT < 1) reasons.push(`depth ${depthKT.toPrecision(2)} k_B T, below 1 k_B T`);
+    const indicative = reachesPeriodic(w) ? `indicative only: its relaxation windows reach into a stretch with a periodic ground state, where the depth depends on the relaxed periodic texture (its phase and the stretch ends), which the interval does not carry` : null;
     // validity flags within l/2 of the place
     let i0 = 0;
     while (i0 < n && input.sReduced[i0] < w.q - 0.5) i0++;
@@ -222,8 +240,8 @@ export function pinningSummary(input: PinningSummaryInput): { sites: PinningSite
       depthReducedHi: hi,
       depthKTLo: toKT(lo),
       depthKTHi: toKT(hi),
-      relevant: reasons.length === 0,
-      note: reasons.length > 0 ? `thermally irrelevant: ${reasons.join("; ")}` : null,
+      relevant: reasons.length === 0 && indicative === null,
+      note: reasons.length > 0 || indicative !== null ? [...(reasons.length > 0 ? [`thermally irrelevant: ${reasons.join("; ")}`] : []), ...(indicative !== null ? [indicative] : [])].join("; ") : null,
       flags: validityLines(input.validity, Math.max(0, i0 - 1), Math.max(i1, i0 + 1)),
       depinning: kind === "site" && input.depinning !== null ? depinningField(scan.q, scan.energy, w, input.depinning.anisotropy, input.depinning.saturationMagnetisation) : null,
     };

@@ -245,6 +245,30 @@ describe("mirror-image AFM wires with a curvature dip (PHYSICS.md section 5, cor
   });
 });
 
+describe("pinning next to a periodic stretch is indicative only", () => {
+  it("AFM (1, 1) with a curvature dip: labelled periodic, every site and barrier listed apart with the note; (1, 0.5): none", () => {
+    // Labels: (1, 1) periodic, (1, 0.5) homogeneous and stable (PHYSICS.md section 4, the table the
+    // helix tests above check). Measured on the invented stepped demo coil: the same geometry with its
+    // stretch ends moved by a few nm gave depths from 0.4 to 93 k_B T on the relaxed periodic texture.
+    const c = 20.3 * l;
+    const wire = (t: number) => makeProfile({
+      n: 401, length: 40 * l, replicates: 20, seed: 4,
+      kappa: (s) => (1 - 0.1 * Math.exp(-(((s - c) / (2 * l)) ** 2))) / l, tau: () => t / l, band: 0.005 / l,
+    });
+    const p = wire(1), h = wire(0.5);
+    const mp = buildWireModel(p, segment(p), afm), mh = buildWireModel(h, segment(h), afm);
+    expect(mp.segments.some((g) => g.state === "periodic")).toBe(true);
+    expect(mh.segments.every((g) => g.state === "homogeneous")).toBe(true);
+    const listed = (m: typeof mp) => [...m.pinning, ...m.pinningMinor, ...m.barriers];
+    expect(listed(mp).length).toBeGreaterThan(0);
+    expect(mp.pinning).toEqual([]);
+    for (const x of listed(mp)) expect(x.note).toMatch(/indicative only: its relaxation windows reach into a stretch with a periodic ground state/);
+    expect(mp.warnings.some((w) => /listed apart as indicative only/.test(w))).toBe(true);
+    expect(listed(mh).length).toBeGreaterThan(0);
+    for (const x of listed(mh)) expect(x.note ?? "").not.toMatch(/indicative only/);
+  }, 60_000);
+});
+
 describe("no pinning landscape where a wall cannot be resolved", () => {
   // Truth: a straight wire has no curvature pinning (PHYSICS.md section 5). A chain coarser than
   // l/2 or l below the lattice spacing turned its discretisation into "sites" (0.7 K l S deep at
