@@ -32,7 +32,10 @@ import { symEigen3 } from "../../frame/symEigen3.js";
  *    diagnostics, since the ordering is not to be trusted there.
  *
  * 5. A density change that the fit would take for gaps (see `densityCheck`) is refused, naming
- *    where the sparse stretch starts and ends.
+ *    where the sparse stretch starts and ends; so are strands side by side (`strandCheck` in 3D,
+ *    `planarStrandCheck` in a plane: the ordered points zigzag between them) and a path that runs
+ *    back along itself with no points in its turn or legs under 6 spacings apart (`foldCheck`: two
+ *    strands read up one and down the other, or a hairpin tighter than the points resolve).
  *
  * Units: metres in and out. Cost O(n log n) plus sorting the kNN edges (about k n log n).
  * Degenerate input: fewer than 4 points, or non-finite coordinates, raise InputError.
@@ -198,6 +201,8 @@ function orderDistinct(xyz: Readonly<Float64Array>, file: string, options: Cloud
   }
   // after the branch check: along a branched tree the ordered spacing means nothing
   if (sideBranches.length === 0 && !allZ0(xyz)) strandCheck(xyz, r.offAll, r.order, medD1, file, fmtP, fmtL);
+  if (sideBranches.length === 0 && allZ0(xyz)) planarStrandCheck(xyz, r.order, medD1, file, fmtP, fmtL);
+  if (sideBranches.length === 0) foldCheck(xyz, r.pathXyz, r.closed, r.order, r.s, medD1, file, fmtP, fmtL);
   if (sideBranches.length === 0) densityCheck(xyz, r.order, r.s, r.closed, r.length, file, fmtP, fmtL);
   for (const b of sideBranches.slice(0, 5)) {
     diagnostics.push(`long side branch of ${b.points} points reaching ${fmtL(b.extent)} from the curve near ${fmtP(b.x, b.y, b.z)}: a self-crossing or a branch; the ordering may be wrong there`);
@@ -623,4 +628,324 @@ function strandCheck(
   const at = (j: number) => fmtP(xyz[3 * order[j]], xyz[3 * order[j] + 1], xyz[3 * order[j] + 2]);
   throw new InputError(file, null, "points",
     `the cloud looks like two or more strands side by side, about ${fmtL(apart)} apart, from ${at(flagged[0])} to ${at(flagged[flagged.length - 1] + STRAND_WINDOW - 1)} (across the path its points spread in one direction and split into two groups, in ${flagged.length} of ${flat.length} stretches of ${STRAND_WINDOW} points): ordered as one wire they zigzag between the strands; give one wire per file, or a centre-line trace`);
+}
+
+
+/** Reach of the fold search, in median nearest-neighbour spacings: legs farther apart are not looked for. */
+const FOLD_REACH = 40;
+/** Path vertices either side of a vertex for its tangent in the fold search. */
+const FOLD_TANGENT = 3;
+/** Cosine of the angle between the two legs' tangents under which they run back (antiparallel). */
+const FOLD_ANTIPARALLEL = -0.5;
+/** Least length of a fold's run, in median spacings and in leg distances: shorter brushes are left alone. */
+const FOLD_RUN_SPACINGS = 20;
+const FOLD_RUN_DISTANCES = 4;
+/** Legs closer than this many median spacings turn back tighter than the points resolve. */
+const FOLD_TIGHT = 6;
+/** A step between consecutive ordered points at the turn longer than this fraction of the legs' distance: the turn has no points. */
+const FOLD_JUMP = 0.5;
+
+/**
+ * The ordered path runs back along itself: a stretch of the smoothed path has, for every vertex, a
+ * vertex farther than 2 reaches along the path but within FOLD_REACH median spacings in space whose
+ * tangent points the other way. Two strands side by side that the spanning tree joins near one
+ * end give this (up one strand and back down the other, often closed into a loop by the other
+ * ends); so does a real hairpin. The fold is refused when its legs are closer than FOLD_TIGHT
+ * spacings (a turn of radius under 3 spacings is not resolved by the points) or when the turn is a
+ * single step across (a step of over FOLD_JUMP times the legs' distance between consecutive
+ * ordered points at the fold: no points in the turn), naming where. When that step is the one that
+ * closes a closed curve, the other reading is an open wire whose ends lie close together (the
+ * orderer closes a curve whose end gap is under `closeGap` of its length), declared open it is kept.
+ * Measured on invented clouds: two strands 200 nm long, 4-8 nm apart with 0.15-0.7 nm of noise,
+ * planar or also apart in z, that the orderer read up one and down the other (exit 0 before,
+ * mostly as closed loops of about 400 nm): legs 7.7-26 spacings apart, widest step 0.69-0.97 of
+ * that; open hairpins with legs 4-8 nm apart that had been closed across their ends: 0.89-1.16.
+ * Kept: hairpins and closed stadiums with turns of 2-10 nm radius sampled every 0.5 nm (legs
+ * 7.7-40 spacings, widest step 0.03-0.34 of the legs' distance), and the folds the search finds
+ * across coarse helices, spirals and filled tubes (legs 18 spacings and more, step 0.28 at most).
+ */
+function foldCheck(
+  xyz: Readonly<Float64Array>, path: Float64Array, closed: boolean, order: Uint32Array, s: Float64Array, spacing: number, file: string,
+  fmtP: (x: number, y: number, z: number) => string, fmtL: (v: number) => string,
+): void {
+  const m = path.length / 3;
+  if (m < 8 || !(spacing > 0)) return;
+  const cum = new Float64Array(m + 1);
+  for (let i = 1; i <= m; i++) {
+    const p = 3 * (i - 1), q = 3 * (i % m);
+    cum[i] = cum[i - 1] + (i < m || closed ? Math.hypot(path[q] - path[p], path[q + 1] - path[p + 1], path[q + 2] - path[p + 2]) : 0);
+  }
+  const total = cum[m];
+  const arc = (i: number, j: number) => {
+    const a = Math.abs(cum[i] - cum[j]);
+    return closed ? Math.min(a, total - a) : a;
+  };
+  const at = (i: number) => (closed ? ((i % m) + m) % m : Math.max(0, Math.min(m - 1, i)));
+  const tan = new Float64Array(3 * m);
+  for (let i = 0; i < m; i++) {
+    const a = 3 * at(i - FOLD_TANGENT), b = 3 * at(i + FOLD_TANGENT);
+    const tx = path[b] - path[a], ty = path[b + 1] - path[a + 1], tz = path[b + 2] - path[a + 2];
+    const l = Math.hypot(tx, ty, tz);
+    if (l > 0) {
+      tan[3 * i] = tx / l;
+      tan[3 * i + 1] = ty / l;
+      tan[3 * i + 2] = tz / l;
+    }
+  }
+  // vertices hashed into cubes of one reach
+  const reach = FOLD_REACH * spacing;
+  const cell = (v: number) => Math.floor(v / reach);
+  const hash = (cx: number, cy: number, cz: number) => (cx * 73856093) ^ (cy * 19349663) ^ (cz * 83492791);
+  const cubes = new Map<number, number[]>();
+  for (let i = 0; i < m; i++) {
+    const h = hash(cell(path[3 * i]), cell(path[3 * i + 1]), cell(path[3 * i + 2]));
+    const list = cubes.get(h);
+    if (list) list.push(i);
+    else cubes.set(h, [i]);
+  }
+  const leg = new Float64Array(m).fill(Infinity);
+  for (let i = 0; i < m; i++) {
+    const x = path[3 * i], y = path[3 * i + 1], z = path[3 * i + 2];
+    const cx = cell(x), cy = cell(y), cz = cell(z);
+    for (let dx = -1; dx <= 1; dx++) for (let dy = -1; dy <= 1; dy++) for (let dz = -1; dz <= 1; dz++) {
+      for (const j of cubes.get(hash(cx + dx, cy + dy, cz + dz)) ?? []) {
+        const d = Math.hypot(path[3 * j] - x, path[3 * j + 1] - y, path[3 * j + 2] - z);
+        if (!(d < reach && d < leg[i]) || arc(i, j) < 2 * reach) continue;
+        if (tan[3 * i] * tan[3 * j] + tan[3 * i + 1] * tan[3 * j + 1] + tan[3 * i + 2] * tan[3 * j + 2] > FOLD_ANTIPARALLEL) continue;
+        leg[i] = d;
+      }
+    }
+  }
+  // runs of consecutive vertices with a leg opposite (a closed path starts after a vertex without)
+  let first = 0;
+  if (closed) while (first < m && Number.isFinite(leg[first])) first++;
+  if (first === m) first = 0;
+  const ordered = order.length;
+  const stepAfter = (j: number) => {
+    const a = order[j], b = order[(j + 1) % ordered];
+    return Math.hypot(xyz[3 * b] - xyz[3 * a], xyz[3 * b + 1] - xyz[3 * a + 1], xyz[3 * b + 2] - xyz[3 * a + 2]);
+  };
+  for (let k = 0; k < m; ) {
+    const i0 = (first + k) % m;
+    if (!Number.isFinite(leg[i0])) {
+      k++;
+      continue;
+    }
+    let len = 0;
+    while (len < m - k && Number.isFinite(leg[(first + k + len) % m])) len++;
+    const ids = Array.from({ length: len }, (_, t) => (first + k + t) % m);
+    k += len;
+    const i1 = ids[len - 1];
+    const runLength = closed ? (cum[i1] - cum[i0] + total) % total : cum[i1] - cum[i0];
+    const apart = median(Float64Array.from(ids, (i) => leg[i]));
+    if (runLength < FOLD_RUN_SPACINGS * spacing || runLength < FOLD_RUN_DISTANCES * apart) continue;
+    // the widest step between consecutive ordered points from one reach and a leg distance before the run to as far after it
+    const margin = reach + apart;
+    const from = cum[i0] - margin, to = cum[i0] + runLength + margin;
+    // (the step that closes a closed curve apart: a hairpin's open ends close together are closed across it)
+    let widest = 0, where = -1, closingStep = 0;
+    for (let j = 0; j < (closed ? ordered : ordered - 1); j++) {
+      const sj = s[j];
+      const inside = closed ? [sj - total, sj, sj + total].some((v) => v >= from && v <= to) : sj >= from && sj <= to;
+      if (!inside) continue;
+      const st = stepAfter(j);
+      if (j === ordered - 1) closingStep = st;
+      else if (st > widest) {
+        widest = st;
+        where = j;
+      }
+    }
+    const closing = !(widest > FOLD_JUMP * apart) && closingStep > FOLD_JUMP * apart;
+    if (closing) {
+      widest = closingStep;
+      where = ordered - 1;
+    }
+    const jumped = widest > FOLD_JUMP * apart;
+    if (!(apart < FOLD_TIGHT * spacing) && !jumped) continue;
+    const p = (i: number) => fmtP(path[3 * i], path[3 * i + 1], path[3 * i + 2]);
+    let turn: string, readings = "two strands side by side, or a hairpin bent back tighter than the points resolve";
+    if (jumped) {
+      const a = order[where], b = order[(where + 1) % ordered];
+      turn = `turning back by one step of ${fmtL(widest)} between ${fmtP(xyz[3 * a], xyz[3 * a + 1], xyz[3 * a + 2])} and ${fmtP(xyz[3 * b], xyz[3 * b + 1], xyz[3 * b + 2])} with no points in the turn${closing ? " (the step that closes the curve)" : ""}`;
+      if (closing) readings = "two strands side by side, or one open wire whose ends lie close together and were joined";
+    } else {
+      turn = `turning back within ${(apart / 2 / spacing).toFixed(1)} median spacings`;
+    }
+    throw new InputError(file, null, "points",
+      `the ordered path runs back along itself from ${p(i0)} to ${p(i1)} (${fmtL(runLength)} with the other leg about ${fmtL(apart)} away, ${(apart / spacing).toFixed(1)} median spacings), ${turn}: ${readings}; the order along one wire is ambiguous; give one wire per file or a centre-line trace${closing ? ", or declare the wire open" : ""}`);
+  }
+}
+
+/** Largest ratio of the density at the dip to the lower of the two peaks either side for the offsets across the path to split into two strands. */
+const DIP_RATIO = 0.8;
+/** Least depth of that dip in standard deviations of its counting noise. */
+const DIP_Z = 3;
+/** Width of the Gaussian smoothing the offsets' density, in median spacings. */
+const DIP_BANDWIDTH = 0.7;
+/** Turn (rad) between the first and last thirds of a window over which the window is left out of the dip test. */
+const DIP_TURN = 0.7;
+/** Residual sum of squares of a window's quadratic over its quartic's above which the window bends too much for a quadratic trend. */
+const DIP_SHAPE = 1.3;
+
+/**
+ * Least-squares polynomial of `degree` in t through v (normal equations on t scaled to [-1, 1],
+ * Gaussian elimination with partial pivoting); residuals into `res`, returns their sum of squares.
+ */
+function polyResiduals(t: Float64Array, v: Float64Array, degree: number, res: Float64Array): number {
+  const n = t.length, k = degree + 1;
+  let scale = 0;
+  for (let j = 0; j < n; j++) scale = Math.max(scale, Math.abs(t[j]));
+  if (!(scale > 0)) scale = 1;
+  const a = new Float64Array(k * (k + 1));
+  const pw = new Float64Array(2 * k);
+  for (let j = 0; j < n; j++) {
+    const x = t[j] / scale;
+    pw[0] = 1;
+    for (let e = 1; e < 2 * k; e++) pw[e] = pw[e - 1] * x;
+    for (let r = 0; r < k; r++) {
+      for (let c = 0; c < k; c++) a[r * (k + 1) + c] += pw[r + c];
+      a[r * (k + 1) + k] += pw[r] * v[j];
+    }
+  }
+  for (let col = 0; col < k; col++) {
+    let piv = col;
+    for (let r = col + 1; r < k; r++) if (Math.abs(a[r * (k + 1) + col]) > Math.abs(a[piv * (k + 1) + col])) piv = r;
+    if (piv !== col) for (let c = 0; c <= k; c++) [a[col * (k + 1) + c], a[piv * (k + 1) + c]] = [a[piv * (k + 1) + c], a[col * (k + 1) + c]];
+    const d = a[col * (k + 1) + col];
+    if (d === 0) continue;
+    for (let r = 0; r < k; r++) {
+      if (r === col) continue;
+      const f = a[r * (k + 1) + col] / d;
+      if (f !== 0) for (let c = col; c <= k; c++) a[r * (k + 1) + c] -= f * a[col * (k + 1) + c];
+    }
+  }
+  let rss = 0;
+  for (let j = 0; j < n; j++) {
+    const x = t[j] / scale;
+    let fit = 0, p = 1;
+    for (let e = 0; e < k; e++) {
+      const d = a[e * (k + 1) + e];
+      if (d !== 0) fit += (a[e * (k + 1) + k] / d) * p;
+      p *= x;
+    }
+    res[j] = v[j] - fit;
+    rss += res[j] * res[j];
+  }
+  return rss;
+}
+
+/**
+ * Density of the offsets across the path, smoothed with a Gaussian of DIP_BANDWIDTH median spacings
+ * (so a ribbon of pixels, offsets on a lattice of one spacing, comes out flat: the ripple of a
+ * lattice under that Gaussian is 2 exp(-2 pi^2 0.7^2) = 1e-4 of the mean, Poisson summation,
+ * textbook), binned at a quarter of a spacing: of the dips between two peaks whose density is under
+ * DIP_RATIO of the lower peak, the most significant one (depth over its counting noise, `z`), its
+ * ratio to that peak (1 without one) and the peaks' distance apart.
+ */
+function offsetDip(u: Float64Array, spacing: number): { ratio: number; apart: number; z: number } {
+  const sorted = Float64Array.from(u).sort();
+  const lo = sorted[Math.floor(0.005 * (sorted.length - 1))] - 3 * spacing, hi = sorted[Math.ceil(0.995 * (sorted.length - 1))] + 3 * spacing;
+  const bin = Math.max(spacing / 4, (hi - lo) / 400);
+  const bins = Math.ceil((hi - lo) / bin) + 1;
+  const count = new Float64Array(bins);
+  for (const v of u) if (v >= lo && v <= hi) count[Math.round((v - lo) / bin)]++;
+  const reach = Math.ceil((3 * spacing) / bin);
+  const kernel = Float64Array.from({ length: 2 * reach + 1 }, (_, t) => Math.exp(-0.5 * (((t - reach) * bin) / spacing) ** 2));
+  const f = new Float64Array(bins);
+  for (let b = 0; b < bins; b++) {
+    if (count[b] === 0) continue;
+    for (let t = -reach; t <= reach; t++) if (b + t >= 0 && b + t < bins) f[b + t] += count[b] * kernel[t + reach];
+  }
+  const left = new Float64Array(bins), leftAt = new Int32Array(bins), right = new Float64Array(bins), rightAt = new Int32Array(bins);
+  for (let b = 0; b < bins; b++) {
+    const better = b > 0 && left[b - 1] >= f[b];
+    left[b] = better ? left[b - 1] : f[b];
+    leftAt[b] = better ? leftAt[b - 1] : b;
+  }
+  for (let b = bins - 1; b >= 0; b--) {
+    const better = b < bins - 1 && right[b + 1] >= f[b];
+    right[b] = better ? right[b + 1] : f[b];
+    rightAt[b] = better ? rightAt[b + 1] : b;
+  }
+  // the most significant dip under DIP_RATIO of its lower peak; counting noise of the smoothed
+  // density: variance f / sqrt(2) (a Gaussian kernel of height 1 over Poisson counts)
+  let ratio = 1, apart = 0, z = 0;
+  for (let b = 1; b < bins - 1; b++) {
+    const peak = Math.min(left[b], right[b]);
+    if (!(peak > 0 && f[b] < DIP_RATIO * peak)) continue;
+    const zb = (peak - f[b]) / Math.sqrt((peak + f[b]) / Math.SQRT2);
+    if (zb > z) {
+      z = zb;
+      ratio = f[b] / peak;
+      apart = (rightAt[b] - leftAt[b]) * bin;
+    }
+  }
+  return { ratio, apart, z };
+}
+
+/**
+ * The planar counterpart of `strandCheck`: in a plane the offsets from the path always spread in one
+ * direction, and a ribbon of pixels filled across its width (offsets uniform, kurtosis 1.8) splits
+ * no better into groups by its kurtosis than two strands 2 nm apart with 0.55 nm of noise (also
+ * about 1.8, textbook moments); nor do offsets from the orderer's path show the two strands, since
+ * that path wanders between them. So, in each window of STRAND_WINDOW ordered points, the points'
+ * distances across the window's principal axis less their least-squares quadratic along it; the
+ * windows where the wire turns (over DIP_TURN between the thirds' centroids) or bends in S (the
+ * quadratic's residual over DIP_SHAPE times the quartic's) are left out. The pooled distances must
+ * dip between two peaks (`offsetDip`: under DIP_RATIO of the lower peak and over DIP_Z SDs of
+ * counting noise deep), the peaks over STRAND_SPACINGS median spacings apart; the refusal names
+ * their distance and the cloud's ordered ends. Measured on invented clouds: 99 planar single wires
+ * (arcs, meanders, spirals, hairpins, rings, random ribbons 3-6 nm wide; 200-2000 points, noise
+ * 0-1 nm) and 20 ribbons of pixels 3-7 pixels wide: no dip under 0.8 of its peak (the deepest of
+ * any depth 0.94, 1.0 SD); two strands 200 nm long, 400 points each, 2 nm apart with 0.5 nm of
+ * noise: 0.59-0.71 and 3.7-5.4 SDs; 1.5 nm apart with 0.3 nm: 0.43-0.54 and 6.7-8.8 SDs; 3 nm
+ * apart with 0.7 nm: 0.55-0.62 and 3.9-5.3 SDs. Strands closer than about 4 noise SDs (1.5 nm at
+ * 0.5 nm, 2 nm at 0.7 nm) do not dip and are ordered as one wider wire.
+ */
+function planarStrandCheck(
+  xyz: Readonly<Float64Array>, order: Uint32Array, spacing: number, file: string,
+  fmtP: (x: number, y: number, z: number) => string, fmtL: (v: number) => string,
+): void {
+  const m = order.length;
+  if (m < 4 * STRAND_WINDOW || !(spacing > 0)) return;
+  const c = new Float64Array(9), mean = new Float64Array(3);
+  const windows = Math.floor(m / STRAND_WINDOW);
+  const u = new Float64Array(windows * STRAND_WINDOW);
+  const t = new Float64Array(STRAND_WINDOW), v = new Float64Array(STRAND_WINDOW);
+  const third = new Float64Array(9), res2 = new Float64Array(STRAND_WINDOW), res4 = new Float64Array(STRAND_WINDOW);
+  let used = 0;
+  for (let w = 0; w < windows; w++) {
+    const w0 = w * STRAND_WINDOW;
+    // left out where the wire turns within the window (the centroids of its thirds)
+    third.fill(0);
+    for (let j = 0; j < STRAND_WINDOW; j++) {
+      const i = order[w0 + j], k = Math.min(2, Math.floor((3 * j) / STRAND_WINDOW));
+      third[3 * k] += xyz[3 * i];
+      third[3 * k + 1] += xyz[3 * i + 1];
+    }
+    const ax = third[3] - third[0], ay = third[4] - third[1], bx = third[6] - third[3], by = third[7] - third[4];
+    if (!(ax * bx + ay * by > Math.cos(DIP_TURN) * Math.hypot(ax, ay) * Math.hypot(bx, by))) continue;
+    // the window's points: along (t) and across (v) their principal axis in the plane
+    pointCovariance(xyz, order, w0, w0 + STRAND_WINDOW, mean, c);
+    const { vectors } = symEigen3(c);
+    const a = order[w0], b = order[w0 + STRAND_WINDOW - 1];
+    const sign = Math.sign((xyz[3 * b] - xyz[3 * a]) * vectors[6] + (xyz[3 * b + 1] - xyz[3 * a + 1]) * vectors[7]) || 1;
+    const ex = sign * vectors[6], ey = sign * vectors[7];
+    for (let j = 0; j < STRAND_WINDOW; j++) {
+      const i = order[w0 + j];
+      const dx = xyz[3 * i] - mean[0], dy = xyz[3 * i + 1] - mean[1];
+      t[j] = dx * ex + dy * ey;
+      v[j] = -dx * ey + dy * ex;
+    }
+    // across the window's quadratic trend, left out when a quartic fits much better (an S-bend)
+    const rss2 = polyResiduals(t, v, 2, res2), rss4 = polyResiduals(t, v, 4, res4);
+    if (!(rss2 <= DIP_SHAPE * rss4)) continue;
+    for (let j = 0; j < STRAND_WINDOW; j++) u[used++] = res2[j];
+  }
+  if (used < 4 * STRAND_WINDOW) return;
+  const { ratio, apart, z } = offsetDip(u.subarray(0, used), DIP_BANDWIDTH * spacing);
+  if (!(ratio < DIP_RATIO && z > DIP_Z && apart > STRAND_SPACINGS * spacing)) return;
+  const at = (j: number) => fmtP(xyz[3 * order[j]], xyz[3 * order[j] + 1], xyz[3 * order[j] + 2]);
+  throw new InputError(file, null, "points",
+    `the cloud looks like two strands side by side, about ${fmtL(apart)} apart, from ${at(0)} to ${at(m - 1)} (across the path its points split into two groups, the density between them ${(ratio * 100).toFixed(0)}% of the groups'): ordered as one wire they zigzag between the strands; give one wire per file, or a centre-line trace`);
 }

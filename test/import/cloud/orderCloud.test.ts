@@ -310,3 +310,121 @@ describe("orderCloud: strands side by side", () => {
     expect(orderCloud(xyz, "one.xyz", { unit: "nm" }).order.length).toBe(1600);
   });
 });
+
+describe("orderCloud: two strands in a plane, folds and ribbons", () => {
+  // Invented: two straight strands along x (0-200 nm, 400 points each) dy nm apart (and dz nm in z),
+  // noise sd per coordinate (none in z for a planar cloud), `even`: points evenly spaced along x.
+  function strands(dy: number, dz: number, noise: number, even: boolean, seed: number): Float64Array {
+    const g = normalStream(seed), rnd = mulberry32(seed + 1);
+    const xyz = new Float64Array(3 * 800);
+    for (let i = 0; i < 800; i++) {
+      const k = i % 2, x = even ? (200 * Math.floor(i / 2)) / 399 : 200 * rnd();
+      xyz[3 * i] = (x + noise * g()) * NM;
+      xyz[3 * i + 1] = (k * dy + noise * g()) * NM;
+      xyz[3 * i + 2] = dz === 0 ? 0 : (k * dz + noise * g()) * NM;
+    }
+    return shuffle(xyz, seed + 2).xyz;
+  }
+  const refusal = (xyz: Float64Array, file: string, options: { closed?: boolean } = {}): string => {
+    try {
+      orderCloud(xyz, file, { unit: "nm", ...options });
+    } catch (e) {
+      expect(e).toBeInstanceOf(InputError);
+      return (e as Error).message;
+    }
+    return "no error";
+  };
+
+  it("refuses planar strands 2 nm apart with 0.5 nm of noise (ordered as one 204 nm wire before), naming their distance", () => {
+    // Truth: two equal normal groups a apart with sd s are bimodal when a > 2 s (textbook property of
+    // an equal two-component normal mixture; from memory): 2 nm > 1 nm, so the offsets across the
+    // path dip between the strands, whose distance is about 2 nm.
+    const message = refusal(strands(2, 0, 0.5, false, 81), "two.csv");
+    expect(message).toMatch(/^two\.csv: points: the cloud looks like two strands side by side, about (\S+) nm apart, from \([-\d., ]+\) nm to \([-\d., ]+\) nm \(across the path its points split into two groups, the density between them \d+% of the groups'\): ordered as one wire they zigzag between the strands; give one wire per file, or a centre-line trace$/);
+    const apart = Number(/about (\S+) nm apart/.exec(message)?.[1]);
+    expect(apart).toBeGreaterThan(1.4);
+    expect(apart).toBeLessThan(2.6);
+  });
+
+  it("refuses planar strands read up one and back down the other (a closed 400 nm loop before), naming the fold and the step across", () => {
+    // Truth by construction: the strands are 4 nm apart and each ends at x = 0 and x = 200 nm, so the
+    // step across a turn joins points about 4 nm apart near x = 0 or x = 200 nm.
+    for (const seed of [83, 85]) {
+      const message = refusal(strands(4, 0, 0.15, true, seed), "two.csv");
+      expect(message).toMatch(/^two\.csv: points: the ordered path runs back along itself from \([-\d., ]+\) nm to \([-\d., ]+\) nm \((\S+) nm with the other leg about (\S+) nm away, [\d.]+ median spacings\), turning back by one step of (\S+) nm between \(([-\d.]+), [-\d.]+, 0\) nm and \(([-\d.]+), [-\d.]+, 0\) nm with no points in the turn( \(the step that closes the curve\))?: two strands side by side, or (a hairpin bent back tighter than the points resolve|one open wire whose ends lie close together and were joined); the order along one wire is ambiguous; give one wire per file or a centre-line trace(, or declare the wire open)?$/);
+      const m = /\((\S+) nm with the other leg about (\S+) nm away.*one step of (\S+) nm between \(([-\d.]+),/.exec(message) as RegExpExecArray;
+      expect(Number(m[1])).toBeGreaterThan(150);
+      expect(Math.abs(Number(m[2]) - 4)).toBeLessThan(0.4);
+      expect(Math.abs(Number(m[3]) - 4)).toBeLessThan(1);
+      expect(Math.min(Math.abs(Number(m[4])), Math.abs(Number(m[4]) - 200))).toBeLessThan(2);
+      // declared open, the turn at the other end is still a step across with no points
+      expect(refusal(strands(4, 0, 0.15, true, seed), "two.csv", { closed: false })).toMatch(/runs back along itself .* with no points in the turn: two strands side by side, or a hairpin bent back tighter than the points resolve;/);
+    }
+  });
+
+  it("refuses the same fold in 3D (strands 4 nm apart in y and 2 nm in z)", () => {
+    expect(refusal(strands(4, 2, 0.15, true, 83), "two.xyz")).toMatch(/^two\.xyz: points: the ordered path runs back along itself .* about 4\.\d+ nm away/);
+  });
+
+  it("refuses a real hairpin whose legs are 2 nm apart (4 spacings), naming both readings", () => {
+    // Invented: legs 100 nm long at y = +-1 nm joined by a half circle of radius 1 nm, points every
+    // 0.5 nm, noise 0.1 nm: a turn of 2 spacings' radius, not resolved (common practice: a curvature
+    // radius must be well above the point spacing for a fit to follow it).
+    const message = refusal(shuffle(hairpin(100, 1, 0.1, 87), 88).xyz, "pin.csv");
+    expect(message).toMatch(/^pin\.csv: points: the ordered path runs back along itself from .* with the other leg about 2\.\d+ nm away, [\d.]+ median spacings\), turning back .*: two strands side by side, or (a hairpin bent back tighter than the points resolve|one open wire whose ends lie close together and were joined); the order along one wire is ambiguous;/);
+  });
+
+  it("keeps a wide hairpin (legs 20 nm apart, turn radius 20 spacings) and its length", () => {
+    // Truth: the length of two 100 nm legs and a half circle of radius 10 nm, 200 + 10 pi nm.
+    const r = orderCloud(shuffle(hairpin(100, 10, 0.1, 89), 90).xyz, "pin.csv", { unit: "nm" });
+    expect(r.closed).toBe(false);
+    expect(Math.abs((r.s[r.s.length - 1] - r.s[0]) / NM - (200 + 10 * Math.PI))).toBeLessThan(5);
+  });
+
+  it("keeps a ribbon of pixels 5 and 7 pixels wide, ordered along its centre", () => {
+    // Invented: every pixel (1 nm) within 2 or 3 pixels of the line y = 0.6 x: offsets across it
+    // uniform (kurtosis 1.8, textbook), the same as two noisy strands' (see the text of
+    // planarStrandCheck); the order must follow x.
+    for (const w of [2, 3]) {
+      const pts: number[] = [];
+      for (let x = -5; x <= 205; x++) {
+        for (let y = -10; y <= 135; y++) {
+          const d = Math.abs(y - 0.6 * x) / Math.hypot(1, 0.6), t = (x + 0.6 * y) / Math.hypot(1, 0.6);
+          if (d <= w && t >= 0 && t <= 200) pts.push(x * NM, y * NM, 0);
+        }
+      }
+      const xyz = shuffle(Float64Array.from(pts), 91).xyz;
+      const r = orderCloud(xyz, "ribbon.csv", { unit: "nm" });
+      expect(r.order.length).toBe(pts.length / 3);
+      expect(r.closed).toBe(false);
+      // away from the ends, the ordered points' parameter along the ribbon rises, going back by no more than its width
+      const along = Array.from(r.order, (i) => (sign0(xyz, r.order) * (xyz[3 * i] + 0.6 * xyz[3 * i + 1])) / Math.hypot(1, 0.6) / NM);
+      let back = 0;
+      for (let j = 50; j < along.length; j++) {
+        if (Math.abs(along[j]) < 20 || Math.abs(along[j]) > 180) continue;
+        back = Math.max(back, Math.max(...along.slice(j - 50, j)) - along[j]);
+      }
+      expect(back).toBeLessThan(2 * w + 1);
+    }
+  });
+});
+
+/** +1 when the ordered points run towards larger x + 0.6 y, else -1. */
+function sign0(xyz: Float64Array, order: Uint32Array): number {
+  const a = order[0], b = order[order.length - 1];
+  return Math.sign(xyz[3 * b] + 0.6 * xyz[3 * b + 1] - xyz[3 * a] - 0.6 * xyz[3 * a + 1]);
+}
+
+/** Points every 0.5 nm along a planar hairpin: legs `leg` nm long at y = +-rho joined by a half circle of radius rho (nm in, m out). */
+function hairpin(leg: number, rho: number, noise: number, seed: number): Float64Array {
+  const total = 2 * leg + Math.PI * rho, n = Math.round(total / 0.5), g = normalStream(seed);
+  const out = new Float64Array(3 * n);
+  for (let i = 0; i < n; i++) {
+    const s = (i * total) / (n - 1);
+    const a = (s - leg) / rho;
+    const p = s < leg ? [leg - s, rho] : s < leg + Math.PI * rho ? [-rho * Math.sin(a), rho * Math.cos(a)] : [s - leg - Math.PI * rho, -rho];
+    out[3 * i] = (p[0] + noise * g()) * NM;
+    out[3 * i + 1] = (p[1] + noise * g()) * NM;
+  }
+  return out;
+}
