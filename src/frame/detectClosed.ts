@@ -8,13 +8,15 @@ import { hypot3 } from "./hypot3.js";
  * point away from the ends lies nearer to either end than the other end does; and the wire runs on
  * through the gap (the closing step turns by under 75 degrees from the tangents at both ends).
  * Adds one line to `diagnostics` when it calls the trace closed. Cost O(n).
- * Units: any (the result depends only on ratios).
+ * Units: any (the result depends only on ratios). `stepsOfXyz`: the step lengths of xyz (`stepLengths`),
+ * when the caller has them (not changed).
  */
-export function detectClosed(xyz: Float64Array, diagnostics: string[]): boolean {
+export function detectClosed(xyz: Float64Array, diagnostics: string[], stepsOfXyz?: Float64Array): boolean {
   const n = xyz.length / 3;
   if (n < 8) return false;
-  const steps = new Float64Array(n - 1);
-  const total = stepsInto(xyz, steps);
+  // The steps from the caller when it has them (robustStart: the same numbers, one pass less).
+  const steps = stepsOfXyz ?? new Float64Array(n - 1);
+  const total = stepsOfXyz ? sumInOrder(steps) : stepsInto(xyz, steps);
   // The lower median (the element a sort would put at (n - 2) >> 1), by selection.
   const medStep = selectInPlace(steps.slice(), steps.length, (steps.length - 1) >> 1);
   const e2 = secondDifferenceSquares(xyz, n);
@@ -80,6 +82,13 @@ function stepsInto(xyz: Float64Array, steps: Float64Array): number {
 }
 
 /** Sum over interior points and coordinates of ((p_{i-1} + p_{i+1}) / 2 - p_i)^2, in order. */
+/** steps[0] + steps[1] + ..., in index order (the sum `stepsInto` forms). */
+function sumInOrder(steps: Float64Array): number {
+  let total = 0;
+  for (let i = 0; i < steps.length; ++i) total += steps[i];
+  return total;
+}
+
 function secondDifferenceSquares(xyz: Float64Array, n: number): number {
   let e2 = 0;
   for (let i = 1; i < n - 1; ++i) {

@@ -159,7 +159,7 @@ export function robustStart(trace: Trace, options: ProfileOptions, diagnostics: 
       `no points over ${describeLength(steps[longest] * canon.scale, trace.source)} of the wire between ${rowName(trace, kept[longest])} and ${rowName(trace, kept[longest + 1])} (${(steps[longest] / medianStep).toFixed(0)}x the median step): the fit would invent the wire there; trace it more evenly or split it at the gap`);
   }
   let closed: boolean;
-  if (declaredClosed === undefined) closed = detectClosed(y, diagnostics);
+  if (declaredClosed === undefined) closed = detectClosed(y, diagnostics, steps);
   else {
     closed = declaredClosed;
     if (closed) checkClosable(y, medianStep, file, (d) => describeLength(d * canon.scale, trace.source));
