@@ -5,7 +5,9 @@
  */
 import { describe, expect, it } from "vitest";
 import { analyzeTrace } from "../../src/export/analyzeTrace.js";
+import { BIAS_SITE_FLAG } from "../../src/physics/buildWireModel.js";
 import { buildWireModel, parseMaterial } from "../../src/physics/index.js";
+import { FLAG_BIAS } from "../../src/types.js";
 import { normalStream } from "../support/rng.js";
 
 // invented soft ferromagnet: l = sqrt(A / K) = 8.04 nm
@@ -37,6 +39,7 @@ describe("pinning depth intervals with the smoothing bias", () => {
     // PRB 92, 104412 (2015)); first order is within 1% there up to k0 l = 0.4 (relaxed: +0.5%).
     const D1 = 4.4522 * k0 * l;
     const pts = bumpWire();
+    let flagged = 0;
     for (const seed of [1, 2, 3]) {
       const g = normalStream(7000 + seed);
       const xyz = Float64Array.from(pts, (v, i) => (i % 3 === 2 ? 0 : v + 0.5 * g()) * 1e-9);
@@ -53,6 +56,12 @@ describe("pinning depth intervals with the smoothing bias", () => {
       const n = noiseOnly.pinning.find((p) => Math.abs(p.s * 1e9 - s0) < l / 4)!;
       expect(n.depthReduced).toBe(site.depthReduced);
       expect(n.depthReducedHi!).toBeLessThan(D1);
+      // the site carries the profile's smoothing-bias flag when a sample within l/2 has it
+      let biased = false;
+      for (let j = 0; j < a.profile.n; ++j) if (Math.abs(a.profile.s[j] - site.s) <= 0.5 * material.magneticLength && a.profile.flags[j] & FLAG_BIAS) biased = true;
+      expect(site.flags.includes(BIAS_SITE_FLAG)).toBe(biased);
+      if (biased) ++flagged;
     }
+    expect(flagged).toBeGreaterThan(0); // measured: the bump's samples are flagged at 0.5 nm noise
   }, 120_000);
 });
