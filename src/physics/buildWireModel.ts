@@ -1,4 +1,4 @@
-import { FLAG_BIAS, type Profile, type Segment } from "../types.js";
+import { FLAG_BIAS, FLAG_TORSION_UNDEFINED, type Profile, type Segment } from "../types.js";
 import { mulberry32 } from "../frame/mulberry32.js";
 import { anisotropyTensor } from "./anisotropyTensor.js";
 import { gapProfile } from "./gapProfile.js";
@@ -254,7 +254,11 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
       tau: profile.tauSamples !== undefined ? Float64Array.from(profile.tauSamples, (x) => x * l) : null,
     } : null;
     const bias = reps > 0 && profile.kappaBias !== undefined ? {
-      kappa: Float64Array.from(profile.kappaBias, (b, i) => (profile.kappa[i] + b) * l),
+      // where the fit cannot tell kappa from 0 (flag 1) its noise floor lifts it (|r''| >= 0): 0 is
+      // the corrected value there (bench/pinningDepth.ts: FM bumps of width 5 l read 1-3% shallow
+      // from the straight wire's floor beside them; depth intervals holding the first-order depth
+      // 15/33 -> 31/33 with this)
+      kappa: Float64Array.from(profile.kappaBias, (b, i) => ((profile.flags[i] & FLAG_TORSION_UNDEFINED) !== 0 ? 0 : profile.kappa[i] + b) * l),
       tau: profile.tauBias !== undefined ? Float64Array.from(profile.tauBias, (b, i) => (profile.tau[i] + b) * l) : null,
     } : null;
     const periodic = new Uint8Array(profile.n);
