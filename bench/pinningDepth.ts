@@ -7,13 +7,13 @@
  * 4.4522, 5.7754 for w = l, 2 l, 5 l (../shared/PHYSICS.md section 5, after Yershov, Kravchuk, Sheka,
  * Gaididei, PRB 92, 104412 (2015)); at the (w, k0 l) used, first order is within 1% of the relaxed depth.
  * Prints per case the depth and its 95% interval, with (the default) and without the smoothing-bias
- * reach (Profile.kappaBias) and whether the site carries the smoothing-bias flag, then the fraction of
+ * reach (Profile.kappaBias) and whether the site carries the validity flag of a feature near the resolution, then the fraction of
  * cases whose interval holds D1, how many misses are flagged, and the extreme ratios.
  * Invented data, seeded.
  */
 import { analyzeTrace } from "../src/export/analyzeTrace.js";
-import { BIAS_SITE_FLAG, buildWireModel } from "../src/physics/buildWireModel.js";
-import { parseMaterial } from "../src/physics/index.js";
+import { buildWireModel, parseMaterial } from "../src/physics/index.js";
+import { VALIDITY_TEXT } from "../src/physics/sampleValidity.js";
 import { normalStream } from "../test/support/rng.js";
 
 const seeds = Number(process.argv[2] ?? 4);
@@ -61,7 +61,7 @@ for (const shape of shapes) {
       ++total;
       if (A === undefined || B === undefined) { ++missing; console.log(`${name} ${D1.toFixed(3)}  no site`); continue; }
       const holds = (p: typeof A) => p.depthReducedLo !== null && p.depthReducedHi !== null && p.depthReducedLo <= D1 && D1 <= p.depthReducedHi;
-      const flagged = A.flags.includes(BIAS_SITE_FLAG);
+      const flagged = A.flags.includes(VALIDITY_TEXT.featureVsResolution);
       if (holds(A)) ++inWith;
       else if (flagged) ++missFlagged;
       if (holds(B)) ++inWithout;
@@ -71,5 +71,5 @@ for (const shape of shapes) {
     }
   }
 }
-console.log(`D1 inside the interval: ${inWith}/${total} with the bias reach, ${inWithout}/${total} noise only; no site found ${missing}; of the ${total - missing - inWith} misses ${missFlagged} carry the site flag of smoothing bias (16)`);
+console.log(`D1 inside the interval: ${inWith}/${total} with the bias reach, ${inWithout}/${total} noise only; no site found ${missing}; of the ${total - missing - inWith} misses ${missFlagged} carry the validity flag of a feature near the resolution length (the profile's flag 16)`);
 console.log(`depth / D1: min ${Math.min(...ratios).toFixed(3)}, max ${Math.max(...ratios).toFixed(3)} (* marks an interval that misses D1)`);

@@ -1,4 +1,4 @@
-import { FLAG_BIAS, FLAG_TORSION_UNDEFINED, type Profile, type Segment } from "../types.js";
+import { FLAG_TORSION_UNDEFINED, type Profile, type Segment } from "../types.js";
 import { mulberry32 } from "../frame/mulberry32.js";
 import { anisotropyTensor } from "./anisotropyTensor.js";
 import { gapProfile } from "./gapProfile.js";
@@ -51,9 +51,6 @@ export interface WireModelOptions {
  * Cost: seconds (a periodic search per stretch and corner, one relaxation, ~L/l wall relaxations).
  * @example buildWireModel(profile, segment(profile), material).segments[0].tiltDeg
  */
-/** A pinning site's flag where the profile flags smoothing bias (16) within l/2 of it. */
-export const BIAS_SITE_FLAG = "curvature flagged biased (16) within l/2: a feature near the fit's resolution, its depth is likely underestimated and the interval may miss it";
-
 export function buildWireModel(profile: Profile, segments: readonly Segment[], material: Material, options: WireModelOptions = {}): WireModel {
   const l = material.magneticLength;
   const system = reducedSystem(material);
@@ -297,18 +294,9 @@ export function buildWireModel(profile: Profile, segments: readonly Segment[], m
         summary = summarise();
       }
     }
-    // the profile's smoothing-bias flag (16) within l/2 of a site: the curvature there, so the
-    // depth, is likely too low and the interval may miss (bench/pinningDepth.ts: on noisy bumps a
-    // width of l, every missed interval had flag 16 at all samples within l)
-    const withBias = (x: PinningSite): PinningSite => {
-      for (let i = 0; i < profile.n; ++i) {
-        if (Math.abs(profile.s[i] - x.s) <= 0.5 * l && (profile.flags[i] & FLAG_BIAS) !== 0) return { ...x, flags: [...x.flags, BIAS_SITE_FLAG] };
-      }
-      return x;
-    };
-    pinning = summary.sites.map(withBias);
-    pinningMinor = summary.minor.map(withBias);
-    barriers = summary.barriers.map(withBias);
+    pinning = summary.sites;
+    pinningMinor = summary.minor;
+    barriers = summary.barriers;
     const indicativeOnly = pinningMinor.filter((x) => x.note !== null && x.note.startsWith("indicative only")).length;
     const irrelevant = pinningMinor.length - indicativeOnly;
     if (irrelevant > 0) warnings.push(`${irrelevant} thermally irrelevant pinning ${irrelevant === 1 ? "site" : "sites"} (95% interval includes 0 or depth below 1 k_B T) listed apart`);

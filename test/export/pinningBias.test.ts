@@ -5,8 +5,8 @@
  */
 import { describe, expect, it } from "vitest";
 import { analyzeTrace } from "../../src/export/analyzeTrace.js";
-import { BIAS_SITE_FLAG } from "../../src/physics/buildWireModel.js";
 import { buildWireModel, parseMaterial } from "../../src/physics/index.js";
+import { VALIDITY_TEXT } from "../../src/physics/sampleValidity.js";
 import { FLAG_BIAS } from "../../src/types.js";
 import { normalStream } from "../support/rng.js";
 
@@ -59,7 +59,7 @@ describe("pinning depth intervals with the smoothing bias", () => {
       // the site carries the profile's smoothing-bias flag when a sample within l/2 has it
       let biased = false;
       for (let j = 0; j < a.profile.n; ++j) if (Math.abs(a.profile.s[j] - site.s) <= 0.5 * material.magneticLength && a.profile.flags[j] & FLAG_BIAS) biased = true;
-      expect(site.flags.includes(BIAS_SITE_FLAG)).toBe(biased);
+      expect(site.flags.includes(VALIDITY_TEXT.featureVsResolution)).toBe(biased);
       if (biased) ++flagged;
     }
     expect(flagged).toBeGreaterThan(0); // measured: the bump's samples are flagged at 0.5 nm noise
