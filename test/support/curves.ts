@@ -250,3 +250,23 @@ export function sampleCurveUneven(curve: TestCurve, n: number, noise: number, se
   }
   return { xyz, t };
 }
+
+/**
+ * A planar curve of length L from its curvature kappa(s) (units of 1/L), as flat x, y, 0 triples at
+ * s = 0, 1, ..., L (one point per unit length): the tangent angle integrated at 0.01-unit steps, each
+ * step along the chord of its arc (midpoint angle), so positions are exact to ~1e-6 for smooth kappa.
+ */
+export function planarFromCurvature(kappa: (s: number) => number, L: number): number[] {
+  const pts: number[] = [];
+  let x = 0, y = 0, th = 0;
+  const h = 0.01;
+  for (let i = 0; i <= L / h; i++) {
+    const s = i * h;
+    if (Math.abs(s - Math.round(s)) < h / 2) pts.push(x, y, 0);
+    const k = kappa(s + h / 2);
+    x += Math.cos(th + (k * h) / 2) * h;
+    y += Math.sin(th + (k * h) / 2) * h;
+    th += k * h;
+  }
+  return pts;
+}
