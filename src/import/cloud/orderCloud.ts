@@ -24,10 +24,9 @@ import { symEigen3 } from "../../frame/symEigen3.js";
  *    wire (an error).
  * 3. The tree's diameter path (two sweeps of tree distance) is the curve's skeleton; a running mean
  *    over `smoothFraction` of its vertices smooths it. The curve is closed when the gap between its
- *    ends is under `closeGap` of its length and is a step like the path's own (`closingStep`: at most
- *    3 times its widest step or 4 noise widths across it) or continues the path's direction at both
- *    ends (a loop missing a stretch of points); then the mean wraps around. The centre and outer end
- *    of a coarse open spiral, a turn's width apart, stay open.
+ *    ends is under `closeGap` of its length and no other part of the path lies near the step between
+ *    them (`closingStep`); then the mean wraps around. The centre and outer end of an open spiral,
+ *    with its other turns between them, stay open.
  * 4. Each point's parameter is the arc length of its foot point on the smoothed path; the points
  *    are sorted by it. Side branches of the tree that reach far from the path are either a few
  *    stray points (outliers, left out, and the steps repeat once without them) or real structure
@@ -198,8 +197,9 @@ function orderDistinct(xyz: Readonly<Float64Array>, file: string, options: Cloud
     `ordered ${r.order.length} points along ${r.closed ? "a closed" : "an open"} curve of length ${fmtL(r.length)} (end gap ${fmtL(r.gap)}; ${k} neighbours, running mean over ${2 * r.half + 1} path points)`,
   );
   if (options.closed === undefined && r.closure !== undefined && !r.closed) {
+    const v = 3 * r.closure.nearest;
     diagnostics.push(
-      `taken as open although its ends are within ${+(100 * closeGap).toFixed(2)}% of its length: the ${fmtL(r.gap)} between them is ${r.closure.steps.toFixed(1)} times the path's widest step (or 4 widths of its noise across it, if wider) and runs across the path's direction at its ends (cosine ${r.closure.align.toFixed(2)}); declare the wire closed to join them`,
+      `taken as open although its ends are within ${+(100 * closeGap).toFixed(2)}% of its length: another part of the wire passes between them, near ${fmtP(r.raw[v], r.raw[v + 1], r.raw[v + 2])}, across the ${fmtL(r.gap)} step that would join them; declare the wire closed to join them`,
     );
   }
   if (sideBranches.length > 0 && !options.allowBranches) {
@@ -426,70 +426,100 @@ function orderOnce(xyz: Readonly<Float64Array>, f: Forest, outlier: Uint8Array, 
     gap,
     half,
     closure,
+    raw,
   };
 }
 
 /**
- * A closing step a few times the widest step of the path still closes it: where a loop's minimum
- * spanning tree breaks, its widest spacing is dropped, so the ends of a loop sampled at random are
- * as far apart as the loop's widest spacing (and noise across the wire can put them a few noise
- * widths apart). Measured on 308 ordinary clouds (rings, planar rings, filled tube rings, 200-2000
- * points, noise 0-1 nm; spirals, helices, arcs, meanders, hairpins): closed loops gave end gap /
- * max(widest step, CLOSE_ACROSS x median distance of the path's vertices from its running mean)
- * 1.0-2.0, open spirals whose ends come within 5% of their length 4.3-68.
+ * Least distance, in end gaps, between the middle half of the step that would close the path and
+ * the path's segments more than CLOSE_FAR_GAPS end gaps along it from both ends (arc length of the
+ * running mean), for the step to close the path. The chord between an open spiral's centre and
+ * outer end runs across its other turns: the 308-cloud corpus's open spirals whose ends come within
+ * 5% of their length (200-600 points, planar) gave 0 (a segment crosses it); its rings, planar rings
+ * and filled tube rings (200-2000 points, noise 0-1 nm) 1.48 at least, and a wider scan of 1260
+ * rings and tilted loops (60-5000 points, noise 0-3 nm, even and random) 0.28 at least.
  */
-const CLOSE_STEPS = 3;
-/** Noise widths (median distance of the path's vertices from its running mean) a closing step may span. */
-const CLOSE_ACROSS = 4;
-/**
- * Least cosine between the closing chord and the path's direction at each end (over one gap of arc)
- * for a wider closing step to continue the curve (a loop missing a stretch of points); the chord
- * between a spiral's centre and outer end runs across its turns (cosines -0.2 to -0.4 measured).
- */
-const CLOSE_ALIGN = 0.8;
+const CLOSE_CLEAR = 0.1;
+/** Arc length from either end, in end gaps, beyond which a segment near the closing step is another part of the wire. */
+const CLOSE_FAR_GAPS = 2;
+/** Fraction of the closing step at each end left out of the test (where the path's own ends wander). */
+const CLOSE_MID = 0.25;
 
 interface ClosingStep {
-  /** Whether the ends are joined by a step like the path's own, or by one continuing both ends. */
+  /** Whether no other part of the wire lies near the step between the ends (CLOSE_CLEAR). */
   readonly closes: boolean;
-  /** End gap over the path's step scale (max of widest step and CLOSE_ACROSS noise widths). */
-  readonly steps: number;
-  /** Least cosine between the closing chord and the end directions. */
-  readonly align: number;
+  /** Least distance of a segment far from both ends from the middle of the step between them, in end gaps. */
+  readonly clear: number;
+  /** That segment's end vertex (index into the path). */
+  readonly nearest: number;
 }
 
 /**
- * Whether the gap between the ends of a path (`raw` its vertices, `smooth` their open running mean,
- * m by 3) closes it: the gap is at most CLOSE_STEPS times the path's step scale, or the chord across
- * it continues the path's direction at both ends (CLOSE_ALIGN).
+ * Whether the step between the ends of a path (`raw` its vertices, `smooth` their open running mean,
+ * m by 3, `gap` the ends' distance) closes it: no segment more than CLOSE_FAR_GAPS gaps along the
+ * path from both ends passes within CLOSE_CLEAR gaps of the middle of the chord between them (a
+ * loop's two ends meet across the step; a spiral's centre and outer end have its other turns
+ * between them).
  */
 function closingStep(raw: Float64Array, smooth: Float64Array, gap: number): ClosingStep {
   const m = raw.length / 3;
-  const dist = (p: Float64Array, i: number, q: Float64Array, j: number) =>
-    Math.hypot(p[3 * i] - q[3 * j], p[3 * i + 1] - q[3 * j + 1], p[3 * i + 2] - q[3 * j + 2]);
-  let widest = 0;
-  for (let i = 1; i < m; i++) widest = Math.max(widest, dist(raw, i, raw, i - 1));
-  const dev = new Float64Array(m);
-  for (let i = 0; i < m; i++) dev[i] = dist(raw, i, smooth, i);
-  const scale = Math.max(widest, CLOSE_ACROSS * median(dev));
-  const steps = scale > 0 ? gap / scale : Infinity;
-  // direction at an end: from the vertex about one gap of arc inside it to the end vertex
-  const chord = [raw[0] - raw[3 * m - 3], raw[1] - raw[3 * m - 2], raw[2] - raw[3 * m - 1]];
-  const endCos = (atEnd: boolean) => {
-    const at = (i: number) => (atEnd ? m - 1 - i : i);
-    let acc = 0, j = 1;
-    for (; j < m - 1; j++) {
-      acc += dist(raw, at(j), raw, at(j - 1));
-      if (acc >= gap) break;
+  const cum = new Float64Array(m);
+  for (let i = 1; i < m; i++) cum[i] = cum[i - 1] + Math.hypot(smooth[3 * i] - smooth[3 * i - 3], smooth[3 * i + 1] - smooth[3 * i - 2], smooth[3 * i + 2] - smooth[3 * i - 1]);
+  const total = cum[m - 1];
+  // the middle of the chord from the last vertex to the first
+  const e = 3 * (m - 1);
+  const a = [0, 1, 2].map((c) => raw[e + c] + CLOSE_MID * (raw[c] - raw[e + c]));
+  const b = [0, 1, 2].map((c) => raw[e + c] + (1 - CLOSE_MID) * (raw[c] - raw[e + c]));
+  let least = Infinity, nearest = -1;
+  for (let i = 1; i < m; i++) {
+    if (Math.min(cum[i - 1], total - cum[i]) <= CLOSE_FAR_GAPS * gap) continue;
+    const d = segmentDistance(a, b, raw.subarray(3 * i - 3, 3 * i), raw.subarray(3 * i, 3 * i + 3));
+    if (d < least) {
+      least = d;
+      nearest = i;
     }
-    const e = at(0), o = at(j);
-    const d = [raw[3 * e] - raw[3 * o], raw[3 * e + 1] - raw[3 * o + 1], raw[3 * e + 2] - raw[3 * o + 2]];
-    const l = Math.hypot(d[0], d[1], d[2]) * gap;
-    // the chord runs from the last vertex to the first: along the last end's direction, against the first's
-    const c = (d[0] * chord[0] + d[1] * chord[1] + d[2] * chord[2]) / l;
-    return l > 0 ? (atEnd ? c : -c) : 1;
-  };
-  const align = gap > 0 ? Math.min(endCos(true), endCos(false)) : 1;
-  return { closes: steps <= CLOSE_STEPS || align >= CLOSE_ALIGN, steps, align };
+  }
+  const clear = gap > 0 ? least / gap : Infinity;
+  return { closes: clear > CLOSE_CLEAR, clear, nearest };
+}
+
+/**
+ * Least distance between the segments p1-q1 and p2-q2 (3D): the closest points' parameters from
+ * the 2 x 2 normal equations, clamped to the segments in turn (Ericson 2005, "Real-Time Collision
+ * Detection", section 5.1.9).
+ */
+function segmentDistance(p1: ArrayLike<number>, q1: ArrayLike<number>, p2: ArrayLike<number>, q2: ArrayLike<number>): number {
+  const d1 = [q1[0] - p1[0], q1[1] - p1[1], q1[2] - p1[2]], d2 = [q2[0] - p2[0], q2[1] - p2[1], q2[2] - p2[2]];
+  const r = [p1[0] - p2[0], p1[1] - p2[1], p1[2] - p2[2]];
+  const dot = (u: number[], v: number[]) => u[0] * v[0] + u[1] * v[1] + u[2] * v[2];
+  const a = dot(d1, d1), e = dot(d2, d2), f = dot(d2, r);
+  const clamp = (x: number) => Math.max(0, Math.min(1, x));
+  let s: number, t: number;
+  if (a <= 0 && e <= 0) {
+    s = 0;
+    t = 0;
+  } else if (a <= 0) {
+    s = 0;
+    t = clamp(f / e);
+  } else {
+    const c = dot(d1, r);
+    if (e <= 0) {
+      t = 0;
+      s = clamp(-c / a);
+    } else {
+      const b = dot(d1, d2), denom = a * e - b * b;
+      s = denom > 0 ? clamp((b * f - c * e) / denom) : 0;
+      t = (b * s + f) / e;
+      if (t < 0) {
+        t = 0;
+        s = clamp(-c / a);
+      } else if (t > 1) {
+        t = 1;
+        s = clamp((b - c) / a);
+      }
+    }
+  }
+  return Math.hypot(r[0] + s * d1[0] - t * d2[0], r[1] + s * d1[1] - t * d2[1], r[2] + s * d1[2] - t * d2[2]);
 }
 
 function runningMean(p: Float64Array, closed: boolean, half: number): Float64Array {
