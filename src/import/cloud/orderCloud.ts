@@ -436,8 +436,8 @@ function orderOnce(xyz: Readonly<Float64Array>, f: Forest, outlier: Uint8Array, 
  * running mean), for the step to close the path. The chord between an open spiral's centre and
  * outer end runs across its other turns: the 308-cloud corpus's open spirals whose ends come within
  * 5% of their length (200-600 points, planar) gave 0 (a segment crosses it); its rings, planar rings
- * and filled tube rings (200-2000 points, noise 0-1 nm) 1.48 at least, and a wider scan of 1260
- * rings and tilted loops (60-5000 points, noise 0-3 nm, even and random) 0.28 at least.
+ * and filled tube rings (200-2000 points, noise 0-1 nm) 1.48 at least, and a wider scan of 1080
+ * rings and tilted loops (60-5000 points, noise 0-3 nm, even and random; 932 with ends within 5%) 0.28 at least.
  */
 const CLOSE_CLEAR = 0.1;
 /** Arc length from either end, in end gaps, beyond which a segment near the closing step is another part of the wire. */
