@@ -428,3 +428,114 @@ function hairpin(leg: number, rho: number, noise: number, seed: number): Float64
   }
   return out;
 }
+
+describe("orderCloud: whether the ends close the curve", () => {
+  // Invented planar clouds (nm in, m out): `n` points at even or random parameter along a curve, with
+  // normal noise of sd `noise` in x and y, shuffled.
+  function planar(f: (t: number) => [number, number], n: number, closed: boolean, noise: number, seed: number, random = false): { xyz: Float64Array; perm: number[] } {
+    const g = normalStream(seed), u = mulberry32(seed + 3);
+    const xyz = new Float64Array(3 * n);
+    for (let i = 0; i < n; i++) {
+      const p = f(random ? u() : closed ? i / n : i / (n - 1));
+      xyz[3 * i] = (p[0] + noise * g()) * NM;
+      xyz[3 * i + 1] = (p[1] + noise * g()) * NM;
+    }
+    return shuffle(xyz, 99);
+  }
+  // 3 turns from radius 20 to 56 nm (12 nm between turns), 712 nm long: its centre and outer end are
+  // 36 nm apart, 5.06% of its length (from the construction), so a little noise brings them under
+  // the 5% at which the ends may close the curve.
+  const spiral = (t: number): [number, number] => {
+    const a = 6 * Math.PI * t, r = 20 + 36 * t;
+    return [r * Math.cos(a), r * Math.sin(a)];
+  };
+  /** Spearman rank correlation of the ordered points' true indices with their places in the order. */
+  const rankCorrelation = (rank: number[]): number => {
+    const n = rank.length;
+    let d2 = 0;
+    const sorted = [...rank].sort((a, b) => a - b);
+    rank.forEach((v, i) => (d2 += (sorted.indexOf(v) - i) ** 2));
+    return 1 - (6 * d2) / (n * (n * n - 1)); // textbook formula without ties
+  };
+
+  it("orders a coarse open spiral whose ends come within 5% of its length as open, from its centre to its outer end", () => {
+    // These three clouds had been closed across the 35 nm between the spiral's ends, exit 0.
+    for (const [noise, seed] of [[0.3, 1], [1, 1], [0.3, 2]]) {
+      const { xyz, perm } = planar(spiral, 600, false, noise, seed);
+      const r = orderCloud(xyz, "spiral.csv", { unit: "nm" });
+      expect(r.closed).toBe(false);
+      const rank = Array.from(r.order, (o) => perm[o]);
+      expect(Math.abs(rankCorrelation(rank))).toBeGreaterThan(0.9999);
+      // truth by construction: the ends are the points at t = 0 and t = 1, 36 nm apart
+      expect(Math.min(rank[0], rank[599])).toBeLessThan(5);
+      expect(Math.max(rank[0], rank[599])).toBeGreaterThan(594);
+      // truth by construction: the turns at radius 32 and 44 nm cross the step between the ends
+      const m = /another part of the wire passes between them, near \(([-\d.]+), ([-\d.e]+), 0\) nm, across the (3\d\.\d+) nm step that would join them; declare the wire closed to join them$/m.exec(r.trace.diagnostics.join("\n")) as RegExpExecArray;
+      expect(m).not.toBeNull();
+      const radius = Math.hypot(Number(m[1]), Number(m[2]));
+      expect(Math.min(Math.abs(radius - 32), Math.abs(radius - 44))).toBeLessThan(3 * noise + 1);
+    }
+  });
+
+  it("still orders a coarse 200-point open spiral with 1 nm of noise (refused as a fold before) as open", () => {
+    const { xyz, perm } = planar(spiral, 200, false, 1, 3);
+    const r = orderCloud(xyz, "spiral.csv", { unit: "nm" });
+    expect(r.closed).toBe(false);
+    expect(Math.abs(rankCorrelation(Array.from(r.order, (o) => perm[o])))).toBeGreaterThan(0.999);
+  });
+
+  it("orders a 100-point two-turn spiral (4 spacings between its ends) as open", () => {
+    // Invented: radius 30 to 50 nm over 2 turns (503 nm, 5 nm spacing); its ends are 20 nm apart, 4% of its length.
+    const two = (t: number): [number, number] => [(30 + 20 * t) * Math.cos(4 * Math.PI * t), (30 + 20 * t) * Math.sin(4 * Math.PI * t)];
+    for (const seed of [1, 2]) {
+      const { xyz, perm } = planar(two, 100, false, 0.3, seed);
+      const r = orderCloud(xyz, "spiral.csv", { unit: "nm" });
+      expect(r.closed).toBe(false);
+      expect(Math.abs(rankCorrelation(Array.from(r.order, (o) => perm[o])))).toBeGreaterThan(0.999);
+    }
+  });
+
+  it("keeps a spiral declared closed closed or refused, never silently open", () => {
+    const { xyz } = planar(spiral, 600, false, 0.3, 1);
+    try {
+      expect(orderCloud(xyz, "spiral.csv", { unit: "nm", closed: true }).closed).toBe(true);
+    } catch (e) {
+      expect(e).toBeInstanceOf(InputError);
+    }
+  });
+
+  it("still closes coarse rings: 100-300 points, noise-free and noisy, evenly and randomly sampled", () => {
+    // Truth by construction: the points lie on one circle of radius 80 nm, a closed curve. (100 points
+    // at random leave a widest spacing of about ln 100 + 0.58 = 5.2 mean spacings, about 5% of the length
+    // (expected largest of n exponential spacings, textbook): those may be read open, as before.)
+    const circle = (t: number): [number, number] => [80 * Math.cos(2 * Math.PI * t), 80 * Math.sin(2 * Math.PI * t)];
+    for (const n of [100, 200, 300]) {
+      for (const noise of [0, 1]) {
+        for (const random of n === 100 ? [false] : [false, true]) {
+          const r = orderCloud(planar(circle, n, true, noise, 7 + n, random).xyz, "ring.csv", { unit: "nm" });
+          expect(r.closed, `n ${n} noise ${noise} random ${random}`).toBe(true);
+        }
+      }
+    }
+  });
+
+  it("still closes a dense noisy tilted loop (3000 points, noise 2 nm across a 30 nm radius)", () => {
+    const g = normalStream(11), xyz = new Float64Array(3 * 3000);
+    for (let i = 0; i < 3000; i++) {
+      const a = (2 * Math.PI * i) / 3000;
+      [30 * Math.cos(a), 30 * Math.sin(a), 4 * Math.sin(a)].forEach((v, c) => (xyz[3 * i + c] = (v + 2 * g()) * NM));
+    }
+    expect(orderCloud(shuffle(xyz, 12).xyz, "loop.xyz", { unit: "nm" }).closed).toBe(true);
+  });
+
+  it("still closes a ring with a stretch of 6 points missing (a closing step 7 spacings wide, nothing else near it)", () => {
+    // Invented: 200 even points on a circle of radius 80 nm with points 0-5 left out.
+    const r0 = 80, n = 200, pts: number[] = [];
+    for (let i = 6; i < n; i++) pts.push(r0 * Math.cos((2 * Math.PI * i) / n) * NM, r0 * Math.sin((2 * Math.PI * i) / n) * NM, 0);
+    const r = orderCloud(shuffle(Float64Array.from(pts), 5).xyz, "ring.csv", { unit: "nm" });
+    expect(r.closed).toBe(true);
+    expect(r.order.length).toBe(n - 6);
+    // declared open it stays open
+    expect(orderCloud(shuffle(Float64Array.from(pts), 5).xyz, "ring.csv", { unit: "nm", closed: false }).closed).toBe(false);
+  });
+});
