@@ -14,6 +14,7 @@
 import { analyzeTrace } from "../src/export/analyzeTrace.js";
 import { buildWireModel, parseMaterial } from "../src/physics/index.js";
 import { VALIDITY_TEXT } from "../src/physics/sampleValidity.js";
+import { planarFromCurvature } from "../test/support/curves.js";
 import { normalStream } from "../test/support/rng.js";
 
 const seeds = Number(process.argv[2] ?? 4);
@@ -25,29 +26,13 @@ const shapes = [
   { w: 5, k0l: 0.3, ratio: 5.7754 },
 ];
 
-/** A planar wire of length L nm whose curvature is kap(s), one point per nm (0.01 nm midpoint steps). */
-function planar(kap: (s: number) => number, L: number): number[] {
-  const pts: number[] = [];
-  let x = 0, y = 0, th = 0;
-  const h = 0.01;
-  for (let i = 0; i <= L / h; i++) {
-    const s = i * h;
-    if (Math.abs(s - Math.round(s)) < h / 2) pts.push(x, y, 0);
-    const k = kap(s + h / 2);
-    x += Math.cos(th + (k * h) / 2) * h;
-    y += Math.sin(th + (k * h) / 2) * h;
-    th += k * h;
-  }
-  return pts;
-}
-
 let inWith = 0, inWithout = 0, total = 0, missing = 0, missFlagged = 0;
 const ratios: number[] = [];
 console.log("case                      D1     depth  [with bias reach]   [noise only]");
 for (const shape of shapes) {
   const w = shape.w * l, k0 = shape.k0l / l, L = 600, s0 = 300;
   const D1 = shape.ratio * shape.k0l;
-  const pts = planar((s) => k0 * Math.exp(-(((s - s0) / w) ** 2)), L);
+  const pts = planarFromCurvature((s) => k0 * Math.exp(-(((s - s0) / w) ** 2)), L);
   for (const sigma of [0.2, 0.5, 1]) {
     for (let seed = 1; seed <= seeds; ++seed) {
       const g = normalStream(7000 + seed);

@@ -106,6 +106,11 @@ export function jobOf(req: PipelineRequest, input: string, material: Material | 
   };
 }
 
+/** Pinning sites listed apart as indicative only (their windows reach into a periodic stretch). */
+function indicativeCount(d: WireJobResult["outputs"]["document"]): number {
+  return d.pinningMinor.filter((x) => x.note !== null && x.note.includes("indicative only")).length;
+}
+
 /** One line about a finished wire, for stderr. */
 export function describeResult(name: string, r: WireJobResult): string {
   const d = r.outputs.document;
@@ -116,7 +121,7 @@ export function describeResult(name: string, r: WireJobResult): string {
     .map(([k, c]) => `${c} ${k}`)
     .join(", ");
   const model = d.material !== null
-    ? `; ${d.pinning.length} pinning ${d.pinning.length === 1 ? "site" : "sites"}, ${d.segments.filter((g) => g.homogeneousStability === "metastable").length} metastable`
+    ? `; ${d.pinning.length} pinning ${d.pinning.length === 1 ? "site" : "sites"}${indicativeCount(d) > 0 ? ` (${indicativeCount(d)} more indicative only, next to a periodic stretch)` : ""}, ${d.segments.filter((g) => g.homogeneousStability === "metastable").length} metastable`
     : "; geometry only (no material)";
   return `${name}: length ${brief(d.geometry.length ?? NaN)} ${u}, ${d.segments.length} ${d.segments.length === 1 ? "stretch" : "stretches"} (${kinds})${model}`;
 }

@@ -31,6 +31,16 @@ describe("twistline analyze", () => {
     expect(readdirSync(root).filter((f) => f.startsWith("."))).toEqual([]); // no temporary folder left
   });
 
+  it("the summary line counts the sites listed apart as indicative only (invented demo afm-coil: next to its periodic stretches)", async () => {
+    const out = join(root, "afm");
+    const r = await run(["analyze", join("fixtures", "demo", "afm", "afm-coil.csv"), "--unit", "nm", "--material", join("fixtures", "demo", "afm", "material-invented-afm.json"), "--out", out, "--bootstrap", "20"]);
+    expect(r.code, r.stderr).toBe(0);
+    const doc = JSON.parse(readFileSync(join(out, "model.json"), "utf8")) as ModelDocument;
+    const indicative = doc.pinningMinor.filter((x) => x.note?.includes("indicative only")).length;
+    expect(indicative).toBeGreaterThan(0);
+    expect(r.stderr).toContain(`; ${doc.pinning.length} pinning site${doc.pinning.length === 1 ? "" : "s"} (${indicative} more indicative only, next to a periodic stretch), `);
+  }, 60_000);
+
   it("model.json validates against the shipped schema and carries the model of each stretch", () => {
     const doc = JSON.parse(readFileSync(join(fullDir, "model.json"), "utf8")) as ModelDocument;
     expect(validate(doc), JSON.stringify(validate.errors)).toBe(true);

@@ -8,6 +8,7 @@ import { analyzeTrace } from "../../src/export/analyzeTrace.js";
 import { buildWireModel, parseMaterial } from "../../src/physics/index.js";
 import { VALIDITY_TEXT } from "../../src/physics/sampleValidity.js";
 import { FLAG_BIAS } from "../../src/types.js";
+import { planarFromCurvature } from "../support/curves.js";
 import { normalStream } from "../support/rng.js";
 
 // invented soft ferromagnet: l = sqrt(A / K) = 8.04 nm
@@ -15,22 +16,8 @@ const material = parseMaterial({ order: "ferro", exchange: 1.3e-11, anisotropy: 
 const l = material.magneticLength * 1e9; // nm
 const k0 = 0.037, s0 = 300, L = 600; // 1/nm, nm: k0 l = 0.2975
 
-/** The bump's planar centre line, one point per nm (integrated at 0.01 nm steps, midpoint rule). */
-function bumpWire(k0 = 0.037, w = 2 * l): number[] {
-  const kap = (s: number) => k0 * Math.exp(-(((s - s0) / w) ** 2));
-  const pts: number[] = [];
-  let x = 0, y = 0, th = 0;
-  const h = 0.01;
-  for (let i = 0; i <= L / h; i++) {
-    const s = i * h;
-    if (Math.abs(s - Math.round(s)) < h / 2) pts.push(x, y, 0);
-    const k = kap(s + h / 2);
-    x += Math.cos(th + (k * h) / 2) * h;
-    y += Math.sin(th + (k * h) / 2) * h;
-    th += k * h;
-  }
-  return pts;
-}
+/** The bump's planar centre line, one point per nm. */
+const bumpWire = (peak = k0, w = 2 * l): number[] => planarFromCurvature((s) => peak * Math.exp(-(((s - s0) / w) ** 2)), L);
 
 describe("pinning depth intervals with the smoothing bias", () => {
   it("a bump of k0 l = 0.30, w = 2 l at 0.5 nm noise: the interval holds the first-order depth; the noise-only interval lies below it", () => {
